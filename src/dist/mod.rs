@@ -1,0 +1,183 @@
+//! Probability distributions: one file per family, a registry, finite mixtures and
+//! distributions with atoms on the extended real line.
+//!
+//! Every family offers its CDF, density, quantile and a map from a *base variate*
+//! to a draw. The base variate's kind (a standard normal or a uniform on (0, 1)) is
+//! fixed by the family, not by its parameters, so a fit can draw the base variates
+//! once and map them through the family for every trial value of the
+//! hyperparameters (common random numbers; DESIGN.md §3). Location–scale families
+//! use a normal base (θ = μ + σ·z), others the quantile of a uniform.
+//!
+//! Constructors validate their parameters and report the offending value.
+//! To add a family: write `src/dist/<name>.rs` with a struct implementing
+//! [`Continuous`] and a `pub const INFO: FamilyInfo`, then add one line to
+//! [`FAMILIES`].
+
+use std::fmt;
+use std::sync::Arc;
+
+pub mod beta;
+pub mod exponential;
+pub mod gamma;
+pub mod half_cauchy;
+pub mod half_normal;
+pub mod half_student_t;
+pub mod inverse_gamma;
+pub mod laplace;
+pub mod logit_normal;
+pub mod loglogistic;
+pub mod lognormal;
+pub mod mixed;
+pub mod mixture;
+pub mod normal;
+pub mod student_t;
+pub mod uniform;
+pub mod weibull;
+
+#[cfg(test)]
+pub(crate) mod invariants;
+
+pub use mixed::{Atom, Mixed};
+pub use mixture::Mixture;
+
+/// A parameter value outside its family's domain.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{family}: parameter `{param}` = {value} is invalid: {reason}")]
+pub struct DistError {
+    pub family: &'static str,
+    pub param: &'static str,
+    pub value: f64,
+    pub reason: &'static str,
+}
+
+/// Check that a parameter is finite and strictly positive.
+pub fn positive(family: &'static str, param: &'static str, value: f64) -> Result<f64, DistError> {
+    if value.is_finite() && value > 0.0 {
+        Ok(value)
+    } else {
+        Err(DistError {
+            family,
+            param,
+            value,
+            reason: "must be finite and > 0",
+        })
+    }
+}
+
+/// Check that a parameter is finite.
+pub fn finite(family: &'static str, param: &'static str, value: f64) -> Result<f64, DistError> {
+    if value.is_finite() {
+        Ok(value)
+    } else {
+        Err(DistError {
+            family,
+            param,
+            value,
+            reason: "must be finite",
+        })
+    }
+}
+
+/// The kind of base variate a family maps to draws.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Base {
+    /// A standard normal z.
+    Normal,
+    /// A uniform u on (0, 1).
+    Uniform,
+}
+
+/// Where a family puts its mass.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Support {
+    Real,
+    Positive,
+    Unit,
+    Interval,
+}
+
+/// A continuous univariate distribution.
+pub trait Continuous: Send + Sync + fmt::Debug {
+    /// The registry name of the family.
+    fn family(&self) -> &'static str;
+    fn cdf(&self, x: f64) -> f64;
+    fn pdf(&self, x: f64) -> f64;
+    /// The p-quantile, p in [0, 1] (±inf at the ends of an unbounded support).
+    fn quantile(&self, p: f64) -> f64;
+    /// Lower and upper end of the support.
+    fn support(&self) -> (f64, f64);
+    fn mean(&self) -> Option<f64>;
+    fn variance(&self) -> Option<f64>;
+    /// The parameters in registry order, with their names.
+    fn params(&self) -> Vec<(&'static str, f64)>;
+    /// A draw from a base variate of the family's [`Base`] kind.
+    fn from_base(&self, b: f64) -> f64 {
+        self.quantile(b)
+    }
+    /// Map many base variates at once (families override this for speed).
+    fn fill_from_base(&self, base: &[f64], out: &mut [f64]) {
+        for (o, b) in out.iter_mut().zip(base) {
+            *o = self.from_base(*b);
+        }
+    }
+    /// Survival function 1 − F(x), overridden where a direct form is more accurate.
+    fn sf(&self, x: f64) -> f64 {
+        1.0 - self.cdf(x)
+    }
+}
+
+/// Registry entry of a family.
+pub struct FamilyInfo {
+    pub name: &'static str,
+    /// Parameter names in the order `build` takes them.
+    pub params: &'static [&'static str],
+    pub base: Base,
+    pub support: Support,
+    pub about: &'static str,
+    pub build: fn(&[f64]) -> Result<Box<dyn Continuous>, DistError>,
+}
+
+impl fmt::Debug for FamilyInfo {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "FamilyInfo({})", self.name)
+    }
+}
+
+/// All families, by name. Adding a family adds one line here.
+pub static FAMILIES: &[&FamilyInfo] = &[
+    &normal::INFO,
+    &lognormal::INFO,
+    &gamma::INFO,
+    &inverse_gamma::INFO,
+    &beta::INFO,
+    &logit_normal::INFO,
+    &student_t::INFO,
+    &half_normal::INFO,
+    &half_student_t::INFO,
+    &half_cauchy::INFO,
+    &exponential::INFO,
+    &uniform::INFO,
+    &weibull::INFO,
+    &laplace::INFO,
+    &loglogistic::INFO,
+];
+
+/// Look a family up by name.
+pub fn family(name: &str) -> Option<&'static FamilyInfo> {
+    FAMILIES.iter().copied().find(|f| f.name == name)
+}
+
+/// All family names.
+pub fn family_names() -> Vec<&'static str> {
+    FAMILIES.iter().map(|f| f.name).collect()
+}
+
+/// Build a family by name from parameters in registry order.
+pub fn build(name: &str, params: &[f64]) -> Option<Result<Box<dyn Continuous>, DistError>> {
+    family(name).map(|f| (f.build)(params))
+}
+
+/// Shared, thread-safe handle to a distribution.
+pub type Dist = Arc<dyn Continuous>;

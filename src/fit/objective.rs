@@ -1,0 +1,213 @@
+//! The deterministic objective D(λ) = Σ_r w_r d(P_λ,r, T_r) / Σ_r w_r on common
+//! random numbers (DESIGN.md §3).
+//!
+//! Base variates are drawn once; each evaluation maps them through the prior at λ,
+//! computes every belief's quantity, sorts it (reusing the previous order as the
+//! starting permutation: the stable sort is adaptive, and many quantities barely
+//! reorder between nearby λ — a quantity monotone in one base draw never does),
+//! and integrates the discrepancy in closed form. Free hyperparameters are
+//! optimised on an unbounded scale η: λ = lo + (hi − lo)·logistic(η), or the same
+//! on ln λ for positive bounds spanning two or more orders of magnitude.
+
+use crate::discrepancy::{discrepancy, noise_floor, Kind};
+use crate::error::{Error, Result};
+use crate::numerics::{logistic, logit};
+use crate::spec::Spec;
+use crate::templates::{BaseDraws, Hyper, HyperValue, Request};
+use std::cell::RefCell;
+use std::sync::atomic::{AtomicU64, Ordering};
+
+/// Scratch buffers for one thread.
+#[derive(Default)]
+struct Workspace {
+    out: Vec<Vec<f64>>,
+    pairs: Vec<Vec<(f64, u32)>>,
+    sorted: Vec<Vec<f64>>,
+}
+
+thread_local! {
+    static WS: RefCell<Workspace> = RefCell::new(Workspace::default());
+}
+
+/// Map between the free hyperparameters and the unbounded optimisation scale.
+pub fn to_eta(h: &Hyper, x: f64) -> f64 {
+    match h.value {
+        HyperValue::Free { lo, hi, .. } => {
+            let t = if h.log_scale {
+                (x.ln() - lo.ln()) / (hi.ln() - lo.ln())
+            } else {
+                (x - lo) / (hi - lo)
+            };
+            logit(t.clamp(1e-12, 1.0 - 1e-12))
+        }
+        HyperValue::Fixed(_) => 0.0,
+    }
+}
+
+pub fn from_eta(h: &Hyper, eta: f64) -> f64 {
+    match h.value {
+        HyperValue::Free { lo, hi, .. } => {
+            // Keep η finite-ish so the value never sits exactly on a bound.
+            let t = logistic(eta.clamp(-30.0, 30.0));
+            if h.log_scale {
+                (lo.ln() + t * (hi.ln() - lo.ln())).exp()
+            } else {
+                lo + t * (hi - lo)
+            }
+        }
+        HyperValue::Fixed(v) => v,
+    }
+}
+
+/// Everything an evaluation needs, shared read-only by all starts.
+pub struct Objective<'a> {
+    pub spec: &'a Spec,
+    pub base: BaseDraws,
+    pub free: Vec<usize>,
+    pub full0: Vec<f64>,
+    reqs: Vec<&'a Request>,
+    weights: Vec<f64>,
+    pub kind: Kind,
+    /// Weight of the tie-breaking term −spread(λ).
+    pub kappa: f64,
+    pub floors: Vec<f64>,
+    evals: AtomicU64,
+}
+
+impl<'a> Objective<'a> {
+    pub fn new(spec: &'a Spec, n: usize, seed: u64, block: u64, kind: Kind) -> Self {
+        let hypers = spec.hypers();
+        let total: f64 = spec.beliefs.iter().map(|b| b.weight).sum();
+        Objective {
+            spec,
+            base: spec.model.draw_base(n, seed, block),
+            free: spec.free(),
+            full0: hypers.iter().map(Hyper::default_value).collect(),
+            reqs: spec.beliefs.iter().map(|b| &b.request).collect(),
+            weights: spec.beliefs.iter().map(|b| b.weight / total).collect(),
+            kind,
+            kappa: 0.0,
+            floors: spec
+                .beliefs
+                .iter()
+                .map(|b| noise_floor(kind, &b.target, n))
+                .collect(),
+            evals: AtomicU64::new(0),
+        }
+    }
+
+    pub fn n(&self) -> usize {
+        self.base.n
+    }
+
+    pub fn evaluations(&self) -> u64 {
+        self.evals.load(Ordering::Relaxed)
+    }
+
+    /// Weighted noise floor of the total discrepancy.
+    pub fn floor(&self) -> f64 {
+        self.floors
+            .iter()
+            .zip(&self.weights)
+            .map(|(f, w)| f * w)
+            .sum()
+    }
+
+    pub fn full(&self, eta: &[f64]) -> Vec<f64> {
+        let mut h = self.full0.clone();
+        let hy = self.spec.hypers();
+        for (k, &i) in self.free.iter().enumerate() {
+            h[i] = from_eta(&hy[i], eta[k]);
+        }
+        h
+    }
+
+    pub fn eta(&self, full: &[f64]) -> Vec<f64> {
+        let hy = self.spec.hypers();
+        self.free.iter().map(|&i| to_eta(&hy[i], full[i])).collect()
+    }
+
+    /// Simulated quantity draws at `h`, sorted ascending, one vector per belief.
+    pub fn sorted_draws(&self, h: &[f64]) -> Result<Vec<Vec<f64>>> {
+        self.with_sorted(h, |s| s.to_vec())
+    }
+
+    fn with_sorted<T>(&self, h: &[f64], f: impl FnOnce(&[Vec<f64>]) -> T) -> Result<T> {
+        self.evals.fetch_add(1, Ordering::Relaxed);
+        WS.with(|ws| {
+            let mut ws = ws.borrow_mut();
+            let ws = &mut *ws;
+            let nb = self.reqs.len();
+            let n = self.base.n;
+            ws.out.resize(nb, Vec::new());
+            ws.pairs.resize(nb, Vec::new());
+            ws.sorted.resize(nb, Vec::new());
+            self.spec
+                .model
+                .simulate(h, &self.base, &self.reqs, &mut ws.out)?;
+            for r in 0..nb {
+                let q = &ws.out[r];
+                if let Some(i) = q.iter().position(|v| v.is_nan()) {
+                    return Err(Error::Numeric(format!(
+                        "{} is undefined (NaN) at draw {i} for hyperparameters {h:?}",
+                        self.reqs[r].label
+                    )));
+                }
+                let pairs = &mut ws.pairs[r];
+                if pairs.len() != n {
+                    *pairs = (0..n as u32).map(|i| (0.0, i)).collect();
+                }
+                for p in pairs.iter_mut() {
+                    p.0 = q[p.1 as usize];
+                }
+                if !pairs.is_sorted_by(|a, b| a.0 <= b.0) {
+                    pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
+                }
+                let s = &mut ws.sorted[r];
+                s.clear();
+                s.extend(pairs.iter().map(|p| p.0));
+            }
+            Ok(f(&ws.sorted))
+        })
+    }
+
+    /// Per-belief discrepancies at the full hyperparameter vector `h`.
+    pub fn per_belief(&self, h: &[f64], kind: Kind) -> Result<Vec<f64>> {
+        self.with_sorted(h, |sorted| {
+            sorted
+                .iter()
+                .zip(&self.spec.beliefs)
+                .map(|(s, b)| discrepancy(kind, &b.target, s))
+                .collect()
+        })
+    }
+
+    /// Weighted total discrepancy at `h`.
+    pub fn total(&self, h: &[f64]) -> Result<f64> {
+        Ok(self
+            .per_belief(h, self.kind)?
+            .iter()
+            .zip(&self.weights)
+            .map(|(d, w)| d * w)
+            .sum())
+    }
+
+    /// The optimiser's cost at η: D(λ) + κ·(−spread(λ)); +inf when undefined.
+    pub fn cost(&self, eta: &[f64]) -> f64 {
+        let h = self.full(eta);
+        match self.total(&h) {
+            Ok(d) if d.is_finite() => {
+                if self.kappa > 0.0 {
+                    d - self.kappa * self.spec.model.spread(&h)
+                } else {
+                    d
+                }
+            }
+            _ => f64::INFINITY,
+        }
+    }
+
+    pub fn weights(&self) -> &[f64] {
+        &self.weights
+    }
+}

@@ -1,0 +1,253 @@
+//! Faithfulness verdicts: is each belief met by the fitted prior, and if not, how
+//! is it missed?
+//!
+//! * **met within noise**: the fresh-draw discrepancy is below the upper 5 % point
+//!   of its null distribution (the noise floor × 2.768 for CvM, × 2.49 for AD;
+//!   Stephens 1974) — the implied and believed distributions cannot be told apart
+//!   with this many draws.
+//! * **met approximately**: the root-mean-square CDF gap beyond the noise,
+//!   √max(d_CvM − floor, 0), is at most the tolerance (default 0.02: two
+//!   percentage points of probability).
+//! * **not met**: otherwise, with the direction of the miss from quantiles on the
+//!   belief's natural scale (log for positive, logit for probabilities): a shift
+//!   of the median, a ratio of the 10–90 % widths, and atom masses compared.
+
+use crate::discrepancy::{discrepancy, Kind};
+use crate::spec::Belief;
+use crate::target::quantiles::Scale;
+use serde::Serialize;
+
+pub const PROBS: [f64; 7] = [0.05, 0.1, 0.25, 0.5, 0.75, 0.9, 0.95];
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, PartialOrd, Ord)]
+#[serde(rename_all = "snake_case")]
+pub enum Verdict {
+    MetWithinNoise,
+    MetApproximately,
+    NotMet,
+}
+
+impl Verdict {
+    pub fn words(&self) -> &'static str {
+        match self {
+            Verdict::MetWithinNoise => "met within noise",
+            Verdict::MetApproximately => "met approximately",
+            Verdict::NotMet => "not met",
+        }
+    }
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct AtomCheck {
+    #[serde(serialize_with = "crate::numerics::ext::f64")]
+    pub at: f64,
+    pub believed: f64,
+    pub implied: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct BeliefReport {
+    pub label: String,
+    pub quantity: String,
+    pub stated_as: String,
+    pub unit: Option<String>,
+    pub weight: f64,
+    pub in_sample: f64,
+    pub fresh: f64,
+    pub noise_floor: f64,
+    /// fresh / noise_floor
+    pub ratio: f64,
+    pub rms_cdf_gap: f64,
+    pub verdict: Verdict,
+    /// Plain-words description of a miss (empty when met within noise).
+    pub how: Vec<String>,
+    pub probs: Vec<f64>,
+    #[serde(serialize_with = "crate::numerics::ext::vec")]
+    pub believed_quantiles: Vec<f64>,
+    #[serde(serialize_with = "crate::numerics::ext::vec")]
+    pub implied_quantiles: Vec<f64>,
+    pub atoms: Vec<AtomCheck>,
+    pub implied_mean: Option<f64>,
+    pub implied_sd: Option<f64>,
+    /// Mass of the implied distribution at +∞ (e.g. median never reached).
+    pub implied_mass_at_inf: f64,
+}
+
+/// The p-quantile of sorted draws (type-1 empirical quantile).
+pub fn empirical_quantile(sorted: &[f64], p: f64) -> f64 {
+    let n = sorted.len();
+    let k = ((p * n as f64).ceil() as usize).clamp(1, n) - 1;
+    sorted[k]
+}
+
+#[allow(clippy::too_many_arguments)]
+pub fn judge(
+    b: &Belief,
+    kind: Kind,
+    sorted_fresh: &[f64],
+    in_sample: f64,
+    floor: f64,
+    cvm_floor: f64,
+    weight: f64,
+    tolerance: f64,
+) -> BeliefReport {
+    let fresh = discrepancy(kind, &b.target, sorted_fresh);
+    let cvm = if kind == Kind::CramerVonMises {
+        fresh
+    } else {
+        discrepancy(Kind::CramerVonMises, &b.target, sorted_fresh)
+    };
+    let rms = (cvm - cvm_floor).max(0.0).sqrt();
+    let verdict = if fresh <= floor * kind.null_95_over_mean() {
+        Verdict::MetWithinNoise
+    } else if rms <= tolerance {
+        Verdict::MetApproximately
+    } else {
+        Verdict::NotMet
+    };
+    let believed: Vec<f64> = PROBS.iter().map(|p| b.target.quantile(*p)).collect();
+    let implied: Vec<f64> = PROBS
+        .iter()
+        .map(|p| empirical_quantile(sorted_fresh, *p))
+        .collect();
+    let n = sorted_fresh.len() as f64;
+    let atoms: Vec<AtomCheck> = b
+        .target
+        .atoms()
+        .iter()
+        .map(|a| AtomCheck {
+            at: a.at,
+            believed: a.mass,
+            implied: sorted_fresh.iter().filter(|v| **v == a.at).count() as f64 / n,
+        })
+        .collect();
+    let inf_mass = sorted_fresh
+        .iter()
+        .rev()
+        .take_while(|v| v.is_infinite())
+        .count() as f64
+        / n;
+    let finite: Vec<f64> = sorted_fresh
+        .iter()
+        .copied()
+        .filter(|v| v.is_finite())
+        .collect();
+    let (mean, sd) = if finite.len() > 1 {
+        let m = finite.iter().sum::<f64>() / finite.len() as f64;
+        let v = finite.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (finite.len() - 1) as f64;
+        (Some(m), Some(v.sqrt()))
+    } else {
+        (None, None)
+    };
+    let how = if verdict == Verdict::MetWithinNoise {
+        Vec::new()
+    } else {
+        describe(b, &believed, &implied, &atoms)
+    };
+    BeliefReport {
+        label: b.label.clone(),
+        quantity: b.request.quantity.clone(),
+        stated_as: b.stated_as.clone(),
+        unit: b.request.unit.clone(),
+        weight,
+        in_sample,
+        fresh,
+        noise_floor: floor,
+        ratio: fresh / floor,
+        rms_cdf_gap: rms,
+        verdict,
+        how,
+        probs: PROBS.to_vec(),
+        believed_quantiles: believed,
+        implied_quantiles: implied,
+        atoms,
+        implied_mean: mean,
+        implied_sd: sd,
+        implied_mass_at_inf: inf_mass,
+    }
+}
+
+/// How the implied distribution misses the belief, in words.
+pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomCheck]) -> Vec<String> {
+    let scale = Scale::for_support(b.request.support);
+    let g = |x: f64| {
+        let (lo, hi) = scale.domain();
+        if x <= lo || x >= hi || !x.is_finite() {
+            None
+        } else {
+            Some(scale.to(x))
+        }
+    };
+    let mut out = Vec::new();
+    for a in atoms {
+        let gap = a.implied - a.believed;
+        if gap.abs() > 0.02 + 0.25 * a.believed {
+            let place = if a.at.is_infinite() {
+                "at inf (never reached)".to_string()
+            } else {
+                format!("at {}", a.at)
+            };
+            out.push(format!(
+                "{} mass {place}: believed {:.1} %, implied {:.1} %",
+                if gap > 0.0 { "too much" } else { "too little" },
+                100.0 * a.believed,
+                100.0 * a.implied
+            ));
+        }
+    }
+    // Median shift and width ratio on the natural scale (indices: 1 = 10 %, 3 = 50 %, 5 = 90 %).
+    if let (Some(bm), Some(im)) = (g(believed[3]), g(implied[3])) {
+        if let (Some(b1), Some(b9), Some(i1), Some(i9)) =
+            (g(believed[1]), g(believed[5]), g(implied[1]), g(implied[5]))
+        {
+            let bw = b9 - b1;
+            let iw = i9 - i1;
+            let shift = (im - bm) / bw.max(1e-300);
+            if shift.abs() > 0.1 {
+                out.push(format!(
+                    "shifted {}: implied median {} vs believed {}",
+                    if shift > 0.0 { "up" } else { "down" },
+                    fmt_num(implied[3]),
+                    fmt_num(believed[3])
+                ));
+            }
+            let ratio = iw / bw;
+            if ratio > 1.15 {
+                out.push(format!(
+                    "too wide: implied 10–90 % range is {ratio:.2}× the believed"
+                ));
+            } else if ratio < 1.0 / 1.15 {
+                out.push(format!(
+                    "too narrow: implied 10–90 % range is {ratio:.2}× the believed"
+                ));
+            }
+        }
+    }
+    if out.is_empty() {
+        out.push("shape differs (quantiles close, CDFs differ in between)".to_string());
+    }
+    out
+}
+
+pub fn fmt_num(x: f64) -> String {
+    if x.is_infinite() {
+        return if x > 0.0 { "inf".into() } else { "-inf".into() };
+    }
+    let a = x.abs();
+    if a != 0.0 && !(1e-3..1e5).contains(&a) {
+        format!("{x:.3e}")
+    } else if a >= 100.0 {
+        format!("{x:.1}")
+    } else {
+        format!("{x:.4}")
+    }
+}
+
+/// The worst verdict over beliefs.
+pub fn overall(beliefs: &[BeliefReport]) -> Verdict {
+    beliefs
+        .iter()
+        .map(|b| b.verdict)
+        .max()
+        .unwrap_or(Verdict::MetWithinNoise)
+}

@@ -1,0 +1,24 @@
+//! priorsmith: choose prior hyperparameters from beliefs about the quantities a
+//! model implies.
+//!
+//! Data flow, one way: belief file ([`spec`]) → validated [`spec::Spec`] with a
+//! template's [`templates::Model`] and tabulated beliefs ([`target`]) → the
+//! deterministic objective on common random numbers ([`fit::objective`]) →
+//! optimiser ([`fit`]) → [`fit::FitResult`] → writers ([`output`]). The command
+//! line ([`cli`]) uses only what this library exposes.
+
+pub mod cli;
+pub mod demo;
+pub mod discrepancy;
+pub mod dist;
+pub mod error;
+pub mod fit;
+pub mod numerics;
+pub mod output;
+pub mod rng;
+pub mod simulate;
+pub mod spec;
+pub mod target;
+pub mod templates;
+
+pub use error::{Error, Result};

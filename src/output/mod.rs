@@ -1,0 +1,118 @@
+//! Writers: `fit.json`, `summary.txt`, `draws.csv`. Writers read a [`FitResult`],
+//! never the spec. Every file is written to a temporary sibling and renamed into
+//! place, so a reader never sees a half-written file, and a failed run leaves no
+//! partial output behind.
+
+pub mod summary;
+
+use crate::error::{Error, Result};
+use crate::fit::FitResult;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// Write `bytes` to `path` atomically (temporary file in the same folder + rename).
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .map(|s| s.to_string_lossy().to_string())
+        .unwrap_or_default();
+    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+    let res = (|| {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        std::fs::rename(&tmp, path)
+    })();
+    if let Err(e) = res {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(Error::io(path, e));
+    }
+    Ok(())
+}
+
+/// Create the output folder (and parents) with a clear error.
+pub fn ensure_dir(dir: &Path) -> Result<()> {
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    // Probe writability before any work lands.
+    let probe = dir.join(format!(".priorsmith-probe-{}", std::process::id()));
+    std::fs::write(&probe, b"").map_err(|e| Error::io(dir, e))?;
+    let _ = std::fs::remove_file(probe);
+    Ok(())
+}
+
+/// `fit.json`: the result with documented keys (see README, "Outputs").
+pub fn fit_json(r: &FitResult) -> Result<String> {
+    let mut v = serde_json::to_value(r).map_err(|e| Error::Numeric(e.to_string()))?;
+    if let Some(o) = v.as_object_mut() {
+        o.insert(
+            "tool".into(),
+            serde_json::json!({ "name": "priorsmith", "version": r.tool_version }),
+        );
+    }
+    serde_json::to_string_pretty(&v).map_err(|e| Error::Numeric(e.to_string()))
+}
+
+/// `draws.csv`: one row per fresh draw, one column per belief's quantity.
+pub fn draws_csv(r: &FitResult) -> Result<Vec<u8>> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let mut header = vec!["draw".to_string()];
+    header.extend(r.beliefs.iter().map(|b| b.label.clone()));
+    w.write_record(&header)
+        .map_err(|e| Error::Numeric(e.to_string()))?;
+    let n = r.draws_fresh.first().map_or(0, Vec::len);
+    for i in 0..n {
+        let mut row = vec![(i + 1).to_string()];
+        row.extend(r.draws_fresh.iter().map(|c| fmt_csv(c[i])));
+        w.write_record(&row)
+            .map_err(|e| Error::Numeric(e.to_string()))?;
+    }
+    w.into_inner().map_err(|e| Error::Numeric(e.to_string()))
+}
+
+pub fn fmt_csv(x: f64) -> String {
+    if x == f64::INFINITY {
+        "inf".into()
+    } else if x == f64::NEG_INFINITY {
+        "-inf".into()
+    } else {
+        format!("{x}")
+    }
+}
+
+/// Write every output of a fit into `dir`; returns the paths written.
+pub fn write_fit(dir: &Path, r: &FitResult) -> Result<Vec<PathBuf>> {
+    ensure_dir(dir)?;
+    // Render everything first, so an error leaves no file behind.
+    let json = fit_json(r)?;
+    let summary = summary::render(r);
+    let draws = draws_csv(r)?;
+    let files = [
+        (dir.join("fit.json"), json.into_bytes()),
+        (dir.join("summary.txt"), summary.into_bytes()),
+        (dir.join("draws.csv"), draws),
+    ];
+    let mut out = Vec::new();
+    for (p, b) in files {
+        write_atomic(&p, &b)?;
+        out.push(p);
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn atomic_write_replaces_whole_file() {
+        let d = tempfile::tempdir().unwrap();
+        let p = d.path().join("a.txt");
+        super::write_atomic(&p, b"first").unwrap();
+        super::write_atomic(&p, b"second").unwrap();
+        assert_eq!(std::fs::read_to_string(&p).unwrap(), "second");
+        let leftovers: Vec<_> = std::fs::read_dir(d.path()).unwrap().collect();
+        assert_eq!(leftovers.len(), 1);
+    }
+}

@@ -1,0 +1,141 @@
+//! `summary.txt`: a plain-text table of the fitted hyperparameters and of how
+//! well each belief is met.
+
+use crate::fit::verdict::fmt_num;
+use crate::fit::FitResult;
+use std::fmt::Write;
+
+pub const CAUTION: &str = "Caution: a fitted prior is a proposal, not a decision. The responsible \
+statistician must review it, check it for prior–data conflict and sensitivity, and use it within \
+the applicable regulatory guidance and local practice.";
+
+pub fn render(r: &FitResult) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "priorsmith {} — {}", r.tool_version, r.title);
+    let _ = writeln!(
+        s,
+        "template {}, {} draws, seed {}, discrepancy {}, spec sha256 {}",
+        r.template,
+        r.draws,
+        r.seed,
+        r.discrepancy.name(),
+        &r.spec_digest[..12.min(r.spec_digest.len())]
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(s, "Hyperparameters");
+    let w = r.order.iter().map(String::len).max().unwrap_or(10).max(14);
+    for name in &r.order {
+        let v = r.hyperparameters[name];
+        let note = match r.bounds.get(name) {
+            Some((lo, hi)) => {
+                let near = (v - lo).abs() < 1e-3 * (hi - lo) || (hi - v).abs() < 1e-3 * (hi - lo);
+                format!(
+                    "fitted in [{}, {}]{}",
+                    fmt_num(*lo),
+                    fmt_num(*hi),
+                    if near { "  ← at a bound" } else { "" }
+                )
+            }
+            None => "fixed".to_string(),
+        };
+        let _ = writeln!(s, "  {name:<w$}  {:>12}  {note}", fmt_num(v));
+    }
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "Beliefs (discrepancy on fresh draws vs the Monte Carlo noise floor)"
+    );
+    let lw = r
+        .beliefs
+        .iter()
+        .map(|b| b.label.len())
+        .max()
+        .unwrap_or(10)
+        .max(10);
+    let _ = writeln!(
+        s,
+        "  {:<lw$}  {:>11}  {:>11}  {:>7}  {:>8}  verdict",
+        "belief", "fresh", "floor", "ratio", "CDF gap"
+    );
+    for b in &r.beliefs {
+        let _ = writeln!(
+            s,
+            "  {:<lw$}  {:>11.3e}  {:>11.3e}  {:>7.2}  {:>8.4}  {}",
+            b.label,
+            b.fresh,
+            b.noise_floor,
+            b.ratio,
+            b.rms_cdf_gap,
+            b.verdict.words()
+        );
+        for h in &b.how {
+            let _ = writeln!(s, "  {:<lw$}    ↳ {h}", "");
+        }
+    }
+    let _ = writeln!(
+        s,
+        "  {:<lw$}  {:>11.3e}  {:>11.3e}  {:>7.2}  {:>8}  {}",
+        "total (weighted)",
+        r.total.fresh,
+        r.total.noise_floor,
+        r.total.fresh / r.total.noise_floor,
+        "",
+        r.verdict.words()
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(s, "Believed vs implied quantiles");
+    let probs: Vec<String> = r
+        .beliefs
+        .first()
+        .map(|b| {
+            b.probs
+                .iter()
+                .map(|p| format!("{:>9}", format!("{}%", p * 100.0)))
+                .collect()
+        })
+        .unwrap_or_default();
+    let _ = writeln!(s, "  {:<lw$}  {:>8} {}", "belief", "", probs.join(""));
+    for b in &r.beliefs {
+        let row = |v: &[f64]| {
+            v.iter()
+                .map(|x| format!("{:>9}", fmt_num(*x)))
+                .collect::<String>()
+        };
+        let _ = writeln!(
+            s,
+            "  {:<lw$}  {:>8} {}",
+            b.label,
+            "believed",
+            row(&b.believed_quantiles)
+        );
+        let _ = writeln!(
+            s,
+            "  {:<lw$}  {:>8} {}",
+            "",
+            "implied",
+            row(&b.implied_quantiles)
+        );
+        for a in &b.atoms {
+            let _ = writeln!(
+                s,
+                "  {:<lw$}  atom at {}: believed {:.2} %, implied {:.2} %",
+                "",
+                fmt_num(a.at),
+                100.0 * a.believed,
+                100.0 * a.implied
+            );
+        }
+    }
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "Optimiser: {} evaluations, {} starts, {} local searches, {:.2} s",
+        r.optimiser.evaluations,
+        r.optimiser.starts,
+        r.optimiser.searches.len(),
+        r.wall_time_s
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(s, "{CAUTION}");
+    s
+}

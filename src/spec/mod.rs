@@ -1,0 +1,570 @@
+//! Belief files: TOML text → raw serde structures ([`raw`]) → a validated,
+//! typed [`Spec`] that the fitting stage uses. Every error names the file, the
+//! line, the key path and the bad value, and suggests the nearest valid key or
+//! name where one was misspelt.
+
+pub mod belief;
+pub mod raw;
+pub mod source;
+
+use crate::discrepancy::Kind;
+use crate::error::{choice_hint, nearest, Error, Location, Result};
+use crate::target::Target;
+use crate::templates::{self, Hyper, HyperValue, Model, Request};
+use raw::RawSpec;
+use sha2::Digest;
+pub use source::{key, render, Seg, SourceMap};
+use std::cell::RefCell;
+use std::collections::BTreeSet;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+
+/// Upper limit on draws unless raised deliberately (`--max-draws`); documented in
+/// the README. 2,000,000 draws × a few quantities is a few hundred MB.
+pub const MAX_DRAWS: usize = 2_000_000;
+pub const DEFAULT_DRAWS: usize = 20_000;
+pub const DEFAULT_SEED: u64 = 1;
+
+/// One validated belief: what quantity, at which profile, believed how.
+#[derive(Debug, Clone)]
+pub struct Belief {
+    pub label: String,
+    pub request: Request,
+    pub target: Target,
+    pub weight: f64,
+    /// How the belief was stated, for reports ("quantiles (monotone interpolation)").
+    pub stated_as: String,
+}
+
+/// Fitting options.
+#[derive(Debug, Clone)]
+pub struct FitOptions {
+    pub discrepancy: Kind,
+    /// Space-filling starts of the global stage.
+    pub starts: usize,
+    /// Largest root-mean-square CDF gap counted as "met approximately".
+    pub tolerance: f64,
+    /// Weight κ of the secondary (tie-breaking) objective; None = automatic.
+    pub tie_break: Option<f64>,
+    pub replicates: usize,
+}
+
+/// A validated belief file.
+#[derive(Clone)]
+pub struct Spec {
+    pub title: String,
+    pub path: Option<PathBuf>,
+    pub digest: String,
+    pub model: Arc<dyn Model>,
+    pub draws: usize,
+    pub seed: u64,
+    pub beliefs: Vec<Belief>,
+    pub fit: FitOptions,
+}
+
+impl std::fmt::Debug for Spec {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Spec")
+            .field("title", &self.title)
+            .field("template", &self.model.template())
+            .field("draws", &self.draws)
+            .field("seed", &self.seed)
+            .finish()
+    }
+}
+
+impl Spec {
+    pub fn hypers(&self) -> &[Hyper] {
+        self.model.hypers()
+    }
+    pub fn free(&self) -> Vec<usize> {
+        self.hypers()
+            .iter()
+            .enumerate()
+            .filter(|(_, h)| matches!(h.value, HyperValue::Free { .. }))
+            .map(|(i, _)| i)
+            .collect()
+    }
+}
+
+/// Options that come from the command line rather than the file.
+#[derive(Debug, Clone, Default)]
+pub struct Overrides {
+    pub seed: Option<u64>,
+    pub draws: Option<usize>,
+    pub max_draws: Option<usize>,
+}
+
+/// Validation context handed to templates: error helpers that know the source.
+pub struct Ctx<'a> {
+    pub file: Option<&'a Path>,
+    pub map: &'a SourceMap,
+    pub raw: &'a RawSpec,
+    pub base_dir: PathBuf,
+    used_priors: RefCell<BTreeSet<String>>,
+}
+
+fn value_str(v: &toml::Value) -> String {
+    match v {
+        toml::Value::String(s) => format!("\"{s}\""),
+        other => other.to_string(),
+    }
+}
+
+impl<'a> Ctx<'a> {
+    pub fn err(&self, path: &[Seg], msg: impl Into<String>) -> Error {
+        Error::input(
+            Location {
+                file: self.file.map(Path::to_path_buf),
+                line: self.map.line_of(path),
+                key: (!path.is_empty()).then(|| render(path)),
+            },
+            msg,
+        )
+    }
+
+    /// A finite number (integer or float).
+    pub fn num(&self, path: &[Seg], v: &toml::Value) -> Result<f64> {
+        let x = self.num_ext(path, v)?;
+        if !x.is_finite() {
+            return Err(self.err(path, format!("value {x} must be a finite number")));
+        }
+        Ok(x)
+    }
+
+    /// A number that may be ±inf (NaN is never accepted).
+    pub fn num_ext(&self, path: &[Seg], v: &toml::Value) -> Result<f64> {
+        let x = match v {
+            toml::Value::Integer(i) => *i as f64,
+            toml::Value::Float(f) => *f,
+            other => {
+                return Err(self.err(
+                    path,
+                    format!(
+                        "expected a number, found {} ({})",
+                        value_str(other),
+                        other.type_str()
+                    ),
+                ))
+            }
+        };
+        if x.is_nan() {
+            return Err(self.err(path, "value nan is not a number"));
+        }
+        Ok(x)
+    }
+
+    pub fn positive(&self, path: &[Seg], v: &toml::Value) -> Result<f64> {
+        let x = self.num(path, v)?;
+        if x <= 0.0 {
+            return Err(self.err(path, format!("value {x} must be > 0")));
+        }
+        Ok(x)
+    }
+
+    /// A non-negative integer.
+    pub fn count(&self, path: &[Seg], v: &toml::Value) -> Result<u64> {
+        match v {
+            toml::Value::Integer(i) if *i >= 0 => Ok(*i as u64),
+            other => Err(self.err(
+                path,
+                format!("expected a whole number ≥ 0, found {}", value_str(other)),
+            )),
+        }
+    }
+
+    pub fn string<'v>(&self, path: &[Seg], v: &'v toml::Value) -> Result<&'v str> {
+        v.as_str().ok_or_else(|| {
+            self.err(
+                path,
+                format!(
+                    "expected a string, found {} ({})",
+                    value_str(v),
+                    v.type_str()
+                ),
+            )
+        })
+    }
+
+    /// Reject keys outside `allowed`, suggesting the nearest.
+    pub fn check_keys(&self, path: &[Seg], table: &toml::Table, allowed: &[&str]) -> Result<()> {
+        for k in table.keys() {
+            if !allowed.contains(&k.as_str()) {
+                let mut p = path.to_vec();
+                p.push(key(k));
+                return Err(self
+                    .err(&p, format!("unknown key `{k}`"))
+                    .with_hint(choice_hint(k, allowed)));
+            }
+        }
+        Ok(())
+    }
+
+    /// The `[model]` table.
+    pub fn model(&self) -> &toml::Table {
+        static EMPTY: std::sync::OnceLock<toml::Table> = std::sync::OnceLock::new();
+        self.raw
+            .model
+            .as_ref()
+            .unwrap_or_else(|| EMPTY.get_or_init(toml::Table::new))
+    }
+
+    /// A hyperparameter: a number (fixed) or `{ fit = [lo, hi], start = x }` (free).
+    pub fn hyper_value(&self, path: &[Seg], v: &toml::Value) -> Result<HyperValue> {
+        match v {
+            toml::Value::Table(t) => {
+                self.check_keys(path, t, &["fit", "start"])?;
+                let mut fp = path.to_vec();
+                fp.push(key("fit"));
+                let b = t.get("fit").ok_or_else(|| {
+                    self.err(path, "a free hyperparameter needs `fit = [lower, upper]`")
+                        .with_hint(
+                            "write a number to fix it, or `{ fit = [lower, upper] }` to fit it",
+                        )
+                })?;
+                let arr = b.as_array().filter(|a| a.len() == 2).ok_or_else(|| {
+                    self.err(
+                        &fp,
+                        format!("expected [lower, upper], found {}", value_str(b)),
+                    )
+                })?;
+                let mut lp = fp.clone();
+                lp.push(Seg::Index(0));
+                let mut hp = fp.clone();
+                hp.push(Seg::Index(1));
+                let lo = self.num(&lp, &arr[0])?;
+                let hi = self.num(&hp, &arr[1])?;
+                if lo >= hi {
+                    return Err(self.err(
+                        &fp,
+                        format!("bounds [{lo}, {hi}]: the lower bound must be below the upper"),
+                    ));
+                }
+                let start = match t.get("start") {
+                    Some(s) => {
+                        let mut sp = path.to_vec();
+                        sp.push(key("start"));
+                        let x = self.num(&sp, s)?;
+                        if !(x > lo && x < hi) {
+                            return Err(self.err(
+                                &sp,
+                                format!(
+                                    "start {x} must lie strictly inside the bounds [{lo}, {hi}]"
+                                ),
+                            ));
+                        }
+                        Some(x)
+                    }
+                    None => None,
+                };
+                Ok(HyperValue::Free { lo, hi, start })
+            }
+            other => Ok(HyperValue::Fixed(self.num(path, other)?)),
+        }
+    }
+
+    /// Mark `[prior.name]` as used and return it, or a clear error when missing.
+    pub fn prior_table(&self, name: &str, example: &str) -> Result<&'a toml::Table> {
+        self.used_priors.borrow_mut().insert(name.to_string());
+        self.raw.prior.get(name).ok_or_else(|| {
+            self.err(
+                &[key("prior")],
+                format!("missing the prior table [prior.{name}]"),
+            )
+            .with_hint(format!("add\n  [prior.{name}]\n  {example}"))
+        })
+    }
+
+    pub fn has_prior(&self, name: &str) -> bool {
+        self.raw.prior.contains_key(name)
+    }
+
+    /// Covariate values of a named profile; "reference" means every covariate 0.
+    pub fn profile(&self, path: &[Seg], name: &str, covariates: &[String]) -> Result<Vec<f64>> {
+        if name == "reference" {
+            return Ok(vec![0.0; covariates.len()]);
+        }
+        let Some(t) = self.raw.profile.get(name) else {
+            let mut names: Vec<&str> = self.raw.profile.keys().map(String::as_str).collect();
+            names.push("reference");
+            return Err(self
+                .err(path, format!("unknown profile \"{name}\""))
+                .with_hint(choice_hint(name, &names)));
+        };
+        let ppath = [key("profile"), key(name)];
+        let allowed: Vec<&str> = covariates.iter().map(String::as_str).collect();
+        for k in t.keys() {
+            if !allowed.contains(&k.as_str()) {
+                let mut p = ppath.to_vec();
+                p.push(key(k));
+                let msg = if allowed.is_empty() {
+                    format!("profile \"{name}\" names covariate `{k}`, but the model declares no covariates")
+                } else {
+                    format!("profile \"{name}\" names covariate `{k}`, which the model does not declare")
+                };
+                return Err(self.err(&p, msg).with_hint(format!(
+                    "declare it in [model] covariates, or use one of: {}",
+                    if allowed.is_empty() {
+                        "(none)".to_string()
+                    } else {
+                        allowed.join(", ")
+                    }
+                )));
+            }
+        }
+        covariates
+            .iter()
+            .map(|c| match t.get(c) {
+                Some(v) => {
+                    let mut p = ppath.to_vec();
+                    p.push(key(c));
+                    self.num(&p, v)
+                }
+                None => Ok(0.0),
+            })
+            .collect()
+    }
+
+    /// Resolve a path relative to the belief file's folder.
+    pub fn resolve(&self, p: &str) -> PathBuf {
+        let pb = PathBuf::from(p);
+        if pb.is_absolute() {
+            pb
+        } else {
+            self.base_dir.join(pb)
+        }
+    }
+}
+
+/// Turn a toml/serde error into ours, with a "did you mean" for unknown keys.
+fn parse_error(file: Option<&Path>, e: toml::de::Error, text: &str) -> Error {
+    let msg = e.message().to_string();
+    let line = e
+        .span()
+        .map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
+    let mut hint = None;
+    // serde: "unknown field `x`, expected one of `a`, `b`" / "expected `a` or `b`"
+    if let Some(rest) = msg.strip_prefix("unknown field `") {
+        if let Some((bad, tail)) = rest.split_once('`') {
+            let valid: Vec<&str> = tail.split('`').skip(1).step_by(2).collect();
+            hint = Some(match nearest(bad, valid.iter().copied()) {
+                Some(n) => format!("did you mean `{n}`?"),
+                None => format!("valid keys: {}", valid.join(", ")),
+            });
+        }
+    }
+    let snippet = line
+        .and_then(|l| text.lines().nth(l - 1))
+        .map(|s| format!("\n  | {s}"))
+        .unwrap_or_default();
+    Error::Input {
+        loc: Location {
+            file: file.map(Path::to_path_buf),
+            line,
+            key: None,
+        },
+        msg: format!("{msg}{snippet}"),
+        hint,
+    }
+}
+
+/// Read and validate a belief file from disk.
+pub fn load(path: &Path, ov: &Overrides) -> Result<Spec> {
+    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    parse(&text, Some(path), ov)
+}
+
+/// Parse TOML text into a table (errors carry the line).
+pub fn parse_table(text: &str, file: Option<&Path>) -> Result<toml::Table> {
+    toml::from_str::<toml::Table>(text).map_err(|e| parse_error(file, e, text))
+}
+
+/// Validate belief-file text.
+pub fn parse(text: &str, file: Option<&Path>, ov: &Overrides) -> Result<Spec> {
+    let table = parse_table(text, file)?;
+    from_table(table, text, file, ov)
+}
+
+/// Validate an already-parsed table (`text` is used for line numbers and the digest).
+pub fn from_table(
+    table: toml::Table,
+    text: &str,
+    file: Option<&Path>,
+    ov: &Overrides,
+) -> Result<Spec> {
+    let raw: RawSpec =
+        toml::Value::Table(table.clone())
+            .try_into()
+            .map_err(|e: toml::de::Error| {
+                // Re-run on the text for a line number when the table came from it.
+                match toml::from_str::<RawSpec>(text) {
+                    Err(e2) => parse_error(file, e2, text),
+                    Ok(_) => parse_error(file, e, text),
+                }
+            })?;
+    let map = SourceMap::new(text);
+    let ctx = Ctx {
+        file,
+        map: &map,
+        raw: &raw,
+        base_dir: file
+            .and_then(Path::parent)
+            .map(Path::to_path_buf)
+            .unwrap_or_else(|| PathBuf::from(".")),
+        used_priors: RefCell::new(BTreeSet::new()),
+    };
+    let mut digest = sha2::Sha256::new();
+    digest.update(toml::to_string(&table).unwrap_or_default().as_bytes());
+    let digest = format!("{:x}", digest.finalize());
+
+    // [simulation]
+    let sim = raw.simulation.as_ref();
+    let sp = |k: &str| [key("simulation"), key(k)];
+    let mut draws = match sim.and_then(|s| s.draws.as_ref()) {
+        Some(v) => ctx.count(&sp("draws"), v)? as usize,
+        None => DEFAULT_DRAWS,
+    };
+    if let Some(d) = ov.draws {
+        draws = d;
+    }
+    let cap = ov.max_draws.unwrap_or(MAX_DRAWS);
+    if draws < 100 {
+        return Err(ctx
+            .err(
+                &sp("draws"),
+                format!("draws = {draws} is too few to judge a fit"),
+            )
+            .with_hint("use at least 100; 10,000–50,000 is typical"));
+    }
+    if draws > cap {
+        let mb = draws as f64 * 8.0 * 12.0 / 1e6;
+        return Err(ctx
+            .err(
+                &sp("draws"),
+                format!("draws = {draws} exceeds the limit of {cap} (about {mb:.0} MB of working memory)"),
+            )
+            .with_hint("lower it, or raise the limit deliberately with --max-draws"));
+    }
+    let seed = match (ov.seed, sim.and_then(|s| s.seed.as_ref())) {
+        (Some(s), _) => s,
+        (None, Some(v)) => ctx.count(&sp("seed"), v)?,
+        (None, None) => DEFAULT_SEED,
+    };
+
+    // [model]
+    let template = match ctx.model().get("template") {
+        Some(v) => ctx.string(&[key("model"), key("template")], v)?.to_string(),
+        None => {
+            return Err(ctx
+                .err(&[key("model")], "missing `template` in [model]")
+                .with_hint(format!(
+                    "valid templates: {}",
+                    templates::names().join(", ")
+                )))
+        }
+    };
+    let info = templates::find(&template).ok_or_else(|| {
+        ctx.err(
+            &[key("model"), key("template")],
+            format!("unknown template \"{template}\""),
+        )
+        .with_hint(choice_hint(&template, &templates::names()))
+    })?;
+    let model: Arc<dyn Model> = Arc::from((info.build)(&ctx)?);
+
+    // Every [prior.*] table must belong to a parameter of the template.
+    for name in raw.prior.keys() {
+        if !ctx.used_priors.borrow().contains(name) {
+            let used: Vec<String> = ctx.used_priors.borrow().iter().cloned().collect();
+            let used_ref: Vec<&str> = used.iter().map(String::as_str).collect();
+            return Err(ctx
+                .err(
+                    &[key("prior"), key(name)],
+                    format!("[prior.{name}] is not a parameter of template {template}"),
+                )
+                .with_hint(choice_hint(name, &used_ref)));
+        }
+    }
+
+    // [[belief]]
+    if raw.belief.is_empty() {
+        return Err(ctx
+            .err(&[], "no [[belief]] tables: nothing to match")
+            .with_hint(format!(
+                "add at least one, e.g.\n  [[belief]]\n  quantity = \"{}\"\n  distribution = {{ family = \"beta\", alpha = 2, beta = 5 }}",
+                info.quantities.first().map(|q| q.name).unwrap_or("…")
+            )));
+    }
+    let mut beliefs = Vec::new();
+    for (i, rb) in raw.belief.iter().enumerate() {
+        beliefs.push(belief::validate(&ctx, &*model, info, i, rb)?);
+    }
+
+    // [fit]
+    let f = raw.fit.as_ref();
+    let fp = |k: &str| [key("fit"), key(k)];
+    let discrepancy = match f.and_then(|f| f.discrepancy.as_deref()) {
+        Some(s) => Kind::parse(s).ok_or_else(|| {
+            ctx.err(&fp("discrepancy"), format!("unknown discrepancy \"{s}\""))
+                .with_hint(choice_hint(s, &Kind::NAMES))
+        })?,
+        None => Kind::CramerVonMises,
+    };
+    let starts = match f.and_then(|f| f.starts.as_ref()) {
+        Some(v) => {
+            let n = ctx.count(&fp("starts"), v)? as usize;
+            if !(1..=10_000).contains(&n) {
+                return Err(ctx.err(
+                    &fp("starts"),
+                    format!("starts = {n} must be between 1 and 10000"),
+                ));
+            }
+            n
+        }
+        None => 0,
+    };
+    let tolerance = match f.and_then(|f| f.tolerance.as_ref()) {
+        Some(v) => {
+            let t = ctx.positive(&fp("tolerance"), v)?;
+            if t >= 0.5 {
+                return Err(ctx.err(
+                    &fp("tolerance"),
+                    format!("tolerance {t} must be below 0.5 (it is a CDF gap)"),
+                ));
+            }
+            t
+        }
+        None => 0.02,
+    };
+    let tie_break = match f.and_then(|f| f.tie_break.as_ref()) {
+        Some(v) => {
+            let k = ctx.num(&fp("tie_break"), v)?;
+            if k < 0.0 {
+                return Err(ctx.err(&fp("tie_break"), format!("tie_break {k} must be ≥ 0")));
+            }
+            Some(k)
+        }
+        None => None,
+    };
+    let replicates = match f.and_then(|f| f.replicates.as_ref()) {
+        Some(v) => ctx.count(&fp("replicates"), v)? as usize,
+        None => 0,
+    };
+
+    Ok(Spec {
+        title: raw.title.clone().unwrap_or_else(|| "untitled".to_string()),
+        path: file.map(Path::to_path_buf),
+        digest,
+        model,
+        draws,
+        seed,
+        beliefs,
+        fit: FitOptions {
+            discrepancy,
+            starts,
+            tolerance,
+            tie_break,
+            replicates,
+        },
+    })
+}

@@ -1,0 +1,170 @@
+//! Model templates: parameters, their priors, a simulator and derived quantities.
+//!
+//! A template turns the `[model]` and `[prior.*]` tables into a [`Model`]: an
+//! ordered list of hyperparameters (fixed or free), a generator of base variates
+//! drawn once per fit (common random numbers), and a simulator mapping a full
+//! hyperparameter vector plus base variates to draws of each requested derived
+//! quantity. Templates never see the command line.
+//!
+//! To add a template: write `src/templates/<name>.rs` with a `pub static INFO:
+//! TemplateInfo` and a struct implementing [`Model`], a starter file
+//! `model-templates/<name>.toml`, and add one line to [`TEMPLATES`].
+
+pub mod mixture_cure;
+pub mod priors;
+
+use crate::dist::Support;
+use crate::error::Result;
+use crate::spec::raw::RawBelief;
+use crate::spec::{Ctx, Seg};
+use std::any::Any;
+
+pub use priors::{PriorSet, ScalarPrior};
+
+/// A hyperparameter's value in the belief file.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum HyperValue {
+    Fixed(f64),
+    Free {
+        lo: f64,
+        hi: f64,
+        start: Option<f64>,
+    },
+}
+
+/// One hyperparameter, named `<parameter>.<hyperparameter>` (e.g. `cure_logit.mean`).
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct Hyper {
+    pub name: String,
+    pub value: HyperValue,
+    /// Optimise on the log scale within the bounds (positive bounds spanning ≥ 100×).
+    pub log_scale: bool,
+}
+
+impl Hyper {
+    pub fn new(name: String, value: HyperValue) -> Self {
+        let log_scale =
+            matches!(value, HyperValue::Free { lo, hi, .. } if lo > 0.0 && hi / lo >= 100.0);
+        Self {
+            name,
+            value,
+            log_scale,
+        }
+    }
+    pub fn is_free(&self) -> bool {
+        matches!(self.value, HyperValue::Free { .. })
+    }
+    /// A representative value: the fixed value, the start, or the bounds' centre.
+    pub fn default_value(&self) -> f64 {
+        match self.value {
+            HyperValue::Fixed(v) => v,
+            HyperValue::Free { start: Some(s), .. } => s,
+            HyperValue::Free { lo, hi, .. } => {
+                if self.log_scale {
+                    (lo * hi).sqrt()
+                } else {
+                    0.5 * (lo + hi)
+                }
+            }
+        }
+    }
+}
+
+/// A validated request for draws of one derived quantity.
+#[derive(Debug, Clone)]
+pub struct Request {
+    pub quantity: String,
+    /// The template's own code for the quantity.
+    pub code: usize,
+    pub horizon: Option<f64>,
+    /// Resolved covariate vectors (one, or two for a contrast).
+    pub profiles: Vec<Vec<f64>>,
+    pub profile_names: Vec<String>,
+    pub support: Support,
+    /// Whether +∞ is a possible value (e.g. a median never reached).
+    pub allows_inf: bool,
+    pub label: String,
+    pub unit: Option<String>,
+}
+
+/// Catalogue entry for a derived quantity.
+#[derive(Debug, Clone, Copy, serde::Serialize)]
+pub struct QuantityInfo {
+    pub name: &'static str,
+    pub about: &'static str,
+    pub needs: &'static str,
+}
+
+/// Catalogue entry for a template.
+pub struct TemplateInfo {
+    pub name: &'static str,
+    pub about: &'static str,
+    /// Parameters and what they mean.
+    pub parameters: &'static [(&'static str, &'static str)],
+    pub quantities: &'static [QuantityInfo],
+    /// Keys of the `[model]` table and what they mean.
+    pub options: &'static [(&'static str, &'static str)],
+    /// Commented starter file (compiled in).
+    pub starter: &'static str,
+    pub build: fn(&Ctx) -> Result<Box<dyn Model>>,
+}
+
+impl TemplateInfo {
+    pub fn quantity_names(&self) -> Vec<&'static str> {
+        self.quantities.iter().map(|q| q.name).collect()
+    }
+}
+
+/// Base variates drawn once per fit. `cols` holds one column per source of
+/// randomness; `extra` lets a template cache λ-independent work.
+pub struct BaseDraws {
+    pub n: usize,
+    pub cols: Vec<Vec<f64>>,
+    pub extra: Option<Box<dyn Any + Send + Sync>>,
+}
+
+/// A prior statement for reports and code export: parameter, family, values.
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct PriorStatement {
+    pub parameter: String,
+    pub family: String,
+    pub params: Vec<(String, f64)>,
+    pub about: String,
+}
+
+/// A template instantiated from a belief file.
+pub trait Model: Send + Sync {
+    fn template(&self) -> &'static str;
+    /// All hyperparameters, fixed and free, in a fixed order.
+    fn hypers(&self) -> &[Hyper];
+    /// Validate a belief's quantity and its options (horizon, profile …).
+    fn request(&self, ctx: &Ctx, path: &[Seg], quantity: &str, raw: &RawBelief) -> Result<Request>;
+    /// Base variates for `n` draws from `seed`, stream block `block`.
+    fn draw_base(&self, n: usize, seed: u64, block: u64) -> BaseDraws;
+    /// Draws of each requested quantity at hyperparameters `h` (full vector).
+    /// `out[r]` has length `base.n` on return.
+    fn simulate(
+        &self,
+        h: &[f64],
+        base: &BaseDraws,
+        reqs: &[&Request],
+        out: &mut [Vec<f64>],
+    ) -> Result<()>;
+    /// The prior at hyperparameters `h`, one statement per parameter.
+    fn priors(&self, h: &[f64]) -> Vec<PriorStatement>;
+    /// Mean log standard deviation of the prior's components at `h` (the spread
+    /// the tie-breaking objective rewards; DESIGN.md §4).
+    fn spread(&self, h: &[f64]) -> f64;
+}
+
+/// All templates. Adding a template adds one line here.
+pub static TEMPLATES: &[&TemplateInfo] = &[&mixture_cure::INFO];
+
+pub fn find(name: &str) -> Option<&'static TemplateInfo> {
+    TEMPLATES.iter().copied().find(|t| t.name == name)
+}
+
+pub fn names() -> Vec<&'static str> {
+    TEMPLATES.iter().map(|t| t.name).collect()
+}
