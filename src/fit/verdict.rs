@@ -142,7 +142,7 @@ pub fn judge(
     let how = if verdict == Verdict::MetWithinNoise {
         Vec::new()
     } else {
-        describe(b, &believed, &implied, &atoms)
+        describe(b, &believed, &implied, &atoms, sorted_fresh)
     };
     BeliefReport {
         label: b.label.clone(),
@@ -168,7 +168,7 @@ pub fn judge(
 }
 
 /// How the implied distribution misses the belief, in words.
-pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomCheck]) -> Vec<String> {
+pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomCheck], sorted: &[f64]) -> Vec<String> {
     let scale = Scale::for_support(b.request.support);
     let g = |x: f64| {
         let (lo, hi) = scale.domain();
@@ -179,6 +179,21 @@ pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomChec
         }
     };
     let mut out = Vec::new();
+    // Implied mass where the belief puts none (outside a bounded support).
+    if let Some(c) = &b.target.dist.cont {
+        let (lo, hi) = c.support();
+        let n = sorted.len() as f64;
+        let below = sorted.iter().take_while(|v| **v < lo).count() as f64 / n;
+        let above = sorted.iter().rev().take_while(|v| **v > hi && b.target.dist.atom_at(**v).is_none()).count() as f64 / n;
+        if below + above > 0.01 {
+            out.push(format!(
+                "{:.1} % of implied draws fall outside the believed range [{}, {}]",
+                100.0 * (below + above),
+                fmt_num(lo),
+                fmt_num(hi)
+            ));
+        }
+    }
     for a in atoms {
         let gap = a.implied - a.believed;
         if gap.abs() > 0.02 + 0.25 * a.believed {

@@ -83,24 +83,51 @@ pub fn fmt_csv(x: f64) -> String {
     }
 }
 
+/// Write a set of files into place all together: every file goes to a temporary
+/// sibling first; only when all are complete are they renamed. On any failure the
+/// temporaries are removed and no file of the set is replaced.
+pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
+    let mut tmps: Vec<PathBuf> = Vec::new();
+    let cleanup = |tmps: &[PathBuf]| {
+        for t in tmps {
+            let _ = std::fs::remove_file(t);
+        }
+    };
+    for (path, bytes) in files {
+        let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+        let name = path.file_name().map(|s| s.to_string_lossy().to_string()).unwrap_or_default();
+        let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+        let res = (|| {
+            let mut f = std::fs::File::create(&tmp)?;
+            f.write_all(bytes)?;
+            f.sync_all()
+        })();
+        tmps.push(tmp);
+        if let Err(e) = res {
+            cleanup(&tmps);
+            return Err(Error::io(path, e));
+        }
+    }
+    for ((path, _), tmp) in files.iter().zip(&tmps) {
+        if let Err(e) = std::fs::rename(tmp, path) {
+            cleanup(&tmps);
+            return Err(Error::io(path, e));
+        }
+    }
+    Ok(())
+}
+
 /// Write every output of a fit into `dir`; returns the paths written.
 pub fn write_fit(dir: &Path, r: &FitResult) -> Result<Vec<PathBuf>> {
     ensure_dir(dir)?;
     // Render everything first, so an error leaves no file behind.
-    let json = fit_json(r)?;
-    let summary = summary::render(r);
-    let draws = draws_csv(r)?;
-    let files = [
-        (dir.join("fit.json"), json.into_bytes()),
-        (dir.join("summary.txt"), summary.into_bytes()),
-        (dir.join("draws.csv"), draws),
+    let files = vec![
+        (dir.join("fit.json"), fit_json(r)?.into_bytes()),
+        (dir.join("summary.txt"), summary::render(r).into_bytes()),
+        (dir.join("draws.csv"), draws_csv(r)?),
     ];
-    let mut out = Vec::new();
-    for (p, b) in files {
-        write_atomic(&p, &b)?;
-        out.push(p);
-    }
-    Ok(out)
+    write_all_atomic(&files)?;
+    Ok(files.into_iter().map(|f| f.0).collect())
 }
 
 #[cfg(test)]
