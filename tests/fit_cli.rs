@@ -9,16 +9,45 @@ fn readme_example_fits_reproducibly_on_one_or_two_threads() {
     let spec = write(d.path(), "rfs.toml", EXAMPLE);
     let o1 = d.path().join("a");
     let o2 = d.path().join("b");
-    let r1 = run(&["--threads", "1", "--quiet", "fit", spec.to_str().unwrap(), "--out", o1.to_str().unwrap()]);
+    let r1 = run(&[
+        "--threads",
+        "1",
+        "--quiet",
+        "fit",
+        spec.to_str().unwrap(),
+        "--out",
+        o1.to_str().unwrap(),
+    ]);
     assert!(r1.status.success(), "{}", stderr(&r1));
-    let r2 = run(&["--threads", "2", "--quiet", "fit", spec.to_str().unwrap(), "--out", o2.to_str().unwrap()]);
+    let r2 = run(&[
+        "--threads",
+        "2",
+        "--quiet",
+        "fit",
+        spec.to_str().unwrap(),
+        "--out",
+        o2.to_str().unwrap(),
+    ]);
     assert!(r2.status.success(), "{}", stderr(&r2));
     let (j1, j2) = (json(&o1.join("fit.json")), json(&o2.join("fit.json")));
-    assert_eq!(j1["hyperparameters"], j2["hyperparameters"], "same seed, different thread count");
+    assert_eq!(
+        j1["hyperparameters"], j2["hyperparameters"],
+        "same seed, different thread count"
+    );
     assert_eq!(j1["beliefs"], j2["beliefs"]);
-    assert_eq!(std::fs::read(o1.join("draws.csv")).unwrap(), std::fs::read(o2.join("draws.csv")).unwrap());
+    assert_eq!(
+        std::fs::read(o1.join("draws.csv")).unwrap(),
+        std::fs::read(o2.join("draws.csv")).unwrap()
+    );
     // Keys documented in the README.
-    for k in ["cure_logit.mean", "cure_logit.sd", "log_scale.mean", "log_scale.sd", "shape.meanlog", "shape.sdlog"] {
+    for k in [
+        "cure_logit.mean",
+        "cure_logit.sd",
+        "log_scale.mean",
+        "log_scale.sd",
+        "shape.meanlog",
+        "shape.sdlog",
+    ] {
         assert!(j1["hyperparameters"][k].is_number(), "missing {k}");
     }
     assert_eq!(j1["hyperparameters"]["shape.sdlog"], 0.25);
@@ -41,8 +70,26 @@ fn a_different_seed_gives_different_but_close_hyperparameters() {
     let spec = write(d.path(), "rfs.toml", EXAMPLE);
     let a = d.path().join("a");
     let b = d.path().join("b");
-    assert!(run(&["-q", "fit", spec.to_str().unwrap(), "--out", a.to_str().unwrap()]).status.success());
-    assert!(run(&["-q", "fit", spec.to_str().unwrap(), "--seed", "12", "--out", b.to_str().unwrap()]).status.success());
+    assert!(run(&[
+        "-q",
+        "fit",
+        spec.to_str().unwrap(),
+        "--out",
+        a.to_str().unwrap()
+    ])
+    .status
+    .success());
+    assert!(run(&[
+        "-q",
+        "fit",
+        spec.to_str().unwrap(),
+        "--seed",
+        "12",
+        "--out",
+        b.to_str().unwrap()
+    ])
+    .status
+    .success());
     let (ja, jb) = (json(&a.join("fit.json")), json(&b.join("fit.json")));
     assert_ne!(ja["hyperparameters"], jb["hyperparameters"]);
     let ma = ja["hyperparameters"]["cure_logit.mean"].as_f64().unwrap();
@@ -84,7 +131,13 @@ distribution = { family = "logit-normal", mu = -1.2, sigma = 0.4 }
 "#,
     );
     let out = d.path().join("o");
-    let r = run(&["-q", "fit", spec.to_str().unwrap(), "--out", out.to_str().unwrap()]);
+    let r = run(&[
+        "-q",
+        "fit",
+        spec.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
     assert!(r.status.success(), "{}", stderr(&r));
     let j = json(&out.join("fit.json"));
     let m = j["hyperparameters"]["cure_logit.mean"].as_f64().unwrap();
@@ -103,7 +156,15 @@ distribution = { family = "logit-normal", mu = -1.2, sigma = 0.4 }
 fn simulate_reports_implied_quantities() {
     let d = tempfile::tempdir().unwrap();
     let spec = write(d.path(), "rfs.toml", EXAMPLE);
-    let r = run(&["simulate", spec.to_str().unwrap(), "--set", "cure_logit.mean=-1.2", "--set", "cure_logit.sd=0.4", "--json"]);
+    let r = run(&[
+        "simulate",
+        spec.to_str().unwrap(),
+        "--set",
+        "cure_logit.mean=-1.2",
+        "--set",
+        "cure_logit.sd=0.4",
+        "--json",
+    ]);
     assert!(r.status.success(), "{}", stderr(&r));
     let v: serde_json::Value = serde_json::from_str(&stdout(&r)).unwrap();
     assert_eq!(v["hyperparameters"]["cure_logit.mean"], -1.2);
@@ -112,9 +173,19 @@ fn simulate_reports_implied_quantities() {
     // sampling error of a median from 20,000 draws is ≈ 0.0013.
     let med = q["quantiles"][3].as_f64().unwrap();
     assert!((med - 1.0 / (1.0 + 1.2f64.exp())).abs() < 0.006, "{med}");
-    let bad = run(&["simulate", spec.to_str().unwrap(), "--set", "cure_logit.sd=-1"]);
+    let bad = run(&[
+        "simulate",
+        spec.to_str().unwrap(),
+        "--set",
+        "cure_logit.sd=-1",
+    ]);
     assert_eq!(bad.status.code(), Some(3), "{}", stderr(&bad));
-    let bad = run(&["simulate", spec.to_str().unwrap(), "--set", "cure_logit.sdd=1"]);
+    let bad = run(&[
+        "simulate",
+        spec.to_str().unwrap(),
+        "--set",
+        "cure_logit.sdd=1",
+    ]);
     assert!(!bad.status.success());
     assert!(stderr(&bad).contains("cure_logit.sd"), "{}", stderr(&bad));
 }

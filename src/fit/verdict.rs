@@ -168,7 +168,13 @@ pub fn judge(
 }
 
 /// How the implied distribution misses the belief, in words.
-pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomCheck], sorted: &[f64]) -> Vec<String> {
+pub fn describe(
+    b: &Belief,
+    believed: &[f64],
+    implied: &[f64],
+    atoms: &[AtomCheck],
+    sorted: &[f64],
+) -> Vec<String> {
     let scale = Scale::for_support(b.request.support);
     let g = |x: f64| {
         let (lo, hi) = scale.domain();
@@ -184,7 +190,12 @@ pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomChec
         let (lo, hi) = c.support();
         let n = sorted.len() as f64;
         let below = sorted.iter().take_while(|v| **v < lo).count() as f64 / n;
-        let above = sorted.iter().rev().take_while(|v| **v > hi && b.target.dist.atom_at(**v).is_none()).count() as f64 / n;
+        let above = sorted
+            .iter()
+            .rev()
+            .take_while(|v| **v > hi && b.target.dist.atom_at(**v).is_none())
+            .count() as f64
+            / n;
         if below + above > 0.01 {
             out.push(format!(
                 "{:.1} % of implied draws fall outside the believed range [{}, {}]",
@@ -235,6 +246,25 @@ pub fn describe(b: &Belief, believed: &[f64], implied: &[f64], atoms: &[AtomChec
                 out.push(format!(
                     "too narrow: implied 10–90 % range is {ratio:.2}× the believed"
                 ));
+            } else {
+                // Central width right: look at each tail (5 % → median, median → 95 %).
+                for (k, side, level) in [(0usize, "lower", "5 %"), (6usize, "upper", "95 %")] {
+                    if let (Some(bt), Some(it)) = (g(believed[k]), g(implied[k])) {
+                        let r = (it - im).abs() / (bt - bm).abs().max(1e-300);
+                        let word = if r > 1.25 {
+                            "long"
+                        } else if r < 0.8 {
+                            "short"
+                        } else {
+                            continue;
+                        };
+                        out.push(format!(
+                            "{side} tail too {word}: implied {level} quantile {} vs believed {}",
+                            fmt_num(implied[k]),
+                            fmt_num(believed[k])
+                        ));
+                    }
+                }
             }
         }
     }

@@ -94,8 +94,14 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
         }
     };
     for (path, bytes) in files {
-        let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-        let name = path.file_name().map(|s| s.to_string_lossy().to_string()).unwrap_or_default();
+        let dir = path
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let name = path
+            .file_name()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_default();
         let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
         let res = (|| {
             let mut f = std::fs::File::create(&tmp)?;
