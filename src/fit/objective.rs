@@ -161,7 +161,7 @@ impl<'a> Objective<'a> {
                     p.0 = q[p.1 as usize];
                 }
                 if !pairs.is_sorted_by(|a, b| a.0 <= b.0) {
-                    pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
+                    pairs.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
                 }
                 let s = &mut ws.sorted[r];
                 s.clear();

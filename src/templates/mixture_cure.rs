@@ -123,50 +123,68 @@ pub enum Latency {
 const LATENCIES: [&str; 4] = ["weibull", "exponential", "lognormal", "loglogistic"];
 
 impl Latency {
-    /// S_u(t) for scale λ and shape k.
+    /// S_u(t) for log-scale ls = ln λ and shape k. Everything is computed from
+    /// z = k·(ln t − ln λ): one exp or erfc per call, no `powf`.
     #[inline]
-    pub fn surv(&self, t: f64, lambda: f64, k: f64) -> f64 {
+    pub fn surv(&self, t: f64, ls: f64, k: f64) -> f64 {
         if t <= 0.0 {
             return 1.0;
         }
+        self.surv_log(t.ln(), ls, k)
+    }
+
+    /// S_u at ln t (hoists the logarithm out of loops over draws).
+    #[inline]
+    pub fn surv_log(&self, lt: f64, ls: f64, k: f64) -> f64 {
+        let z = k * (lt - ls);
         match self {
-            Latency::Weibull => (-(t / lambda).powf(k)).exp(),
-            Latency::Exponential => (-t / lambda).exp(),
-            Latency::LogNormal => norm_cdf(-k * (t / lambda).ln()),
-            Latency::LogLogistic => 1.0 / (1.0 + (t / lambda).powf(k)),
+            Latency::Weibull | Latency::Exponential => (-z.exp()).exp(),
+            Latency::LogNormal => norm_cdf(-z),
+            Latency::LogLogistic => 1.0 / (1.0 + z.exp()),
         }
     }
 
-    /// The time at which S_u falls to s ∈ (0, 1).
+    /// ln of the time at which S_u falls to s ∈ (0, 1): ln λ + w(s)/k with
+    /// w = ln(−ln s) (Weibull), Φ⁻¹(1 − s) (log-normal), ln((1 − s)/s) (log-logistic).
     #[inline]
-    pub fn surv_inv(&self, s: f64, lambda: f64, k: f64) -> f64 {
-        match self {
-            Latency::Weibull => lambda * (-s.ln()).powf(1.0 / k),
-            Latency::Exponential => -lambda * s.ln(),
-            Latency::LogNormal => lambda * (norm_quantile(1.0 - s) / k).exp(),
-            Latency::LogLogistic => lambda * ((1.0 - s) / s).powf(1.0 / k),
-        }
+    pub fn log_surv_inv(&self, s: f64, ls: f64, k: f64) -> f64 {
+        let w = match self {
+            Latency::Weibull | Latency::Exponential => (-s.ln()).ln(),
+            Latency::LogNormal => norm_quantile(1.0 - s),
+            Latency::LogLogistic => ((1.0 - s) / s).ln(),
+        };
+        ls + w / k
+    }
+
+    /// The time at which S_u falls to s.
+    #[inline]
+    pub fn surv_inv(&self, s: f64, ls: f64, k: f64) -> f64 {
+        self.log_surv_inv(s, ls, k).exp()
     }
 
     /// ∫₀ʰ S_u(t) dt.
-    pub fn integral(&self, h: f64, lambda: f64, k: f64, gl: &(Vec<f64>, Vec<f64>)) -> f64 {
+    pub fn integral(&self, h: f64, ls: f64, k: f64, gl: &(Vec<f64>, Vec<f64>)) -> f64 {
+        let lambda = ls.exp();
         match self {
             Latency::Exponential => lambda * -(-h / lambda).exp_m1(),
             Latency::Weibull => {
                 let a = 1.0 / k;
-                lambda * ln_gamma(1.0 + a).exp() * gamma_p(a, (h / lambda).powf(k))
+                lambda * ln_gamma(1.0 + a).exp() * gamma_p(a, (k * (h.ln() - ls)).exp())
             }
             _ => {
                 let (x, w) = gl;
                 let mut s = 0.0;
                 for (xi, wi) in x.iter().zip(w) {
-                    s += wi * self.surv(0.5 * h * (xi + 1.0), lambda, k);
+                    s += wi * self.surv(0.5 * h * (xi + 1.0), ls, k);
                 }
                 0.5 * h * s
             }
         }
     }
 }
+
+/// ln(−ln ½) and the other latencies' w(½) = 0, for the median of the uncured.
+const LN_LN2: f64 = -0.366_512_920_581_664_3;
 
 const CURE: usize = 0;
 const SURV: usize = 1;
@@ -325,12 +343,15 @@ fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
     }))
 }
 
+type ProfileCache = Vec<(Vec<f64>, Vec<f64>, Vec<f64>)>;
+
 thread_local! {
-    static SCRATCH: RefCell<Vec<Vec<f64>>> = const { RefCell::new(Vec::new()) };
+    /// Parameter draws and per-profile (covariates, π, ln λ) of the current evaluation.
+    static SCRATCH: RefCell<(Vec<Vec<f64>>, ProfileCache)> = const { RefCell::new((Vec::new(), Vec::new())) };
 }
 
 impl MixtureCure {
-    /// π, λ and k of draw i at covariates x, from parameter draws `p`.
+    /// π, ln λ and k of draw i at covariates x, from parameter draws `p`.
     #[inline]
     fn at(&self, p: &[Vec<f64>], i: usize, x: &[f64]) -> (f64, f64, f64) {
         let pi = match self.cure {
@@ -352,24 +373,30 @@ impl MixtureCure {
             }
         }
         let k = self.shape.map_or(1.0, |s| p[s][i]);
-        (pi, ls.exp(), k)
+        (pi, ls, k)
     }
 
-    fn value(&self, code: usize, pi: f64, lambda: f64, k: f64, h: f64) -> f64 {
+    /// Quantity `code` of one draw; `lh` = ln h.
+    #[allow(clippy::too_many_arguments)]
+    #[inline]
+    fn value(&self, code: usize, pi: f64, ls: f64, k: f64, h: f64, lh: f64) -> f64 {
         let lat = self.latency;
         match code {
             CURE => pi,
-            SURV => pi + (1.0 - pi) * lat.surv(h, lambda, k),
-            EVENT => (1.0 - pi) * (1.0 - lat.surv(h, lambda, k)),
+            SURV => pi + (1.0 - pi) * lat.surv_log(lh, ls, k),
+            EVENT => (1.0 - pi) * (1.0 - lat.surv_log(lh, ls, k)),
             MEDIAN => {
                 if pi >= 0.5 {
                     f64::INFINITY
                 } else {
-                    lat.surv_inv((0.5 - pi) / (1.0 - pi), lambda, k)
+                    lat.surv_inv((0.5 - pi) / (1.0 - pi), ls, k)
                 }
             }
-            MEDIAN_U => lat.surv_inv(0.5, lambda, k),
-            RMST => pi * h + (1.0 - pi) * lat.integral(h, lambda, k, &self.gl),
+            MEDIAN_U => match lat {
+                Latency::Weibull | Latency::Exponential => (ls + LN_LN2 / k).exp(),
+                _ => ls.exp(),
+            },
+            RMST => pi * h + (1.0 - pi) * lat.integral(h, ls, k, &self.gl),
             _ => f64::NAN,
         }
     }
@@ -512,22 +539,51 @@ impl Model for MixtureCure {
         out: &mut [Vec<f64>],
     ) -> Result<()> {
         SCRATCH.with(|s| {
-            let mut p = s.borrow_mut();
+            let mut s = s.borrow_mut();
+            let (p, cache) = &mut *s;
             p.resize(self.priors.priors.len(), Vec::new());
-            self.priors.fill(h, &base.cols, &mut p)?;
+            self.priors.fill(h, &base.cols, p)?;
+            // π and ln λ once per distinct profile, shared by every request there.
+            cache.clear();
+            let mut profile_of = |x: &Vec<f64>,
+                                  cache: &mut Vec<(Vec<f64>, Vec<f64>, Vec<f64>)>|
+             -> usize {
+                if let Some(j) = cache.iter().position(|c| &c.0 == x) {
+                    return j;
+                }
+                let (mut pis, mut lss) = (Vec::with_capacity(base.n), Vec::with_capacity(base.n));
+                for i in 0..base.n {
+                    let (pi, ls, _) = self.at(p, i, x);
+                    pis.push(pi);
+                    lss.push(ls);
+                }
+                cache.push((x.clone(), pis, lss));
+                cache.len() - 1
+            };
             for (r, o) in reqs.iter().zip(out.iter_mut()) {
                 o.resize(base.n, 0.0);
-                let x = &r.profiles[0];
-                let hz = r.horizon.unwrap_or(0.0);
+                let j = profile_of(&r.profiles[0], cache);
                 if r.code == CURE_DIFF {
-                    let x2 = &r.profiles[1];
+                    let j2 = profile_of(&r.profiles[1], cache);
+                    let (a, b) = (&cache[j].1, &cache[j2].1);
                     for (i, v) in o.iter_mut().enumerate() {
-                        *v = self.at(&p, i, x).0 - self.at(&p, i, x2).0;
+                        *v = a[i] - b[i];
                     }
                 } else {
-                    for (i, v) in o.iter_mut().enumerate() {
-                        let (pi, lambda, k) = self.at(&p, i, x);
-                        *v = self.value(r.code, pi, lambda, k, hz);
+                    let hz = r.horizon.unwrap_or(1.0);
+                    let lh = hz.ln();
+                    let (pis, lss) = (&cache[j].1, &cache[j].2);
+                    match self.shape {
+                        Some(s) => {
+                            for (i, v) in o.iter_mut().enumerate() {
+                                *v = self.value(r.code, pis[i], lss[i], p[s][i], hz, lh);
+                            }
+                        }
+                        None => {
+                            for (i, v) in o.iter_mut().enumerate() {
+                                *v = self.value(r.code, pis[i], lss[i], 1.0, hz, lh);
+                            }
+                        }
                     }
                 }
             }
@@ -557,10 +613,15 @@ mod tests {
     #[test]
     fn latency_medians_and_integrals() {
         // Weibull median λ(ln 2)^(1/k): k = 1.5, λ = 2 → 1.56644 (issue 2).
-        assert!((Latency::Weibull.surv_inv(0.5, 2.0, 1.5) - 1.56644).abs() < 5e-6);
+        assert!((Latency::Weibull.surv_inv(0.5, 2f64.ln(), 1.5) - 1.56644).abs() < 5e-6);
         // Log-logistic and log-normal medians equal the scale.
-        assert!((Latency::LogLogistic.surv_inv(0.5, 7.0, 2.3) - 7.0).abs() < 1e-12);
-        assert!((Latency::LogNormal.surv_inv(0.5, 7.0, 2.3) - 7.0).abs() < 1e-12);
+        assert!((Latency::LogLogistic.surv_inv(0.5, 7f64.ln(), 2.3) - 7.0).abs() < 1e-12);
+        assert!((Latency::LogNormal.surv_inv(0.5, 7f64.ln(), 2.3) - 7.0).abs() < 1e-12);
+        assert!(
+            (Latency::Weibull.surv_inv(0.5, 2f64.ln(), 1.5) - (2f64.ln() + LN_LN2 / 1.5).exp())
+                .abs()
+                < 1e-12
+        );
         // ∫₀ʰ S_u: closed forms against composite quadrature.
         let gl = crate::numerics::gauss_legendre(32);
         for lat in [
@@ -569,12 +630,34 @@ mod tests {
             Latency::LogNormal,
             Latency::LogLogistic,
         ] {
-            let (h, lam, k) = (30.0, 12.0, 1.4);
+            let (h, lam) = (30.0, 12.0);
+            let k = if lat == Latency::Exponential {
+                1.0
+            } else {
+                1.4
+            };
             let q = crate::numerics::integrate(|t| lat.surv(t, lam, k), 0.0, h, 200, 8);
             assert!(
                 (lat.integral(h, lam, k, &gl) - q).abs() < 1e-6 * q,
                 "{lat:?}"
             );
         }
+    }
+
+    #[test]
+    fn exponential_with_gamma_rate_is_lomax() {
+        // Rate ~ Gamma(a, b) makes P(T > t) = (b/(b + t))^a (Lomax; e.g. Klein &
+        // Moeschberger, Survival Analysis, §2.5): a = 2, b = 3, t = 1 → 0.5625 (issue 2).
+        use crate::dist::Continuous;
+        let g = crate::dist::gamma::Gamma::new(2.0, 3.0).unwrap();
+        let u = crate::rng::uniforms(8, 0, 200_000);
+        let s: Vec<f64> = u
+            .iter()
+            .map(|u| Latency::Exponential.surv(1.0, -g.quantile(*u).ln(), 1.0))
+            .collect();
+        let n = s.len() as f64;
+        let m = s.iter().sum::<f64>() / n;
+        let sd = (s.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
+        assert!((m - 0.5625).abs() < 4.0 * sd / n.sqrt(), "{m}");
     }
 }

@@ -1,0 +1,55 @@
+//! Benchmarks of the hot path: one objective evaluation of the README example
+//! (mixture-cure, 3 beliefs, 20,000 draws) and a whole fit of each demo scenario.
+//! Run: `cargo bench --bench objective`. Figures: BENCHMARKS.md.
+
+use criterion::{criterion_group, criterion_main, Criterion, Throughput};
+use priorsmith::fit::objective::Objective;
+use priorsmith::spec::{parse, Overrides};
+use std::hint::black_box;
+
+const EXAMPLE: &str = include_str!("../model-templates/mixture-cure.toml");
+
+fn objective(c: &mut Criterion) {
+    let spec = parse(EXAMPLE, None, &Overrides::default()).expect("example parses");
+    let obj = Objective::new(&spec, spec.draws, spec.seed, 0, spec.fit.discrepancy);
+    let eta0 = obj.eta(&obj.full0);
+    let mut g = c.benchmark_group("objective");
+    g.throughput(Throughput::Elements(spec.draws as u64));
+    // Nearby points, as inside a local search (order reuse applies).
+    let mut k = 0u64;
+    g.bench_function("mixture-cure 3 beliefs 20k draws", |b| {
+        b.iter(|| {
+            k += 1;
+            let eta: Vec<f64> = eta0.iter().map(|e| e + 1e-3 * ((k % 7) as f64)).collect();
+            black_box(obj.cost(&eta))
+        })
+    });
+    // Far-apart points (global stage): full re-sorts.
+    g.bench_function("mixture-cure 3 beliefs 20k draws, random points", |b| {
+        b.iter(|| {
+            k += 1;
+            let eta: Vec<f64> = eta0
+                .iter()
+                .enumerate()
+                .map(|(i, e)| e + (((k * 31 + i as u64 * 17) % 13) as f64 - 6.0) * 0.3)
+                .collect();
+            black_box(obj.cost(&eta))
+        })
+    });
+    g.finish();
+}
+
+fn whole_fits(c: &mut Criterion) {
+    let mut g = c.benchmark_group("fit");
+    g.sample_size(10);
+    for s in priorsmith::demo::SCENARIOS {
+        let spec = parse(s.text, None, &Overrides::default()).expect("demo parses");
+        g.bench_function(s.name, |b| {
+            b.iter(|| black_box(priorsmith::fit::fit(&spec, None).expect("fit runs")))
+        });
+    }
+    g.finish();
+}
+
+criterion_group!(benches, objective, whole_fits);
+criterion_main!(benches);
