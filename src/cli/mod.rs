@@ -65,6 +65,9 @@ pub enum Command {
         /// Output folder.
         #[arg(long, short, default_value = "priorsmith-out")]
         out: PathBuf,
+        /// Refit from K independent seeds and report the spread of every hyperparameter.
+        #[arg(long, value_name = "K")]
+        replicates: Option<usize>,
     },
     /// Show what the hyperparameters imply (free ones at their start or bounds' centre, or --set).
     Simulate {
@@ -143,7 +146,11 @@ pub fn run(cli: Cli) -> Result<()> {
     }
     let quiet = cli.quiet;
     match cli.command {
-        Command::Fit { spec, out } => cmd_fit(&spec, &out, quiet),
+        Command::Fit {
+            spec,
+            out,
+            replicates,
+        } => cmd_fit(&spec, &out, replicates, quiet),
         Command::Simulate { spec, set, json } => cmd_simulate(&spec, &set, json),
         Command::Check { spec } => cmd_check(&spec, quiet),
         Command::Templates { name } => cmd_templates(name.as_deref()),
@@ -194,8 +201,14 @@ pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitRes
     Ok(r)
 }
 
-fn cmd_fit(a: &SpecArgs, out: &Path, quiet: bool) -> Result<()> {
-    let spec = load(a)?;
+fn cmd_fit(a: &SpecArgs, out: &Path, replicates: Option<usize>, quiet: bool) -> Result<()> {
+    let mut spec = load(a)?;
+    if let Some(k) = replicates {
+        if !(2..=100).contains(&k) {
+            anyhow::bail!("--replicates {k}: use between 2 and 100 seeds");
+        }
+        spec.fit.replicates = k;
+    }
     let r = fit_and_write(&spec, out, quiet)?;
     if !quiet {
         print!("{}", output::summary::render(&r));

@@ -8,7 +8,10 @@
 //! its start, and results are reduced in start order, so the fit is the same on
 //! any number of threads.
 
+pub mod diagnostics;
 pub mod objective;
+pub mod pareto;
+pub mod replicate;
 pub mod simplex;
 pub mod verdict;
 
@@ -71,6 +74,14 @@ pub struct FitResult {
     pub wall_time_s: f64,
     pub prior: Vec<crate::templates::PriorStatement>,
     pub tool_version: String,
+    /// Curvature analysis at the optimum: which hyperparameters the beliefs leave undetermined.
+    pub identifiability: diagnostics::Identifiability,
+    /// What the tie-break did: "off", "kappa", "widest" or "knee".
+    pub tie_break: String,
+    /// The Pareto front between discrepancy and spread, when traced.
+    pub pareto: Option<pareto::Front>,
+    /// Spread of the fitted hyperparameters across independent seeds, when asked.
+    pub replicates: Option<replicate::Replicates>,
     /// Fresh draws of each belief's quantity at the fitted prior (not serialised).
     #[serde(skip)]
     pub draws_fresh: Vec<Vec<f64>>,
@@ -128,7 +139,6 @@ pub fn optimise(
     let nc = n.min((n / 5).max(2000));
     let mut coarse = Objective::new(spec, nc, spec.seed, rng::FIT_STREAMS, kind);
     coarse.kappa = kappa * coarse.floor();
-    let hy = spec.hypers();
 
     // Global stage: the default point, a warm start if given, then a Latin hypercube.
     let k = if spec.fit.starts > 0 {
@@ -239,7 +249,6 @@ pub fn optimise(
         .min_by(|a, b| a.1.f.total_cmp(&b.1.f).then(a.0.cmp(&b.0)))
         .map(|(_, r)| r.x.clone())
         .ok_or_else(|| Error::Numeric("no local search finished".into()))?;
-    let _ = hy;
     Ok((
         full_obj.full(&best),
         OptimiserRecord {
@@ -251,13 +260,79 @@ pub fn optimise(
     ))
 }
 
+/// What a single fit produces before judgement.
+pub struct Point {
+    pub h: Vec<f64>,
+    pub opt: OptimiserRecord,
+    pub ident: diagnostics::Identifiability,
+    pub front: Option<pareto::Front>,
+    pub tie_break: String,
+}
+
+/// Optimise, analyse identifiability, apply the tie-break rule.
+pub fn fit_point(spec: &Spec, progress: Option<Progress>) -> Result<(Vec<f64>, Point)> {
+    use crate::spec::TieBreak;
+    let (h0, mut opt) = optimise(spec, 0.0, None, progress)?;
+    let mut obj = Objective::new(
+        spec,
+        spec.draws,
+        spec.seed,
+        rng::FIT_STREAMS,
+        spec.fit.discrepancy,
+    );
+    let eta0 = obj.eta(&h0);
+    let ident = diagnostics::analyse(&obj, &eta0);
+    let (h, front, how) = match spec.fit.tie_break {
+        TieBreak::Off => (h0, None, "off".to_string()),
+        TieBreak::Auto if ident.undetermined.is_empty() => (h0, None, "off".to_string()),
+        TieBreak::Kappa(k) => {
+            obj.kappa = k * obj.floor();
+            let d = eta0.len() as u64;
+            let r = simplex::local(
+                &|e: &[f64]| obj.cost(e),
+                &eta0,
+                0.3,
+                120 * d + 60,
+                1e-3 * obj.floor(),
+            );
+            (obj.full(&r.x), None, format!("kappa {k}"))
+        }
+        TieBreak::Knee | TieBreak::Widest | TieBreak::Auto => {
+            let rule = if spec.fit.tie_break == TieBreak::Knee {
+                "knee"
+            } else {
+                "widest"
+            };
+            let f = pareto::trace(&mut obj, &eta0, rule);
+            (
+                f.points[f.chosen].hyperparameters.clone(),
+                Some(f),
+                rule.to_string(),
+            )
+        }
+    };
+    opt.evaluations += obj.evaluations();
+    Ok((
+        h.clone(),
+        Point {
+            h,
+            opt,
+            ident,
+            front,
+            tie_break: how,
+        },
+    ))
+}
+
 /// Judge hyperparameters `h` on fresh draws and assemble the result.
-pub fn assemble(
-    spec: &Spec,
-    h: Vec<f64>,
-    opt: OptimiserRecord,
-    started: Instant,
-) -> Result<FitResult> {
+pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
+    let Point {
+        h,
+        opt,
+        ident,
+        front,
+        tie_break,
+    } = p;
     let kind = spec.fit.discrepancy;
     let n = spec.draws;
     let fit_obj = Objective::new(spec, n, spec.seed, rng::FIT_STREAMS, kind);
@@ -332,15 +407,30 @@ pub fn assemble(
         wall_time_s: started.elapsed().as_secs_f64(),
         prior: spec.model.priors(&h),
         tool_version: env!("CARGO_PKG_VERSION").to_string(),
+        identifiability: ident,
+        tie_break,
+        pareto: front,
+        replicates: None,
         draws_fresh,
         full: h,
     })
 }
 
-/// Fit `spec` end to end.
+/// Fit `spec` end to end (with replicate fits when `spec.fit.replicates > 0`).
 pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     let started = Instant::now();
-    let kappa = spec.fit.tie_break.unwrap_or(0.0);
-    let (h, opt) = optimise(spec, kappa, None, progress)?;
-    assemble(spec, h, opt, started)
+    use crate::spec::TieBreak;
+    let (_, point) = fit_point(spec, progress)?;
+    let applied = match (&point.front, spec.fit.tie_break) {
+        (_, TieBreak::Kappa(k)) => TieBreak::Kappa(k),
+        (Some(f), _) if f.rule == "knee" => TieBreak::Knee,
+        (Some(_), _) => TieBreak::Widest,
+        (None, _) => TieBreak::Off,
+    };
+    let mut r = assemble(spec, point, started)?;
+    if spec.fit.replicates > 0 {
+        r.replicates = Some(replicate::run(spec, spec.fit.replicates, applied)?);
+        r.wall_time_s = started.elapsed().as_secs_f64();
+    }
+    Ok(r)
 }

@@ -17,6 +17,9 @@ use crate::templates::{BaseDraws, Hyper, HyperValue, Request};
 use std::cell::RefCell;
 use std::sync::atomic::{AtomicU64, Ordering};
 
+/// Weight of the pull towards the reference in the secondary objective.
+pub const PULL: f64 = 0.5;
+
 /// Scratch buffers for one thread.
 #[derive(Default)]
 struct Workspace {
@@ -198,13 +201,34 @@ impl<'a> Objective<'a> {
         match self.total(&h) {
             Ok(d) if d.is_finite() => {
                 if self.kappa > 0.0 {
-                    d - self.kappa * self.spec.model.spread(&h)
+                    d + self.kappa * self.secondary(&h)
                 } else {
                     d
                 }
             }
             _ => f64::INFINITY,
         }
+    }
+
+    /// The secondary objective S(λ) = −spread(λ) + 0.5·mean_k (η_k − η_ref,k)²:
+    /// prefer wider priors (see `Model::spread`) and, among equally wide ones, the
+    /// one nearest the reference (by default the start or the centre of the bounds,
+    /// η = 0). The small second term only breaks ties the first leaves.
+    pub fn secondary(&self, h: &[f64]) -> f64 {
+        let eta = self.eta(h);
+        let hy = self.spec.hypers();
+        let mut pull = 0.0;
+        for (k, &i) in self.free.iter().enumerate() {
+            let r = match self.spec.fit.reference.iter().find(|(j, _)| *j == i) {
+                Some((_, v)) => to_eta(&hy[i], *v),
+                None => to_eta(&hy[i], hy[i].default_value()),
+            };
+            pull += (eta[k] - r).powi(2);
+        }
+        if !self.free.is_empty() {
+            pull /= self.free.len() as f64;
+        }
+        -self.spec.model.spread(h) + PULL * pull
     }
 
     pub fn weights(&self) -> &[f64] {

@@ -3,6 +3,7 @@
 //! place, so a reader never sees a half-written file, and a failed run leaves no
 //! partial output behind.
 
+pub mod plots;
 pub mod summary;
 
 use crate::error::{Error, Result};
@@ -127,11 +128,15 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
 pub fn write_fit(dir: &Path, r: &FitResult) -> Result<Vec<PathBuf>> {
     ensure_dir(dir)?;
     // Render everything first, so an error leaves no file behind.
-    let files = vec![
+    let mut files = vec![
         (dir.join("fit.json"), fit_json(r)?.into_bytes()),
         (dir.join("summary.txt"), summary::render(r).into_bytes()),
         (dir.join("draws.csv"), draws_csv(r)?),
     ];
+    if let Some(f) = &r.pareto {
+        files.push((dir.join("pareto.csv"), plots::pareto_csv(f)?));
+        files.push((dir.join("pareto.svg"), plots::pareto_svg(f)?.into_bytes()));
+    }
     write_all_atomic(&files)?;
     Ok(files.into_iter().map(|f| f.0).collect())
 }

@@ -127,6 +127,76 @@ pub fn render(r: &FitResult) -> String {
         }
     }
     let _ = writeln!(s);
+    // Identifiability.
+    let id = &r.identifiability;
+    let _ = writeln!(s, "What the beliefs determine (curvature at the optimum; δ* = distance on the optimiser's scale");
+    let _ = writeln!(
+        s,
+        "over which the discrepancy rises by one noise floor; above 0.25 counts as undetermined)"
+    );
+    if id.directions.is_empty() && id.at_bound.is_empty() {
+        let _ = writeln!(s, "  no free hyperparameters");
+    }
+    for d in &id.directions {
+        let _ = writeln!(
+            s,
+            "  {:<12}  δ* = {:>9.3e}  {}",
+            if d.undetermined {
+                "UNDETERMINED"
+            } else {
+                "determined"
+            },
+            d.indistinguishable_halfwidth,
+            d.description
+        );
+    }
+    for b in &id.at_bound {
+        let _ = writeln!(
+            s,
+            "  at a bound: {b} (the beliefs push it to the edge of its range)"
+        );
+    }
+    match (&r.pareto, r.tie_break.as_str()) {
+        (Some(f), _) => {
+            let p = &f.points[f.chosen];
+            let _ = writeln!(
+                s,
+                "  tie-break: rule `{}` chose κ = {} on the Pareto front ({} points; discrepancy {:.3e}, spread {:.3})",
+                f.rule,
+                p.kappa,
+                f.points.len(),
+                p.discrepancy,
+                -p.secondary
+            );
+        }
+        (None, t) => {
+            let _ = writeln!(s, "  tie-break: {t}");
+        }
+    }
+    if let Some(rep) = &r.replicates {
+        let _ = writeln!(s);
+        let _ = writeln!(
+            s,
+            "Replicates: {} independent seeds (relative range flagged above {:.0} %)",
+            rep.seeds.len(),
+            100.0 * rep.threshold
+        );
+        for (name, sp) in &rep.per_hyperparameter {
+            let _ = writeln!(
+                s,
+                "  {name:<w$}  mean {:>10}  sd {:>10}  rel. range {:>6.2} %{}",
+                fmt_num(sp.mean),
+                fmt_num(sp.sd),
+                100.0 * sp.relative_range,
+                if sp.flagged {
+                    "  ← not identified by the beliefs"
+                } else {
+                    ""
+                }
+            );
+        }
+    }
+    let _ = writeln!(s);
     let _ = writeln!(
         s,
         "Optimiser: {} evaluations, {} starts, {} local searches, {:.2} s",

@@ -44,9 +44,31 @@ pub struct FitOptions {
     pub starts: usize,
     /// Largest root-mean-square CDF gap counted as "met approximately".
     pub tolerance: f64,
-    /// Weight κ of the secondary (tie-breaking) objective; None = automatic.
-    pub tie_break: Option<f64>,
+    /// How to choose among equally faithful priors (see `fit::pareto`).
+    pub tie_break: TieBreak,
     pub replicates: usize,
+    /// Reference values (index into the hyperparameters, value) that the secondary
+    /// objective pulls towards; unlisted free ones are pulled towards their start or
+    /// the centre of their bounds.
+    pub reference: Vec<(usize, f64)>,
+}
+
+/// Tie-breaking between equally faithful priors.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum TieBreak {
+    /// Trace the front and take the widest-within-noise point only when the
+    /// beliefs leave a direction undetermined (default).
+    Auto,
+    Off,
+    Widest,
+    Knee,
+    /// A fixed weight κ of the secondary objective, in noise floors.
+    Kappa(f64),
+}
+
+impl TieBreak {
+    pub const NAMES: [&'static str; 4] = ["auto", "off", "widest", "knee"];
 }
 
 /// A validated belief file.
@@ -537,19 +559,60 @@ pub fn from_table(
         None => 0.02,
     };
     let tie_break = match f.and_then(|f| f.tie_break.as_ref()) {
+        Some(toml::Value::String(t)) => match t.as_str() {
+            "auto" => TieBreak::Auto,
+            "off" => TieBreak::Off,
+            "widest" => TieBreak::Widest,
+            "knee" => TieBreak::Knee,
+            other => {
+                return Err(ctx
+                    .err(&fp("tie_break"), format!("unknown tie_break \"{other}\""))
+                    .with_hint(format!(
+                        "{}; or a number κ ≥ 0",
+                        choice_hint(other, &TieBreak::NAMES)
+                    )))
+            }
+        },
         Some(v) => {
             let k = ctx.num(&fp("tie_break"), v)?;
             if k < 0.0 {
                 return Err(ctx.err(&fp("tie_break"), format!("tie_break {k} must be ≥ 0")));
             }
-            Some(k)
+            TieBreak::Kappa(k)
         }
-        None => None,
+        None => TieBreak::Auto,
     };
     let replicates = match f.and_then(|f| f.replicates.as_ref()) {
         Some(v) => ctx.count(&fp("replicates"), v)? as usize,
         None => 0,
     };
+
+    let mut reference = Vec::new();
+    if let Some(t) = f.and_then(|f| f.reference.as_ref()) {
+        let names: Vec<&str> = model.hypers().iter().map(|h| h.name.as_str()).collect();
+        for (k, v) in t {
+            let p = [key("fit"), key("reference"), key(k)];
+            let i = names.iter().position(|n| n == k).ok_or_else(|| {
+                ctx.err(&p, format!("unknown hyperparameter `{k}`"))
+                    .with_hint(choice_hint(k, &names))
+            })?;
+            let x = ctx.num(&p, v)?;
+            if let HyperValue::Free { lo, hi, .. } = model.hypers()[i].value {
+                if !(x > lo && x < hi) {
+                    return Err(ctx.err(
+                        &p,
+                        format!("reference {x} must lie inside the bounds [{lo}, {hi}]"),
+                    ));
+                }
+                reference.push((i, x));
+            } else {
+                return Err(ctx.err(
+                    &p,
+                    format!("`{k}` is fixed; a reference applies only to free hyperparameters"),
+                ));
+            }
+        }
+    }
 
     Ok(Spec {
         title: raw.title.clone().unwrap_or_else(|| "untitled".to_string()),
@@ -565,6 +628,7 @@ pub fn from_table(
             tolerance,
             tie_break,
             replicates,
+            reference,
         },
     })
 }

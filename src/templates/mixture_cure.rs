@@ -545,8 +545,8 @@ impl Model for MixtureCure {
             self.priors.fill(h, &base.cols, p)?;
             // π and ln λ once per distinct profile, shared by every request there.
             cache.clear();
-            let mut profile_of = |x: &Vec<f64>,
-                                  cache: &mut Vec<(Vec<f64>, Vec<f64>, Vec<f64>)>|
+            let profile_of = |x: &Vec<f64>,
+                              cache: &mut Vec<(Vec<f64>, Vec<f64>, Vec<f64>)>|
              -> usize {
                 if let Some(j) = cache.iter().position(|c| &c.0 == x) {
                     return j;

@@ -160,17 +160,24 @@ impl PriorSet {
             .collect()
     }
 
-    /// Mean over priors of ln sd (for families without a finite sd, the log of
-    /// the interquartile range divided by 1.349, the normal's IQR in sd units).
+    /// Mean over priors of ln sd on each family's working scale: the log of θ for
+    /// positive families, the logit for (0, 1) families, θ itself otherwise; the sd is
+    /// read from the quartiles, (g(Q₃) − g(Q₁))/1.349 (exact for normal, log-normal
+    /// and logit-normal; 1.349 is the normal's interquartile range in sd units). On
+    /// these scales the spread does not depend on the unit of time or of a rate.
     pub fn spread(&self, h: &[f64]) -> f64 {
+        use crate::dist::Support;
+        use crate::target::quantiles::Scale;
         let mut s = 0.0;
         let mut n = 0.0;
         for p in &self.priors {
             if let Ok(d) = p.build(h) {
-                let sd = match d.variance() {
-                    Some(v) if v.is_finite() && v > 0.0 => v.sqrt(),
-                    _ => (d.quantile(0.75) - d.quantile(0.25)) / 1.349,
+                let g = match p.family.support {
+                    Support::Positive => Scale::Log,
+                    Support::Unit => Scale::Logit,
+                    _ => Scale::Identity,
                 };
+                let sd = (g.to(d.quantile(0.75)) - g.to(d.quantile(0.25))) / 1.349;
                 if sd > 0.0 && sd.is_finite() {
                     s += sd.ln();
                     n += 1.0;
