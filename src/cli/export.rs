@@ -12,7 +12,12 @@ pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool) -> Result<()> 
         Some(p) if p != Path::new("-") => {
             output::write_atomic(p, text.as_bytes())?;
             if !quiet {
-                eprintln!("wrote {} ({} prior for {})", p.display(), to.name(), dir.display());
+                eprintln!(
+                    "wrote {} ({} prior for {})",
+                    p.display(),
+                    to.name(),
+                    dir.display()
+                );
             }
         }
         _ => print!("{text}"),

@@ -111,6 +111,9 @@ mod tests {
     fn nlpar_names_have_no_underscores() {
         assert_eq!(super::nlpar_name("cure_logit"), "cureLogit");
         assert_eq!(super::nlpar_name("shape"), "shape");
-        assert_eq!(super::nlpar_name("cure_effect_arm_logit"), "cureEffectArmLogit");
+        assert_eq!(
+            super::nlpar_name("cure_effect_arm_logit"),
+            "cureEffectArmLogit"
+        );
     }
 }

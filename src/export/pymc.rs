@@ -14,15 +14,17 @@
 //! scale, s = 1/shape) and θ = exp(log θ) as a Deterministic (see stan.rs for
 //! the identity).
 
-use super::{check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar};
+use super::{
+    check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar,
+};
 use crate::error::Result;
 
 /// Python keywords and the names the export itself uses.
 pub const RESERVED: &[&str] = &[
-    "False", "None", "True", "and", "as", "assert", "async", "await", "break", "class",
-    "continue", "def", "del", "elif", "else", "except", "finally", "for", "from", "global", "if",
-    "import", "in", "is", "lambda", "nonlocal", "not", "or", "pass", "raise", "return", "try",
-    "while", "with", "yield", "pm", "model",
+    "False", "None", "True", "and", "as", "assert", "async", "await", "break", "class", "continue",
+    "def", "del", "elif", "else", "except", "finally", "for", "from", "global", "if", "import",
+    "in", "is", "lambda", "nonlocal", "not", "or", "pass", "raise", "return", "try", "while",
+    "with", "yield", "pm", "model",
 ];
 
 /// The constructor lines for one scalar prior.

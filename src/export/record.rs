@@ -60,15 +60,29 @@ pub fn number(v: &Value) -> Option<f64> {
 }
 
 pub fn get<'a>(file: &Path, v: &'a Value, key: &str) -> Result<&'a Value> {
-    v.get(key)
-        .ok_or_else(|| bad(file, key, format!("fit.json lacks `{key}` (was it written by `priorsmith fit`?)")))
+    v.get(key).ok_or_else(|| {
+        bad(
+            file,
+            key,
+            format!("fit.json lacks `{key}` (was it written by `priorsmith fit`?)"),
+        )
+    })
 }
 
 pub fn get_str(file: &Path, v: &Value, key: &str) -> Result<String> {
     get(file, v, key)?
         .as_str()
         .map(str::to_string)
-        .ok_or_else(|| bad(file, key, format!("expected a string, found {}", get(file, v, key).map(short).unwrap_or_default())))
+        .ok_or_else(|| {
+            bad(
+                file,
+                key,
+                format!(
+                    "expected a string, found {}",
+                    get(file, v, key).map(short).unwrap_or_default()
+                ),
+            )
+        })
 }
 
 pub fn get_num(file: &Path, v: &Value, key: &str) -> Result<f64> {
@@ -148,7 +162,13 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
     let parameter = st
         .get("parameter")
         .and_then(Value::as_str)
-        .ok_or_else(|| bad(file, &key("parameter"), "expected the parameter's name (a string)"))?
+        .ok_or_else(|| {
+            bad(
+                file,
+                &key("parameter"),
+                "expected the parameter's name (a string)",
+            )
+        })?
         .to_string();
     let about = st
         .get("about")
@@ -162,12 +182,21 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
         bad(
             file,
             &key("family"),
-            format!("prior statement for `{parameter}` has neither a family nor template-supplied code"),
+            format!(
+                "prior statement for `{parameter}` has neither a family nor template-supplied code"
+            ),
         )
     })?;
     let family = crate::dist::family(fam_name).ok_or_else(|| {
-        bad(file, &key("family"), format!("unknown family \"{fam_name}\""))
-            .with_hint(crate::error::choice_hint(fam_name, &crate::dist::family_names()))
+        bad(
+            file,
+            &key("family"),
+            format!("unknown family \"{fam_name}\""),
+        )
+        .with_hint(crate::error::choice_hint(
+            fam_name,
+            &crate::dist::family_names(),
+        ))
     })?;
     let pairs = st
         .get("params")
@@ -199,7 +228,13 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
                     format!("{fam_name} expects `{want}` here, found `{n}`"),
                 ))
             }
-            _ => return Err(bad(file, &pk, format!("expected [\"{want}\", number], found {}", short(pair)))),
+            _ => {
+                return Err(bad(
+                    file,
+                    &pk,
+                    format!("expected [\"{want}\", number], found {}", short(pair)),
+                ))
+            }
         }
     }
     // Validate the values with the family itself.
@@ -212,8 +247,20 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
     }))
 }
 
-fn supplied(file: &Path, key: &str, parameter: String, about: String, code: &Value) -> Result<Item> {
-    let err = || bad(file, key, "expected { <language> = { <section> = [lines] } }");
+fn supplied(
+    file: &Path,
+    key: &str,
+    parameter: String,
+    about: String,
+    code: &Value,
+) -> Result<Item> {
+    let err = || {
+        bad(
+            file,
+            key,
+            "expected { <language> = { <section> = [lines] } }",
+        )
+    };
     let mut out = BTreeMap::new();
     for (lang, sections) in code.as_object().ok_or_else(err)? {
         let mut m = BTreeMap::new();

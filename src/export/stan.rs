@@ -21,7 +21,9 @@
 //! (a native `loglogistic` exists only in recent releases).
 //! brms writes its prior strings in the same Stan syntax and reuses [`form`].
 
-use super::{check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar};
+use super::{
+    check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar,
+};
 use crate::error::Result;
 
 /// How one scalar prior is written in Stan syntax.
@@ -43,10 +45,43 @@ pub struct Form {
 /// Reserved words that cannot name a Stan variable (Stan Reference Manual,
 /// "Variable names"; from memory, the common ones).
 pub const RESERVED: &[&str] = &[
-    "for", "in", "while", "repeat", "until", "if", "then", "else", "true", "false", "target",
-    "functions", "model", "data", "parameters", "quantities", "transformed", "generated", "int",
-    "real", "complex", "vector", "row_vector", "matrix", "array", "print", "reject", "return",
-    "break", "continue", "void", "lower", "upper", "offset", "multiplier", "profile", "tuple",
+    "for",
+    "in",
+    "while",
+    "repeat",
+    "until",
+    "if",
+    "then",
+    "else",
+    "true",
+    "false",
+    "target",
+    "functions",
+    "model",
+    "data",
+    "parameters",
+    "quantities",
+    "transformed",
+    "generated",
+    "int",
+    "real",
+    "complex",
+    "vector",
+    "row_vector",
+    "matrix",
+    "array",
+    "print",
+    "reject",
+    "return",
+    "break",
+    "continue",
+    "void",
+    "lower",
+    "upper",
+    "offset",
+    "multiplier",
+    "profile",
+    "tuple",
 ];
 
 pub fn form(s: &Scalar) -> Result<Form> {
@@ -62,8 +97,18 @@ pub fn form(s: &Scalar) -> Result<Form> {
     };
     let pos = Some(0.0);
     Ok(match s.family.name {
-        "normal" => plain(None, None, format!("normal({}, {})", p("mean"), p("sd")), None),
-        "lognormal" => plain(pos, None, format!("lognormal({}, {})", p("meanlog"), p("sdlog")), None),
+        "normal" => plain(
+            None,
+            None,
+            format!("normal({}, {})", p("mean"), p("sd")),
+            None,
+        ),
+        "lognormal" => plain(
+            pos,
+            None,
+            format!("lognormal({}, {})", p("meanlog"), p("sdlog")),
+            None,
+        ),
         "gamma" => plain(
             pos,
             None,
@@ -76,7 +121,12 @@ pub fn form(s: &Scalar) -> Result<Form> {
             format!("inv_gamma({}, {})", p("shape"), p("scale")),
             Some("inverse-gamma(shape, scale)".into()),
         ),
-        "beta" => plain(pos, Some(1.0), format!("beta({}, {})", p("alpha"), p("beta")), None),
+        "beta" => plain(
+            pos,
+            Some(1.0),
+            format!("beta({}, {})", p("alpha"), p("beta")),
+            None,
+        ),
         "logit-normal" => Form {
             sampled: format!("{name}_logit"),
             lower: None,
@@ -99,7 +149,10 @@ pub fn form(s: &Scalar) -> Result<Form> {
             pos,
             None,
             format!("normal(0, {})", p("scale")),
-            Some(format!("half-normal({}): the <lower=0> bound truncates", p("scale"))),
+            Some(format!(
+                "half-normal({}): the <lower=0> bound truncates",
+                p("scale")
+            )),
         ),
         "half-student-t" => plain(
             pos,
@@ -115,7 +168,10 @@ pub fn form(s: &Scalar) -> Result<Form> {
             pos,
             None,
             format!("cauchy(0, {})", p("scale")),
-            Some(format!("half-cauchy({}): the <lower=0> bound truncates", p("scale"))),
+            Some(format!(
+                "half-cauchy({}): the <lower=0> bound truncates",
+                p("scale")
+            )),
         ),
         "exponential" => plain(
             pos,

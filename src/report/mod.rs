@@ -94,11 +94,19 @@ fn nums(file: &Path, key: &str, v: Option<&Value>) -> Result<Vec<f64>> {
             .enumerate()
             .map(|(i, x)| {
                 number(x).ok_or_else(|| {
-                    record::bad(file, &format!("{key}[{i}]"), format!("expected a number, found {}", short(x)))
+                    record::bad(
+                        file,
+                        &format!("{key}[{i}]"),
+                        format!("expected a number, found {}", short(x)),
+                    )
                 })
             })
             .collect(),
-        Some(other) => Err(record::bad(file, key, format!("expected an array, found {}", short(other)))),
+        Some(other) => Err(record::bad(
+            file,
+            key,
+            format!("expected an array, found {}", short(other)),
+        )),
     }
 }
 
@@ -107,7 +115,10 @@ fn numf(v: &Value, k: &str) -> f64 {
 }
 
 fn strf(v: &Value, k: &str) -> String {
-    v.get(k).and_then(Value::as_str).unwrap_or_default().to_string()
+    v.get(k)
+        .and_then(Value::as_str)
+        .unwrap_or_default()
+        .to_string()
 }
 
 /// Parse the beliefs of fit.json and attach the draws of draws.csv.
@@ -135,7 +146,11 @@ pub fn beliefs(file: &Path, json: &Value, draws_csv: &Path) -> Result<Vec<Belief
         };
         if let Some(c) = &curve {
             if c.x.len() != c.cdf.len() || c.x.len() != c.pdf.len() {
-                return Err(record::bad(file, &key("believed_curve"), "x, cdf and pdf differ in length"));
+                return Err(record::bad(
+                    file,
+                    &key("believed_curve"),
+                    "x, cdf and pdf differ in length",
+                ));
             }
         }
         draws.sort_by(f64::total_cmp);
@@ -147,7 +162,11 @@ pub fn beliefs(file: &Path, json: &Value, draws_csv: &Path) -> Result<Vec<Belief
             how: b
                 .get("how")
                 .and_then(Value::as_array)
-                .map(|a| a.iter().filter_map(|h| h.as_str().map(str::to_string)).collect())
+                .map(|a| {
+                    a.iter()
+                        .filter_map(|h| h.as_str().map(str::to_string))
+                        .collect()
+                })
                 .unwrap_or_default(),
             fresh: numf(b, "fresh"),
             noise_floor: numf(b, "noise_floor"),
@@ -155,7 +174,11 @@ pub fn beliefs(file: &Path, json: &Value, draws_csv: &Path) -> Result<Vec<Belief
             rms: numf(b, "rms_cdf_gap"),
             weight: numf(b, "weight"),
             probs: nums(file, &key("probs"), b.get("probs"))?,
-            believed_q: nums(file, &key("believed_quantiles"), b.get("believed_quantiles"))?,
+            believed_q: nums(
+                file,
+                &key("believed_quantiles"),
+                b.get("believed_quantiles"),
+            )?,
             implied_q: nums(file, &key("implied_quantiles"), b.get("implied_quantiles"))?,
             atoms: b
                 .get("atoms")
@@ -197,7 +220,11 @@ pub fn read_draws(path: &Path, n: usize) -> Result<Vec<Vec<f64>>> {
     if header.len() != n + 1 {
         return Err(bad(
             1,
-            format!("expected {} columns (draw + one per belief in fit.json), found {}", n + 1, header.len()),
+            format!(
+                "expected {} columns (draw + one per belief in fit.json), found {}",
+                n + 1,
+                header.len()
+            ),
         ));
     }
     let mut cols = vec![Vec::new(); n];
@@ -206,10 +233,12 @@ pub fn read_draws(path: &Path, n: usize) -> Result<Vec<Vec<f64>>> {
         let rec = rec.map_err(|e| bad(line, e.to_string()))?;
         for (j, col) in cols.iter_mut().enumerate() {
             let s = rec.get(j + 1).unwrap_or_default();
-            let v: f64 = s
-                .trim()
-                .parse()
-                .map_err(|_| bad(line, format!("column `{}`: `{s}` is not a number", &header[j + 1])))?;
+            let v: f64 = s.trim().parse().map_err(|_| {
+                bad(
+                    line,
+                    format!("column `{}`: `{s}` is not a number", &header[j + 1]),
+                )
+            })?;
             if v.is_nan() {
                 return Err(bad(line, format!("column `{}`: NaN", &header[j + 1])));
             }
@@ -247,7 +276,11 @@ fn fnum(x: f64) -> String {
     if x.is_nan() {
         "—".into()
     } else if x.is_infinite() {
-        if x > 0.0 { "∞".into() } else { "−∞".into() }
+        if x > 0.0 {
+            "∞".into()
+        } else {
+            "−∞".into()
+        }
     } else {
         crate::fit::verdict::fmt_num(x)
     }
@@ -321,8 +354,15 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
     p.axes(&axis_label(b), "probability of a value ≤ x");
     // Implied: empirical CDF on a fine grid, with exact jumps at atoms.
     let s = &b.draws;
-    let mut xs: Vec<f64> = (0..=400).map(|k| lo + (hi - lo) * k as f64 / 400.0).collect();
-    let atom_locs: Vec<f64> = b.atoms.iter().map(|a| a.at).filter(|a| a.is_finite()).collect();
+    let mut xs: Vec<f64> = (0..=400)
+        .map(|k| lo + (hi - lo) * k as f64 / 400.0)
+        .collect();
+    let atom_locs: Vec<f64> = b
+        .atoms
+        .iter()
+        .map(|a| a.at)
+        .filter(|a| a.is_finite())
+        .collect();
     xs.extend(&atom_locs);
     xs.sort_by(f64::total_cmp);
     let mut imp = Vec::new();
@@ -335,7 +375,12 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
     // Believed.
     let mut bel = Vec::new();
     if let Some(c) = &b.curve {
-        let atoms: Vec<(f64, f64)> = c.atoms.iter().copied().filter(|a| a.0.is_finite()).collect();
+        let atoms: Vec<(f64, f64)> = c
+            .atoms
+            .iter()
+            .copied()
+            .filter(|a| a.0.is_finite())
+            .collect();
         // Left of the first tabulated point the CDF stays at that point's left limit.
         if let (Some(x0), Some(f0)) = (c.x.first(), c.cdf.first()) {
             let left = atoms.iter().find(|a| a.0 == *x0).map_or(*f0, |a| f0 - a.1);
@@ -352,12 +397,24 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         }
         bel.sort_by(|a, b| a.0.total_cmp(&b.0));
     }
-    p.line(&imp, VERMILLION, 2.2, Some("6 3"), "implied by the fitted prior (empirical CDF of the draws)");
+    p.line(
+        &imp,
+        VERMILLION,
+        2.2,
+        Some("6 3"),
+        "implied by the fitted prior (empirical CDF of the draws)",
+    );
     if b.curve.is_some() {
         p.line(&bel, BLUE, 2.2, None, "believed");
     } else {
         for (q, pr) in b.believed_q.iter().zip(&b.probs) {
-            p.point(*q, *pr, BLUE, 4.0, &format!("believed {}% quantile", pr * 100.0));
+            p.point(
+                *q,
+                *pr,
+                BLUE,
+                4.0,
+                &format!("believed {}% quantile", pr * 100.0),
+            );
         }
     }
     if has_inf {
@@ -373,7 +430,12 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         p.text(xc, y0 + 31.0, "middle", "note", "never reached");
         let mut series = Vec::new();
         if let Some(c) = &b.curve {
-            series.push((c.cdf.last().copied().unwrap_or(1.0 - bel_inf), 1.0 - bel_inf, BLUE, None));
+            series.push((
+                c.cdf.last().copied().unwrap_or(1.0 - bel_inf),
+                1.0 - bel_inf,
+                BLUE,
+                None,
+            ));
         }
         series.push((ecdf(s, hi), 1.0 - b.implied_inf, VERMILLION, Some("6 3")));
         for (edge, below, col, dash) in series {
@@ -383,10 +445,25 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         }
         let ym = 0.5 * (y0 + y1);
         p.text(xc, ym - 8.0, "middle", "note", "mass at ∞");
-        p.text(xc, ym + 8.0, "middle", "note", &format!("believed {}", pct(bel_inf)));
-        p.text(xc, ym + 22.0, "middle", "note", &format!("implied {}", pct(b.implied_inf)));
+        p.text(
+            xc,
+            ym + 8.0,
+            "middle",
+            "note",
+            &format!("believed {}", pct(bel_inf)),
+        );
+        p.text(
+            xc,
+            ym + 22.0,
+            "middle",
+            "note",
+            &format!("implied {}", pct(b.implied_inf)),
+        );
     }
-    p.legend(&[(BLUE, None, "believed"), (VERMILLION, Some("6 3"), "implied by the fitted prior")]);
+    p.legend(&[
+        (BLUE, None, "believed"),
+        (VERMILLION, Some("6 3"), "implied by the fitted prior"),
+    ]);
     p.finish(false)
 }
 
@@ -394,7 +471,12 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
 pub fn density_plot(id: &str, b: &BeliefView) -> String {
     let (lo, hi) = x_range(b);
     let n = b.draws.len() as f64;
-    let atom_locs: Vec<f64> = b.atoms.iter().map(|a| a.at).filter(|a| a.is_finite()).collect();
+    let atom_locs: Vec<f64> = b
+        .atoms
+        .iter()
+        .map(|a| a.at)
+        .filter(|a| a.is_finite())
+        .collect();
     let fin: Vec<f64> = b
         .draws
         .iter()
@@ -405,7 +487,11 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
     let bins = if fin.len() > 3 {
         let iqr = emp_q(&fin, 0.75) - emp_q(&fin, 0.25);
         let w = 2.0 * iqr / (fin.len() as f64).cbrt();
-        if w > 0.0 { ((hi - lo) / w).round().clamp(15.0, 60.0) as usize } else { 30 }
+        if w > 0.0 {
+            ((hi - lo) / w).round().clamp(15.0, 60.0) as usize
+        } else {
+            30
+        }
     } else {
         30
     };
@@ -419,7 +505,13 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
     let bars: Vec<(f64, f64, f64)> = counts
         .iter()
         .enumerate()
-        .map(|(k, c)| (lo + k as f64 * bw, lo + (k + 1) as f64 * bw, *c as f64 / (n * bw)))
+        .map(|(k, c)| {
+            (
+                lo + k as f64 * bw,
+                lo + (k + 1) as f64 * bw,
+                *c as f64 / (n * bw),
+            )
+        })
         .collect();
     let mut ymax = bars.iter().map(|b| b.2).fold(0.0, f64::max);
     let bel: Vec<(f64, f64)> = b
@@ -434,12 +526,15 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
         })
         .unwrap_or_default();
     ymax = bel.iter().map(|p| p.1).fold(ymax, f64::max);
-    if !(ymax > 0.0) {
+    if ymax.is_nan() || ymax <= 0.0 {
         ymax = 1.0;
     }
     let mut p = Plot::new(
         id,
-        &format!("{}: believed density and histogram of the implied draws", b.label),
+        &format!(
+            "{}: believed density and histogram of the implied draws",
+            b.label
+        ),
         (lo, hi, false),
         (0.0, ymax * 1.1),
         0.0,
@@ -449,15 +544,34 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
         None => "density".into(),
     };
     p.axes(&axis_label(b), &ylab);
-    p.bars(&bars, "#f3c9ad", "#c0693a", "histogram of the implied draws");
+    p.bars(
+        &bars,
+        "#f3c9ad",
+        "#c0693a",
+        "histogram of the implied draws",
+    );
     if !bel.is_empty() {
         p.line(&bel, BLUE, 2.4, None, "believed density");
     }
     let mut note_y = p.y.p1 + 14.0;
     let right = p.x.p1 - 4.0;
     for a in &b.atoms {
-        let place = if a.at.is_infinite() { "never reached (∞)".to_string() } else { format!("at {}", fnum(a.at)) };
-        p.text(right, note_y, "end", "note", &format!("point mass {place}: believed {}, implied {}", pct(a.believed), pct(a.implied)));
+        let place = if a.at.is_infinite() {
+            "never reached (∞)".to_string()
+        } else {
+            format!("at {}", fnum(a.at))
+        };
+        p.text(
+            right,
+            note_y,
+            "end",
+            "note",
+            &format!(
+                "point mass {place}: believed {}, implied {}",
+                pct(a.believed),
+                pct(a.implied)
+            ),
+        );
         note_y += 14.0;
         if a.at.is_finite() && a.at >= lo && a.at <= hi {
             let x = p.x.px(a.at);
@@ -465,9 +579,18 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
         }
     }
     if b.implied_inf > 0.0 && !b.atoms.iter().any(|a| a.at.is_infinite()) {
-        p.text(right, note_y, "end", "note", &format!("implied never reached (∞): {}", pct(b.implied_inf)));
+        p.text(
+            right,
+            note_y,
+            "end",
+            "note",
+            &format!("implied never reached (∞): {}", pct(b.implied_inf)),
+        );
     }
-    p.legend(&[(BLUE, None, "believed"), ("#c0693a", None, "implied (histogram)")]);
+    p.legend(&[
+        (BLUE, None, "believed"),
+        ("#c0693a", None, "implied (histogram)"),
+    ]);
     p.finish(false)
 }
 
@@ -489,27 +612,61 @@ pub fn hyper_plot(id: &str, json: &Value) -> Option<String> {
     let (x0, x1) = (200.0, svg::W - 60.0);
     let mut b = String::new();
     let _ = writeln!(b, "<svg class=\"plot\" id=\"{id}\" viewBox=\"0 0 {} {h}\" width=\"{}\" height=\"{h}\" role=\"img\" aria-labelledby=\"{id}-title\" font-family=\"system-ui, -apple-system, 'Segoe UI', Roboto, 'DejaVu Sans', sans-serif\"><title id=\"{id}-title\">Fitted hyperparameters within their bounds</title>", svg::W, svg::W);
-    let _ = writeln!(b, "<rect class=\"bg\" x=\"0\" y=\"0\" width=\"{}\" height=\"{h}\" fill=\"#fff\"/>", svg::W);
+    let _ = writeln!(
+        b,
+        "<rect class=\"bg\" x=\"0\" y=\"0\" width=\"{}\" height=\"{h}\" fill=\"#fff\"/>",
+        svg::W
+    );
     let _ = writeln!(b, "<text class=\"note\" x=\"10\" y=\"18\">fitted value (dot) within the bounds it was fitted in; log scale where the bounds span ≥ 100×</text>");
     for (k, name) in free.iter().enumerate() {
         let y = 44.0 + row * k as f64;
         let v = hv.get(name).and_then(number).unwrap_or(f64::NAN);
         let bd = bounds.get(name).and_then(Value::as_array);
         let (lo, hi) = match bd {
-            Some(a) if a.len() == 2 => (a[0].as_f64().unwrap_or(f64::NAN), a[1].as_f64().unwrap_or(f64::NAN)),
+            Some(a) if a.len() == 2 => (
+                a[0].as_f64().unwrap_or(f64::NAN),
+                a[1].as_f64().unwrap_or(f64::NAN),
+            ),
             _ => continue,
         };
         let log = lo > 0.0 && hi / lo >= 100.0;
-        let t = if log { (v.ln() - lo.ln()) / (hi.ln() - lo.ln()) } else { (v - lo) / (hi - lo) };
+        let t = if log {
+            (v.ln() - lo.ln()) / (hi.ln() - lo.ln())
+        } else {
+            (v - lo) / (hi - lo)
+        };
         let px = x0 + t.clamp(0.0, 1.0) * (x1 - x0);
         let near = !(0.001..=0.999).contains(&t);
-        let _ = writeln!(b, "<text x=\"10\" y=\"{:.1}\">{}</text>", y + 4.0, esc(name));
-        let _ = writeln!(b, "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"end\">{}</text>", x0 - 6.0, y + 4.0, esc(&fnum(lo)));
-        let _ = writeln!(b, "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\">{}</text>", x1 + 6.0, y + 4.0, esc(&fnum(hi)));
+        let _ = writeln!(
+            b,
+            "<text x=\"10\" y=\"{:.1}\">{}</text>",
+            y + 4.0,
+            esc(name)
+        );
+        let _ = writeln!(
+            b,
+            "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"end\">{}</text>",
+            x0 - 6.0,
+            y + 4.0,
+            esc(&fnum(lo))
+        );
+        let _ = writeln!(
+            b,
+            "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\">{}</text>",
+            x1 + 6.0,
+            y + 4.0,
+            esc(&fnum(hi))
+        );
         let _ = writeln!(b, "<line x1=\"{x0}\" x2=\"{x1}\" y1=\"{y}\" y2=\"{y}\" stroke=\"#bbb\" stroke-width=\"6\" stroke-linecap=\"round\"/>");
         let col = if near { ORANGE } else { BLUE };
         let _ = writeln!(b, "<circle cx=\"{px:.1}\" cy=\"{y}\" r=\"7\" fill=\"{col}\" stroke=\"#fff\" stroke-width=\"1.5\"><title>{} = {}</title></circle>", esc(name), esc(&fnum(v)));
-        let _ = writeln!(b, "<text class=\"note\" x=\"{px:.1}\" y=\"{:.1}\" text-anchor=\"middle\">{}{}</text>", y - 11.0, esc(&fnum(v)), if near { " (at a bound)" } else { "" });
+        let _ = writeln!(
+            b,
+            "<text class=\"note\" x=\"{px:.1}\" y=\"{:.1}\" text-anchor=\"middle\">{}{}</text>",
+            y - 11.0,
+            esc(&fnum(v)),
+            if near { " (at a bound)" } else { "" }
+        );
     }
     b.push_str("</svg>\n");
     Some(b)
@@ -533,7 +690,11 @@ fn numeric_table(v: &Value) -> Option<(Vec<String>, Vec<Vec<f64>>)> {
     }
     let rows: Vec<Vec<f64>> = arr
         .iter()
-        .map(|r| cols.iter().map(|c| r.get(c).and_then(number).unwrap_or(f64::NAN)).collect())
+        .map(|r| {
+            cols.iter()
+                .map(|c| r.get(c).and_then(number).unwrap_or(f64::NAN))
+                .collect()
+        })
         .collect();
     Some((cols, rows))
 }
@@ -555,18 +716,34 @@ fn diagnostic_plot(id: &str, key: &str, v: &Value) -> Option<String> {
     let ext = |f: fn(&(f64, f64)) -> f64| {
         let lo = pts.iter().map(f).fold(f64::INFINITY, f64::min);
         let hi = pts.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
-        let pad = if hi > lo { 0.06 * (hi - lo) } else { 0.5 * lo.abs().max(1e-9) };
+        let pad = if hi > lo {
+            0.06 * (hi - lo)
+        } else {
+            0.5 * lo.abs().max(1e-9)
+        };
         (lo - pad, hi + pad)
     };
     let (xl, xh) = ext(|p| p.0);
     let (yl, yh) = ext(|p| p.1);
-    let mut p = Plot::new(id, &format!("{key}: {} against {}", cols[yi], cols[xi]), (xl, xh, false), (yl, yh), 0.0);
+    let mut p = Plot::new(
+        id,
+        &format!("{key}: {} against {}", cols[yi], cols[xi]),
+        (xl, xh, false),
+        (yl, yh),
+        0.0,
+    );
     p.axes(&cols[xi], &cols[yi]);
     if key == "sweep" {
         p.line(&pts, BLUE, 1.8, None, key);
     }
     for (x, y) in &pts {
-        p.point(*x, *y, BLUE, 3.5, &format!("{} = {}, {} = {}", cols[xi], fnum(*x), cols[yi], fnum(*y)));
+        p.point(
+            *x,
+            *y,
+            BLUE,
+            3.5,
+            &format!("{} = {}, {} = {}", cols[xi], fnum(*x), cols[yi], fnum(*y)),
+        );
     }
     Some(p.finish(false))
 }
@@ -581,18 +758,21 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let mut svgs = |name: &str, inline: &str| {
         // Standalone copy: add the namespace and the plot styles.
-        let standalone = inline.replacen("<svg ", "<svg xmlns=\"http://www.w3.org/2000/svg\" ", 1).replacen(
-            "</title>\n",
-            &format!("</title>\n{}", svg::STANDALONE_STYLE),
-            1,
-        );
-        files.push((PathBuf::from("plots").join(format!("{name}.svg")), standalone.into_bytes()));
+        let standalone = inline
+            .replacen("<svg ", "<svg xmlns=\"http://www.w3.org/2000/svg\" ", 1)
+            .replacen(
+                "</title>\n",
+                &format!("</title>\n{}", svg::STANDALONE_STYLE),
+                1,
+            );
+        files.push((
+            PathBuf::from("plots").join(format!("{name}.svg")),
+            standalone.into_bytes(),
+        ));
     };
     let mut html = String::new();
     let discrepancy = strf(json, "discrepancy");
-    let _ = write!(
-        html,
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<meta name=\"generator\" content=\"priorsmith {ver}\">\n<title>Prior report — {title}</title>\n<style>{CSS}</style>\n</head>\n<body>\n<main>\n<header>\n<p class=\"kicker\">priorsmith prior report</p>\n<h1>{title}</h1>\n<p class=\"meta\">template <b>{tpl}</b> · {draws} prior draws · seed {seed} · discrepancy {disc} · priorsmith {ver} · spec sha256 <code title=\"{dig}\">{dshort}</code> · report written {date}</p>\n",
+    let _ = writeln!(html, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<meta name=\"generator\" content=\"priorsmith {ver}\">\n<title>Prior report — {title}</title>\n<style>{CSS}</style>\n</head>\n<body>\n<main>\n<header>\n<p class=\"kicker\">priorsmith prior report</p>\n<h1>{title}</h1>\n<p class=\"meta\">template <b>{tpl}</b> · {draws} prior draws · seed {seed} · discrepancy {disc} · priorsmith {ver} · spec sha256 <code title=\"{dig}\">{dshort}</code> · report written {date}</p>",
         ver = esc(&h.tool_version),
         title = esc(&h.title),
         tpl = esc(&h.template),
@@ -604,9 +784,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         date = esc(&h.date),
     );
     let overall = strf(json, "verdict");
-    let _ = write!(
-        html,
-        "<p class=\"verdict {overall}\"><span class=\"mark\">{}</span> Overall: beliefs {}</p>\n<aside class=\"caution\" role=\"note\"><b>Caution.</b> {}</aside>\n</header>\n",
+    let _ = writeln!(html, "<p class=\"verdict {overall}\"><span class=\"mark\">{}</span> Overall: beliefs {}</p>\n<aside class=\"caution\" role=\"note\"><b>Caution.</b> {}</aside>\n</header>",
         mark(&overall),
         esc(&h.verdict),
         esc(CAUTION.trim_start_matches("Caution: "))
@@ -627,9 +805,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         let den = density_plot(&format!("belief-{k}-density"), b);
         svgs(&format!("belief-{k}-cdf"), &cdf);
         svgs(&format!("belief-{k}-density"), &den);
-        let _ = write!(
-            html,
-            "<section class=\"belief\" id=\"belief-{k}\">\n<h2>{}</h2>\n<p class=\"sub\">quantity <code>{}</code>{} · stated as {} · <span class=\"v {}\"><span class=\"mark\">{}</span> {}</span></p>\n",
+        let _ = writeln!(html, "<section class=\"belief\" id=\"belief-{k}\">\n<h2>{}</h2>\n<p class=\"sub\">quantity <code>{}</code>{} · stated as {} · <span class=\"v {}\"><span class=\"mark\">{}</span> {}</span></p>",
             esc(&b.label),
             esc(&b.quantity),
             b.unit.as_ref().map(|u| format!(" in {}", esc(u))).unwrap_or_default(),
@@ -645,9 +821,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
             }
             html.push_str("</ul>\n");
         }
-        let _ = write!(
-            html,
-            "<div class=\"figs\">\n<figure>{cdf}<figcaption>Cumulative distribution: believed (solid blue) and implied by the fitted prior (dashed vermillion, {} draws). Point masses appear as vertical jumps{}.</figcaption></figure>\n<figure>{den}<figcaption>Density of the continuous part: believed (blue line) over a histogram of the implied draws; bar areas are fractions of all draws. The x range covers 1–99 % of both distributions.</figcaption></figure>\n</div>\n",
+        let _ = writeln!(html, "<div class=\"figs\">\n<figure>{cdf}<figcaption>Cumulative distribution: believed (solid blue) and implied by the fitted prior (dashed vermillion, {} draws). Point masses appear as vertical jumps{}.</figcaption></figure>\n<figure>{den}<figcaption>Density of the continuous part: believed (blue line) over a histogram of the implied draws; bar areas are fractions of all draws. The x range covers 1–99 % of both distributions.</figcaption></figure>\n</div>",
             b.draws.len(),
             if b.implied_inf > 0.0 || b.curve.as_ref().is_some_and(|c| c.inf_mass() > 0.0) {
                 "; the column at ∞ holds the mass that is never reached"
@@ -671,7 +845,17 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         if !b.atoms.is_empty() {
             html.push_str("<table class=\"atoms\"><thead><tr><th>point mass at</th><th>believed</th><th>implied</th></tr></thead><tbody>");
             for a in &b.atoms {
-                let _ = write!(html, "<tr><td>{}</td><td>{}</td><td>{}</td></tr>", if a.at.is_infinite() { "∞ (never reached)".into() } else { fnum(a.at) }, pct(a.believed), pct(a.implied));
+                let _ = write!(
+                    html,
+                    "<tr><td>{}</td><td>{}</td><td>{}</td></tr>",
+                    if a.at.is_infinite() {
+                        "∞ (never reached)".into()
+                    } else {
+                        fnum(a.at)
+                    },
+                    pct(a.believed),
+                    pct(a.implied)
+                );
             }
             html.push_str("</tbody></table>\n");
         }
@@ -679,13 +863,24 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     }
     // The prior.
     html.push_str("<section id=\"prior\">\n<h2>The fitted prior</h2>\n<table class=\"prior\"><thead><tr><th>parameter</th><th>meaning</th><th>family</th><th>parameters</th></tr></thead><tbody>\n");
-    for st in json.get("prior").and_then(Value::as_array).into_iter().flatten() {
+    for st in json
+        .get("prior")
+        .and_then(Value::as_array)
+        .into_iter()
+        .flatten()
+    {
         let params = st
             .get("params")
             .and_then(Value::as_array)
             .map(|a| {
                 a.iter()
-                    .map(|p| format!("{} = {}", p.get(0).and_then(Value::as_str).unwrap_or("?"), p.get(1).and_then(number).map_or("?".into(), fnum)))
+                    .map(|p| {
+                        format!(
+                            "{} = {}",
+                            p.get(0).and_then(Value::as_str).unwrap_or("?"),
+                            p.get(1).and_then(number).map_or("?".into(), fnum)
+                        )
+                    })
                     .collect::<Vec<_>>()
                     .join(", ")
             })
@@ -704,29 +899,58 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     let order: Vec<String> = json
         .get("order")
         .and_then(Value::as_array)
-        .map(|a| a.iter().filter_map(|v| v.as_str().map(str::to_string)).collect())
+        .map(|a| {
+            a.iter()
+                .filter_map(|v| v.as_str().map(str::to_string))
+                .collect()
+        })
         .unwrap_or_default();
     for name in &order {
-        let v = json.get("hyperparameters").and_then(|m| m.get(name)).and_then(number).unwrap_or(f64::NAN);
-        let how = match json.get("bounds").and_then(|m| m.get(name)).and_then(Value::as_array) {
+        let v = json
+            .get("hyperparameters")
+            .and_then(|m| m.get(name))
+            .and_then(number)
+            .unwrap_or(f64::NAN);
+        let how = match json
+            .get("bounds")
+            .and_then(|m| m.get(name))
+            .and_then(Value::as_array)
+        {
             Some(a) if a.len() == 2 => {
-                let (lo, hi) = (a[0].as_f64().unwrap_or(f64::NAN), a[1].as_f64().unwrap_or(f64::NAN));
+                let (lo, hi) = (
+                    a[0].as_f64().unwrap_or(f64::NAN),
+                    a[1].as_f64().unwrap_or(f64::NAN),
+                );
                 let near = (v - lo).abs() < 1e-3 * (hi - lo) || (hi - v).abs() < 1e-3 * (hi - lo);
-                format!("fitted in [{}, {}]{}", fnum(lo), fnum(hi), if near { " — at a bound" } else { "" })
+                format!(
+                    "fitted in [{}, {}]{}",
+                    fnum(lo),
+                    fnum(hi),
+                    if near { " — at a bound" } else { "" }
+                )
             }
             _ => "fixed in the belief file".into(),
         };
-        let _ = writeln!(html, "<tr><td><code>{}</code></td><td>{}</td><td>{}</td></tr>", esc(name), fnum(v), esc(&how));
+        let _ = writeln!(
+            html,
+            "<tr><td><code>{}</code></td><td>{}</td><td>{}</td></tr>",
+            esc(name),
+            fnum(v),
+            esc(&how)
+        );
     }
     html.push_str("</tbody></table>\n");
     if let Some(hp) = hyper_plot("hyperparameters", json) {
         svgs("hyperparameters", &hp);
-        let _ = write!(html, "<figure class=\"wide\">{hp}<figcaption>Each free hyperparameter's fitted value (dot) within the bounds it was fitted in; orange marks a value at a bound, where the bounds rather than the beliefs decided.</figcaption></figure>\n");
+        let _ = writeln!(html, "<figure class=\"wide\">{hp}<figcaption>Each free hyperparameter's fitted value (dot) within the bounds it was fitted in; orange marks a value at a bound, where the bounds rather than the beliefs decided.</figcaption></figure>");
     }
     html.push_str("</section>\n");
     // Optional diagnostics, present when other parts of the program wrote them.
     let diag: Vec<(&str, &str, &Value)> = [
-        ("identifiability", "Directions the beliefs leave undetermined"),
+        (
+            "identifiability",
+            "Directions the beliefs leave undetermined",
+        ),
         ("pareto", "Pareto front: faithfulness against spread"),
         ("sweep", "Sensitivity sweep"),
     ]
@@ -736,19 +960,17 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     if !diag.is_empty() {
         html.push_str("<section id=\"diagnostics\">\n<h2>Diagnostics</h2>\n");
         for (key, title, v) in diag {
-            let _ = write!(html, "<h3>{}</h3>\n", esc(title));
+            let _ = writeln!(html, "<h3>{}</h3>", esc(title));
             if let Some(p) = diagnostic_plot(&format!("diag-{key}"), key, v) {
                 svgs(&format!("diag-{key}"), &p);
-                let _ = write!(html, "<figure>{p}<figcaption>From the <code>{key}</code> entry of fit.json.</figcaption></figure>\n");
+                let _ = writeln!(html, "<figure>{p}<figcaption>From the <code>{key}</code> entry of fit.json.</figcaption></figure>");
             }
             let pretty = serde_json::to_string_pretty(v).unwrap_or_default();
-            let _ = write!(html, "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>\n", esc(&pretty));
+            let _ = writeln!(html, "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>", esc(&pretty));
         }
         html.push_str("</section>\n");
     }
-    let _ = write!(
-        html,
-        "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder; the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>\n",
+    let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder; the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
         esc(CAUTION)
     );
     files.push((PathBuf::from("report.html"), html.into_bytes()));

@@ -31,7 +31,7 @@ pub fn esc(s: &str) -> String {
 
 /// Tick positions covering [lo, hi] with about `n` steps of 1, 2 or 5 × 10^k.
 pub fn ticks(lo: f64, hi: f64, n: usize) -> Vec<f64> {
-    if !(hi > lo) || !lo.is_finite() || !hi.is_finite() {
+    if hi.is_nan() || hi <= lo || !lo.is_finite() || !hi.is_finite() {
         return vec![lo];
     }
     let raw = (hi - lo) / n.max(1) as f64;
@@ -124,7 +124,13 @@ const BOTTOM: f64 = 52.0;
 
 impl Plot {
     /// `extra_right` reserves pixels right of the x axis (the "+∞" column).
-    pub fn new(id: &str, title: &str, x: (f64, f64, bool), y: (f64, f64), extra_right: f64) -> Self {
+    pub fn new(
+        id: &str,
+        title: &str,
+        x: (f64, f64, bool),
+        y: (f64, f64),
+        extra_right: f64,
+    ) -> Self {
         let xa = Axis {
             lo: x.0,
             hi: x.1,
@@ -207,7 +213,14 @@ impl Plot {
     }
 
     /// A polyline through data points (NaN or infinite points are skipped).
-    pub fn line(&mut self, pts: &[(f64, f64)], color: &str, width: f64, dash: Option<&str>, name: &str) {
+    pub fn line(
+        &mut self,
+        pts: &[(f64, f64)],
+        color: &str,
+        width: f64,
+        dash: Option<&str>,
+        name: &str,
+    ) {
         let d = self.path(pts);
         if d.is_empty() {
             return;
@@ -263,7 +276,17 @@ impl Plot {
     }
 
     /// A line in pixel coordinates (for annotations outside the data range).
-    pub fn raw_line(&mut self, x1: f64, y1: f64, x2: f64, y2: f64, color: &str, width: f64, dash: Option<&str>) {
+    #[allow(clippy::too_many_arguments)]
+    pub fn raw_line(
+        &mut self,
+        x1: f64,
+        y1: f64,
+        x2: f64,
+        y2: f64,
+        color: &str,
+        width: f64,
+        dash: Option<&str>,
+    ) {
         let _ = writeln!(
             self.body,
             "<line x1=\"{x1:.2}\" y1=\"{y1:.2}\" x2=\"{x2:.2}\" y2=\"{y2:.2}\" stroke=\"{color}\" stroke-width=\"{width}\"{}/>",
@@ -334,11 +357,17 @@ mod tests {
 
     #[test]
     fn ticks_are_nice_and_cover() {
-        assert_eq!(ticks(0.0, 1.0, 5), vec![0.0, 0.2, 0.4, 0.6000000000000001, 0.8, 1.0]);
+        assert_eq!(
+            ticks(0.0, 1.0, 5),
+            vec![0.0, 0.2, 0.4, 0.6000000000000001, 0.8, 1.0]
+        );
         let t = ticks(3.2, 57.0, 6);
         assert_eq!(t.first(), Some(&10.0));
         assert_eq!(t.last(), Some(&50.0));
-        assert_eq!(log_ticks(1.0, 1000.0), vec![1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0]);
+        assert_eq!(
+            log_ticks(1.0, 1000.0),
+            vec![1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0]
+        );
         assert_eq!(tick_label(0.6000000000000001), "0.6");
         assert_eq!(tick_label(25.0), "25");
     }
