@@ -303,3 +303,40 @@ pub fn overall(beliefs: &[BeliefReport]) -> Verdict {
         .max()
         .unwrap_or(Verdict::MetWithinNoise)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::dist::{lognormal::LogNormal, Atom, Mixed};
+    use std::sync::Arc;
+
+    #[test]
+    fn believed_curve_keeps_atoms_and_mass() {
+        let d = Mixed::new(
+            vec![
+                Atom { at: 0.0, mass: 0.2 },
+                Atom {
+                    at: f64::INFINITY,
+                    mass: 0.05,
+                },
+            ],
+            Some(Arc::new(LogNormal::new(3.0, 0.4).unwrap())),
+        )
+        .unwrap();
+        let c = believed_curve(&d);
+        assert!(c.x.windows(2).all(|w| w[0] < w[1]));
+        // The finite atom is a tabulated point with its mass included; +∞ never is.
+        let k = c.x.iter().position(|x| *x == 0.0).unwrap();
+        assert!((c.cdf[k] - 0.2).abs() < 1e-12);
+        assert!(*c.cdf.last().unwrap() <= 0.95 + 1e-12);
+        // Trapezoid integral of the continuous density ≈ its mass 0.75 over the
+        // 0.1–99.9 % range (0.998 of it).
+        let integral: f64 =
+            c.x.windows(2)
+                .zip(c.pdf.windows(2))
+                .skip(k + 1)
+                .map(|(x, p)| 0.5 * (p[0] + p[1]) * (x[1] - x[0]))
+                .sum();
+        assert!((integral - 0.75 * 0.998).abs() < 2e-3, "{integral}");
+    }
+}

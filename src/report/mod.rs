@@ -438,10 +438,12 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
             ));
         }
         series.push((ecdf(s, hi), 1.0 - b.implied_inf, VERMILLION, Some("6 3")));
-        for (edge, below, col, dash) in series {
+        for (k, (edge, below, col, dash)) in series.into_iter().enumerate() {
+            // Side by side, so both jumps stay visible when their masses agree.
+            let xj = xc + if k == 0 { -4.0 } else { 4.0 };
             let (ye, yb, yt) = (p.y.px(edge), p.y.px(below), p.y.px(1.0));
-            p.raw_line(xe, ye, xc, yb, col, 1.6, Some("1 3"));
-            p.raw_line(xc, yb, xc, yt, col, 3.0, dash);
+            p.raw_line(xe, ye, xj, yb, col, 1.6, Some("1 3"));
+            p.raw_line(xj, yb, xj, yt, col, 3.0, dash);
         }
         let ym = 0.5 * (y0 + y1);
         p.text(xc, ym - 8.0, "middle", "note", "mass at ∞");
