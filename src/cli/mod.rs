@@ -14,6 +14,9 @@ use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 
+mod export;
+mod report;
+
 #[derive(Parser, Debug)]
 #[command(
     name = "priorsmith",
@@ -94,6 +97,22 @@ pub enum Command {
         #[arg(long)]
         force: bool,
     },
+    /// Write the fitted prior of DIR/fit.json as code for Stan, PyMC, brms or JSON.
+    Export {
+        /// Output folder of `priorsmith fit`.
+        dir: PathBuf,
+        /// Target language.
+        #[arg(long, value_enum)]
+        to: crate::export::Lang,
+        /// Write to FILE (atomically) instead of standard output.
+        #[arg(long, short)]
+        out: Option<PathBuf>,
+    },
+    /// Write DIR/report.html (and DIR/plots/*.svg) from DIR/fit.json and DIR/draws.csv.
+    Report {
+        /// Output folder of `priorsmith fit`.
+        dir: PathBuf,
+    },
     /// Fit every shipped demo scenario and print a summary table.
     Demo {
         /// Output folder (one sub-folder per scenario).
@@ -160,6 +179,8 @@ pub fn run(cli: Cli) -> Result<()> {
             force,
         } => cmd_new(&template, out.as_deref(), force, quiet),
         Command::Demo { out } => cmd_demo(&out, quiet),
+        Command::Export { dir, to, out } => export::run(&dir, to, out.as_deref(), quiet),
+        Command::Report { dir } => report::run(&dir, quiet),
     }
 }
 
@@ -198,6 +219,7 @@ pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitRes
         pb.finish_and_clear();
     }
     output::write_fit(out, &r)?;
+    crate::report::write(out)?;
     Ok(r)
 }
 
@@ -212,7 +234,10 @@ fn cmd_fit(a: &SpecArgs, out: &Path, replicates: Option<usize>, quiet: bool) -> 
     let r = fit_and_write(&spec, out, quiet)?;
     if !quiet {
         print!("{}", output::summary::render(&r));
-        println!("\nwrote {}/fit.json, summary.txt, draws.csv", out.display());
+        println!(
+            "\nwrote {}/fit.json, summary.txt, draws.csv, report.html",
+            out.display()
+        );
     }
     Ok(())
 }
@@ -410,7 +435,7 @@ fn cmd_demo(out: &Path, quiet: bool) -> Result<()> {
             );
         }
         println!(
-            "\noutputs under {}/<scenario>/ (fit.json, summary.txt, draws.csv)",
+            "\noutputs under {}/<scenario>/ (fit.json, summary.txt, draws.csv, report.html)",
             out.display()
         );
         println!("{}", output::summary::CAUTION);

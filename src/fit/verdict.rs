@@ -71,6 +71,57 @@ pub struct BeliefReport {
     pub implied_sd: Option<f64>,
     /// Mass of the implied distribution at +∞ (e.g. median never reached).
     pub implied_mass_at_inf: f64,
+    /// The believed distribution as a curve, for plots (reports read it back).
+    pub believed_curve: BelievedCurve,
+}
+
+/// The believed CDF F(x) and the density of its continuous part, tabulated on
+/// `CURVE_POINTS` points (half quantile-spaced, half evenly spaced between the
+/// 0.1 % and 99.9 % quantiles of the continuous part, plus every finite atom),
+/// with the atoms listed separately. `cdf` is right-continuous: at an atom `a`
+/// it includes the atom's mass; the left limit is `cdf − mass`. `pdf` is the
+/// continuous part's density times its mass (so it integrates to 1 − Σ atoms).
+#[derive(Debug, Clone, Serialize)]
+pub struct BelievedCurve {
+    pub x: Vec<f64>,
+    pub cdf: Vec<f64>,
+    pub pdf: Vec<f64>,
+    pub atoms: Vec<crate::dist::Atom>,
+}
+
+pub const CURVE_POINTS: usize = 200;
+
+/// Tabulate the believed distribution for plots.
+pub fn believed_curve(d: &crate::dist::Mixed) -> BelievedCurve {
+    let mut xs: Vec<f64> = Vec::with_capacity(CURVE_POINTS + d.atoms.len());
+    if let Some(c) = &d.cont {
+        let half = CURVE_POINTS / 2;
+        let (lo, hi) = (c.quantile(0.001), c.quantile(0.999));
+        for k in 0..half {
+            // Probit-spaced probabilities between 0.1 % and 99.9 %.
+            let z = -3.09 + 6.18 * k as f64 / (half - 1) as f64;
+            xs.push(c.quantile(crate::numerics::norm_cdf(z)));
+            if lo.is_finite() && hi.is_finite() {
+                xs.push(lo + (hi - lo) * k as f64 / (half - 1) as f64);
+            }
+        }
+    }
+    xs.extend(d.atoms.iter().map(|a| a.at).filter(|a| a.is_finite()));
+    xs.retain(|x| x.is_finite());
+    xs.sort_by(f64::total_cmp);
+    xs.dedup();
+    let cm = d.cont_mass();
+    let pdf = xs
+        .iter()
+        .map(|x| d.cont.as_ref().map_or(0.0, |c| cm * c.pdf(*x)))
+        .map(|v| if v.is_finite() { v } else { 0.0 })
+        .collect();
+    BelievedCurve {
+        cdf: xs.iter().map(|x| d.cdf(*x)).collect(),
+        pdf,
+        x: xs,
+        atoms: d.atoms.clone(),
+    }
 }
 
 /// The p-quantile of sorted draws (type-1 empirical quantile).
@@ -164,6 +215,7 @@ pub fn judge(
         implied_mean: mean,
         implied_sd: sd,
         implied_mass_at_inf: inf_mass,
+        believed_curve: believed_curve(&b.target.dist),
     }
 }
 
@@ -295,4 +347,41 @@ pub fn overall(beliefs: &[BeliefReport]) -> Verdict {
         .map(|b| b.verdict)
         .max()
         .unwrap_or(Verdict::MetWithinNoise)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::dist::{lognormal::LogNormal, Atom, Mixed};
+    use std::sync::Arc;
+
+    #[test]
+    fn believed_curve_keeps_atoms_and_mass() {
+        let d = Mixed::new(
+            vec![
+                Atom { at: 0.0, mass: 0.2 },
+                Atom {
+                    at: f64::INFINITY,
+                    mass: 0.05,
+                },
+            ],
+            Some(Arc::new(LogNormal::new(3.0, 0.4).unwrap())),
+        )
+        .unwrap();
+        let c = believed_curve(&d);
+        assert!(c.x.windows(2).all(|w| w[0] < w[1]));
+        // The finite atom is a tabulated point with its mass included; +∞ never is.
+        let k = c.x.iter().position(|x| *x == 0.0).unwrap();
+        assert!((c.cdf[k] - 0.2).abs() < 1e-12);
+        assert!(*c.cdf.last().unwrap() <= 0.95 + 1e-12);
+        // Trapezoid integral of the continuous density ≈ its mass 0.75 over the
+        // 0.1–99.9 % range (0.998 of it).
+        let integral: f64 =
+            c.x.windows(2)
+                .zip(c.pdf.windows(2))
+                .skip(k + 1)
+                .map(|(x, p)| 0.5 * (p[0] + p[1]) * (x[1] - x[0]))
+                .sum();
+        assert!((integral - 0.75 * 0.998).abs() < 2e-3, "{integral}");
+    }
 }

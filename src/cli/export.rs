@@ -1,0 +1,26 @@
+//! `priorsmith export DIR --to LANG [--out FILE]`: the fitted prior of DIR/fit.json
+//! as ready-to-paste code (see `crate::export`).
+
+use crate::export::{self, Lang};
+use crate::output;
+use anyhow::Result;
+use std::path::Path;
+
+pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool) -> Result<()> {
+    let text = export::export_dir(dir, to)?;
+    match out {
+        Some(p) if p != Path::new("-") => {
+            output::write_atomic(p, text.as_bytes())?;
+            if !quiet {
+                eprintln!(
+                    "wrote {} ({} prior for {})",
+                    p.display(),
+                    to.name(),
+                    dir.display()
+                );
+            }
+        }
+        _ => print!("{text}"),
+    }
+    Ok(())
+}

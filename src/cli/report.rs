@@ -1,0 +1,18 @@
+//! `priorsmith report DIR`: DIR/report.html and DIR/plots/*.svg from DIR/fit.json
+//! and DIR/draws.csv (see `crate::report`).
+
+use anyhow::Result;
+use std::path::Path;
+
+pub fn run(dir: &Path, quiet: bool) -> Result<()> {
+    let files = crate::report::write(dir)?;
+    if !quiet {
+        println!(
+            "wrote {} and {} plot(s) in {}",
+            dir.join("report.html").display(),
+            files.len().saturating_sub(1),
+            dir.join("plots").display()
+        );
+    }
+    Ok(())
+}

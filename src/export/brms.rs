@@ -1,0 +1,119 @@
+//! brms export: a `priors <- c(set_prior(...), ...)` specification.
+//!
+//! brms prior strings are Stan distribution calls, so the family mapping is
+//! Stan's ([`super::stan::form`]). Each of our parameters becomes a non-linear
+//! parameter (`nlpar`, class "b") of an intercept-only formula
+//! (`bf(y ~ f(cureLogit, …), cureLogit ~ 1, nl = TRUE)`); bounds go to `lb` /
+//! `ub`, which brms allows for class "b" (brms documentation of `set_prior`).
+//! brms rejects non-linear parameter names containing dots or underscores
+//! (brms `bf()` validation; its tests expect "not contain dots or underscores"),
+//! so `cure_logit` becomes `cureLogit`, and the export says so.
+//! A family written on another scale (logit-normal, log-logistic) gets a helper
+//! nlpar (`pLogit`) and a comment `p is inv_logit(pLogit): write inv_logit(pLogit) for it in
+//! the non-linear formula`.
+
+use super::stan::form;
+use super::{check_ident, check_unique, header_lines, num, Header, Item, Lang};
+use crate::error::Result;
+
+/// Reserved words of R (R Language Definition, "Reserved words").
+pub const RESERVED: &[&str] = &[
+    "if", "else", "repeat", "while", "function", "for", "next", "break", "TRUE", "FALSE", "NULL",
+    "Inf", "NaN", "NA", "in",
+];
+
+/// `cure_logit` → `cureLogit` (brms forbids `_` and `.` in nlpar names).
+pub fn nlpar_name(name: &str) -> String {
+    let mut out = String::new();
+    let mut up = false;
+    for c in name.chars() {
+        if c == '_' || c == '.' {
+            up = true;
+        } else if up {
+            out.extend(c.to_uppercase());
+            up = false;
+        } else {
+            out.push(c);
+        }
+    }
+    out
+}
+
+pub fn render(h: &Header, items: &[Item]) -> Result<String> {
+    let mut calls: Vec<(Vec<String>, String)> = Vec::new();
+    let mut names = Vec::new();
+    for it in items {
+        match it {
+            Item::Scalar(s) => {
+                check_ident(&s.parameter, Lang::Brms, RESERVED)?;
+                let f = form(s)?;
+                let nl = nlpar_name(&f.sampled);
+                names.push(nl.clone());
+                let mut comments = Vec::new();
+                let target = nlpar_name(&s.parameter);
+                if !s.about.is_empty() {
+                    comments.push(format!("{}: {}", s.parameter, s.about));
+                }
+                if let Some(n) = &f.note {
+                    comments.push(n.clone());
+                }
+                if let Some((func, _, _)) = f.derived {
+                    names.push(target.clone());
+                    comments.push(format!(
+                        "{} is {func}({nl}): write {func}({nl}) for it in the non-linear formula",
+                        s.parameter
+                    ));
+                } else if nl != s.parameter {
+                    comments.push(format!("nlpar {nl} is the parameter {}", s.parameter));
+                }
+                let mut args = format!("\"{}\", class = \"b\", nlpar = \"{nl}\"", f.dist);
+                if let Some(l) = f.lower {
+                    args.push_str(&format!(", lb = {}", num(l)));
+                }
+                if let Some(u) = f.upper {
+                    args.push_str(&format!(", ub = {}", num(u)));
+                }
+                calls.push((comments, format!("set_prior({args})")));
+            }
+            Item::Supplied(s) => {
+                names.push(s.parameter.clone());
+                for l in s.lines(Lang::Brms, "priors")? {
+                    calls.push((Vec::new(), l.clone()));
+                }
+            }
+        }
+    }
+    check_unique(&names, Lang::Brms)?;
+    let mut out = String::new();
+    for l in header_lines(h, "brms") {
+        out.push_str(&format!("# {l}\n"));
+    }
+    out.push_str(
+        "# Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,\n\
+         # e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);\n\
+         # change class / nlpar to match your model. Pass `prior = priors` to brm().\n",
+    );
+    out.push_str("library(brms)\npriors <- c(\n");
+    let n = calls.len();
+    for (k, (comments, call)) in calls.into_iter().enumerate() {
+        for c in comments {
+            out.push_str(&format!("  # {c}\n"));
+        }
+        out.push_str(&format!("  {call}{}\n", if k + 1 < n { "," } else { "" }));
+    }
+    out.push_str(")\n");
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn nlpar_names_have_no_underscores() {
+        assert_eq!(super::nlpar_name("cure_logit"), "cureLogit");
+        assert_eq!(super::nlpar_name("shape"), "shape");
+        assert_eq!(
+            super::nlpar_name("cure_effect_arm_logit"),
+            "cureEffectArmLogit"
+        );
+    }
+}
