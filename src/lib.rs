@@ -7,6 +7,7 @@
 //! optimiser ([`fit`]) → [`fit::FitResult`] → writers ([`output`]). The command
 //! line ([`cli`]) uses only what this library exposes.
 
+pub mod batch;
 pub mod cli;
 pub mod demo;
 pub mod discrepancy;
@@ -20,6 +21,7 @@ pub mod report;
 pub mod rng;
 pub mod simulate;
 pub mod spec;
+pub mod sweep;
 pub mod target;
 pub mod templates;
 

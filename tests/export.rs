@@ -748,7 +748,13 @@ fn report_renders_in_headless_chromium() {
     // Every plot the report draws is also written as its own SVG file.
     let files = std::fs::read_dir(out.join("plots"))
         .unwrap()
-        .filter(|e| e.as_ref().unwrap().path().extension().is_some_and(|x| x == "svg"))
+        .filter(|e| {
+            e.as_ref()
+                .unwrap()
+                .path()
+                .extension()
+                .is_some_and(|x| x == "svg")
+        })
         .count();
     assert!(files >= 5, "only {files} plot files");
     assert_eq!(plots, files.to_string());

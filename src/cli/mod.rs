@@ -14,8 +14,10 @@ use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 
+mod batch;
 mod export;
 mod report;
+mod sweep;
 
 #[derive(Parser, Debug)]
 #[command(
@@ -113,6 +115,24 @@ pub enum Command {
         /// Output folder of `priorsmith fit`.
         dir: PathBuf,
     },
+    /// Refit with the beliefs widened or narrowed by each factor; write a table and a plot.
+    Sweep {
+        #[command(flatten)]
+        spec: SpecArgs,
+        /// Width factors, e.g. 0.5,0.75,1,1.5,2 (1 = the beliefs as stated).
+        #[arg(long, default_value = "0.5,0.75,1,1.5,2")]
+        widths: String,
+        /// Widen only these beliefs (1-based, e.g. 1,3); default all.
+        #[arg(long)]
+        beliefs: Option<String>,
+        /// Output folder.
+        #[arg(long, short, default_value = "priorsmith-sweep")]
+        out: PathBuf,
+    },
+    /// Fit one model per row of a table of changes to a base belief file.
+    Batch(batch::BatchArgs),
+    /// Assemble the results of batch shards (or of one batch folder) into one table.
+    Merge(batch::MergeArgs),
     /// Fit every shipped demo scenario and print a summary table.
     Demo {
         /// Output folder (one sub-folder per scenario).
@@ -181,6 +201,14 @@ pub fn run(cli: Cli) -> Result<()> {
         Command::Demo { out } => cmd_demo(&out, quiet),
         Command::Export { dir, to, out } => export::run(&dir, to, out.as_deref(), quiet),
         Command::Report { dir } => report::run(&dir, quiet),
+        Command::Sweep {
+            spec,
+            widths,
+            beliefs,
+            out,
+        } => sweep::cmd_sweep(&spec, &widths, beliefs.as_deref(), &out, quiet),
+        Command::Batch(a) => batch::cmd_batch(&a, quiet),
+        Command::Merge(a) => batch::cmd_merge(&a, quiet),
     }
 }
 

@@ -270,9 +270,13 @@ pub struct Point {
 }
 
 /// Optimise, analyse identifiability, apply the tie-break rule.
-pub fn fit_point(spec: &Spec, progress: Option<Progress>) -> Result<(Vec<f64>, Point)> {
+pub fn fit_point(
+    spec: &Spec,
+    warm: Option<&[f64]>,
+    progress: Option<Progress>,
+) -> Result<(Vec<f64>, Point)> {
     use crate::spec::TieBreak;
-    let (h0, mut opt) = optimise(spec, 0.0, None, progress)?;
+    let (h0, mut opt) = optimise(spec, 0.0, warm, progress)?;
     let mut obj = Objective::new(
         spec,
         spec.draws,
@@ -420,7 +424,7 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
 pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     let started = Instant::now();
     use crate::spec::TieBreak;
-    let (_, point) = fit_point(spec, progress)?;
+    let (_, point) = fit_point(spec, None, progress)?;
     let applied = match (&point.front, spec.fit.tie_break) {
         (_, TieBreak::Kappa(k)) => TieBreak::Kappa(k),
         (Some(f), _) if f.rule == "knee" => TieBreak::Knee,

@@ -16,6 +16,7 @@
 pub mod histogram;
 pub mod pool;
 pub mod quantiles;
+pub mod widened;
 
 use crate::dist::{Atom, Dist, Mixed};
 use crate::numerics::{norm_cdf, norm_quantile};

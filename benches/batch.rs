@@ -1,0 +1,49 @@
+//! Batch throughput: models per second for the mixture-cure template at 10,000
+//! draws (the relapse-free demo beliefs, one row per seed), through
+//! `batch::run` exactly as the `batch` command runs it (fits, per-model folders,
+//! row records, combined tables), on a 2-thread pool.
+
+use criterion::{criterion_group, criterion_main, BatchSize, Criterion, Throughput};
+use priorsmith::batch::{self, RunOptions};
+use priorsmith::spec::Overrides;
+
+const ROWS: usize = 4;
+
+fn bench(c: &mut Criterion) {
+    let _ = rayon::ThreadPoolBuilder::new()
+        .num_threads(2)
+        .build_global();
+    let d = tempfile::tempdir().unwrap();
+    let base = d.path().join("base.toml");
+    std::fs::write(
+        &base,
+        include_str!("../demo-data/relapse-free-cure.toml")
+            .replace("draws = 20000", "draws = 10000"),
+    )
+    .unwrap();
+    let table = d.path().join("table.csv");
+    let mut t = String::from("id,simulation.seed\n");
+    for k in 0..ROWS {
+        t.push_str(&format!("m{k},{}\n", 1 + k));
+    }
+    std::fs::write(&table, t).unwrap();
+    let plan = batch::plan(&base, &table, &Overrides::default()).unwrap();
+    let mut g = c.benchmark_group("batch");
+    g.sample_size(10);
+    g.throughput(Throughput::Elements(ROWS as u64));
+    g.bench_function("mixture-cure 10k draws, 2 threads", |b| {
+        b.iter_batched(
+            || tempfile::tempdir().unwrap(),
+            |out| {
+                let r = batch::run(&plan, out.path(), &RunOptions::default(), &|_, _| {}).unwrap();
+                assert_eq!(r.fitted, ROWS);
+                out
+            },
+            BatchSize::PerIteration,
+        )
+    });
+    g.finish();
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -1,0 +1,633 @@
+//! Batches of many models: one base belief file and a table whose rows change it
+//! (see [`table`] for the column addressing). Each row is validated and fitted
+//! independently, in parallel (rayon), with that row's own seed, so a row's
+//! result does not depend on the other rows, the thread count or the shard.
+//!
+//! Nothing lost: every finished row is committed on its own, atomically, under
+//! the output folder — `models/<id>/` (fit.json, summary.txt, draws.csv,
+//! spec.toml, via [`crate::output::write_fit`]) and then the row record
+//! `rows/<row>.json`, written last. A record carries a digest of everything that
+//! determines the row's result (its id, the changed TOML table, the draws
+//! overrides, the tool version); a rerun skips rows whose record is `ok` with a
+//! matching digest and redoes the others (failed rows are tried again). The
+//! combined tables are assembled from the records in row order at the end, so a
+//! killed and resumed batch gives the same `results.csv` as an uninterrupted one.
+//! Wall times differ from run to run and live in `timings.csv` only.
+//!
+//! Shards: `shard = (i, n)` runs the i-th of n contiguous slices of the rows
+//! (rows ⌊(i−1)N/n⌋+1 … ⌊iN/n⌋); [`merge`] assembles the records of several
+//! shard folders (or of one shared folder) into the same tables.
+
+pub mod table;
+
+use crate::error::{Error, Location, Result};
+use crate::fit;
+use crate::output::{self, write_atomic};
+use crate::spec::{self, Overrides};
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+use sha2::Digest;
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+pub use table::Table;
+
+/// One planned row: the changed TOML table, or why it could not be built.
+#[derive(Debug, Clone)]
+pub struct PlannedRow {
+    pub number: usize,
+    pub line: u64,
+    pub id: String,
+    /// The base table with the row's cells applied, with the key path (as the
+    /// belief-file validator renders it) and the cell of each applied column.
+    pub table: std::result::Result<toml::Table, String>,
+    pub applied: Vec<(String, String, String)>,
+    pub digest: String,
+}
+
+/// A batch: the base file, the table, and every row's changed TOML.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    pub base_path: PathBuf,
+    pub base_text: String,
+    pub table_path: PathBuf,
+    pub overrides: Overrides,
+    pub rows: Vec<PlannedRow>,
+}
+
+/// What a finished (or failed) row leaves behind: `rows/<row>.json`.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct RowRecord {
+    pub row: usize,
+    pub id: String,
+    pub digest: String,
+    /// "ok" or "error".
+    pub status: String,
+    /// Hyperparameter columns, (name, value as written in results.csv).
+    pub hyperparameters: Vec<(String, String)>,
+    /// Other result columns: discrepancies, verdicts, evaluations.
+    pub stats: Vec<(String, String)>,
+    pub reason: Option<String>,
+    pub stage: Option<String>,
+    pub wall_time_s: f64,
+}
+
+/// Options of a run.
+#[derive(Debug, Clone, Default)]
+pub struct RunOptions {
+    /// (i, n), 1 ≤ i ≤ n.
+    pub shard: Option<(usize, usize)>,
+}
+
+/// Summary of a run.
+#[derive(Debug, Clone, Default)]
+pub struct RunReport {
+    pub rows: usize,
+    pub fitted: usize,
+    pub skipped: usize,
+    pub failed: usize,
+    /// Files written at the end (relative names).
+    pub tables: Vec<String>,
+}
+
+fn sha(parts: &[&str]) -> String {
+    let mut h = sha2::Sha256::new();
+    for p in parts {
+        h.update(p.as_bytes());
+        h.update([0u8]);
+    }
+    format!("{:x}", h.finalize())
+}
+
+/// Parse "i/n".
+pub fn parse_shard(s: &str) -> std::result::Result<(usize, usize), String> {
+    let (a, b) = s
+        .split_once('/')
+        .ok_or_else(|| format!("--shard {s}: expected i/n, e.g. 2/4"))?;
+    let i: usize = a
+        .trim()
+        .parse()
+        .map_err(|_| format!("--shard {s}: `{a}` is not a whole number"))?;
+    let n: usize = b
+        .trim()
+        .parse()
+        .map_err(|_| format!("--shard {s}: `{b}` is not a whole number"))?;
+    if n == 0 || i == 0 || i > n {
+        return Err(format!("--shard {s}: need 1 ≤ i ≤ n"));
+    }
+    Ok((i, n))
+}
+
+/// The 0-based row indices of shard (i, n) of `total` rows.
+pub fn shard_range(total: usize, shard: Option<(usize, usize)>) -> std::ops::Range<usize> {
+    match shard {
+        None => 0..total,
+        Some((i, n)) => ((i - 1) * total / n)..(i * total / n),
+    }
+}
+
+/// Read the base file and the table and apply every row (no validation yet).
+pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan> {
+    let base_text = std::fs::read_to_string(base_path).map_err(|e| Error::io(base_path, e))?;
+    let base = spec::parse_table(&base_text, Some(base_path))?;
+    let t = table::read(table_path)?;
+    let mut seen: BTreeMap<String, usize> = BTreeMap::new();
+    let mut rows = Vec::new();
+    for r in &t.rows {
+        let mut applied = Vec::new();
+        let mut tab = base.clone();
+        let mut res: std::result::Result<(), String> = table::check_id(&r.id);
+        if res.is_ok() {
+            if let Some(first) = seen.get(&r.id) {
+                res = Err(format!("id \"{}\" repeats the id of row {first}", r.id));
+            } else {
+                seen.insert(r.id.clone(), r.number);
+            }
+        }
+        if res.is_ok() {
+            for (c, cell) in &r.cells {
+                let col = &t.columns[*c];
+                let value = (cell != "!unset").then(|| table::cell_value(cell));
+                match table::apply(&mut tab, &t.segments[*c], value) {
+                    Ok(p) => applied.push((col.clone(), cell.clone(), spec::render(&p))),
+                    Err(m) => {
+                        res = Err(format!(
+                            "{}:{}: column `{col}`, row {} (id \"{}\"), value \"{cell}\": {m}",
+                            table_path.display(),
+                            r.line,
+                            r.number,
+                            r.id
+                        ));
+                        break;
+                    }
+                }
+            }
+        } else if let Err(m) = &res {
+            res = Err(format!(
+                "{}:{}: column `id`, row {}: {m}",
+                table_path.display(),
+                r.line,
+                r.number
+            ));
+        }
+        let text = toml::to_string(&tab).unwrap_or_default();
+        let digest = sha(&[
+            "priorsmith batch row v1",
+            env!("CARGO_PKG_VERSION"),
+            &r.id,
+            &text,
+            &format!("{:?} {:?}", ov.draws, ov.max_draws),
+        ]);
+        rows.push(PlannedRow {
+            number: r.number,
+            line: r.line,
+            id: r.id.clone(),
+            table: res.map(|_| tab),
+            applied,
+            digest,
+        });
+    }
+    Ok(Plan {
+        base_path: base_path.to_path_buf(),
+        base_text,
+        table_path: table_path.to_path_buf(),
+        overrides: ov.clone(),
+        rows,
+    })
+}
+
+fn one_line(s: &str) -> String {
+    s.lines()
+        .map(str::trim)
+        .filter(|l| !l.is_empty())
+        .collect::<Vec<_>>()
+        .join(" — ")
+}
+
+impl Plan {
+    /// Validate a row into a spec; errors name the table file, row, column and value.
+    pub fn spec(&self, r: &PlannedRow) -> std::result::Result<spec::Spec, String> {
+        let tab = r.table.as_ref().map_err(Clone::clone)?;
+        spec::from_table(
+            tab.clone(),
+            &self.base_text,
+            Some(&self.base_path),
+            &self.overrides,
+        )
+        .map_err(|e| self.row_error(r, e))
+    }
+
+    fn row_error(&self, r: &PlannedRow, e: Error) -> String {
+        let key = match &e {
+            Error::Input { loc, .. } => loc.key.clone(),
+            _ => None,
+        };
+        // The applied column whose key path is nearest to the error's key.
+        let col = key.as_ref().and_then(|k| {
+            r.applied
+                .iter()
+                .filter(|(_, _, p)| {
+                    k == p
+                        || k.starts_with(&format!("{p}."))
+                        || k.starts_with(&format!("{p}["))
+                        || p.starts_with(&format!("{k}."))
+                        || p.starts_with(&format!("{k}["))
+                })
+                .max_by_key(|(_, _, p)| p.len())
+        });
+        let loc = Location {
+            file: Some(self.table_path.clone()),
+            line: Some(r.line as usize),
+            key: col.map(|c| c.0.clone()),
+        };
+        let msg = match col {
+            Some((_, cell, _)) => {
+                format!("row {} (id \"{}\"), value \"{cell}\": {e}", r.number, r.id)
+            }
+            None => format!(
+                "row {} (id \"{}\") with the base file {}: {e}",
+                r.number,
+                r.id,
+                self.base_path.display()
+            ),
+        };
+        one_line(&Error::input(loc, msg).to_string())
+    }
+}
+
+fn record_path(dir: &Path, row: usize) -> PathBuf {
+    dir.join("rows").join(format!("{row:06}.json"))
+}
+
+/// Read a row record, if a complete one exists.
+pub fn read_record(dir: &Path, row: usize) -> Option<RowRecord> {
+    let text = std::fs::read_to_string(record_path(dir, row)).ok()?;
+    serde_json::from_str(&text).ok()
+}
+
+/// Remove temporary files left by a killed writer (`.<name>.tmp-<pid>`).
+fn clean_tmp(dir: &Path) {
+    if let Ok(rd) = std::fs::read_dir(dir) {
+        for e in rd.flatten() {
+            let n = e.file_name().to_string_lossy().to_string();
+            if n.starts_with('.') && n.contains(".tmp-") {
+                let _ = std::fs::remove_file(e.path());
+            }
+        }
+    }
+}
+
+fn fmt(x: f64) -> String {
+    output::fmt_csv(x)
+}
+
+fn ok_record(r: &PlannedRow, res: &fit::FitResult) -> RowRecord {
+    let hyperparameters = res
+        .order
+        .iter()
+        .map(|n| (n.clone(), fmt(res.hyperparameters[n])))
+        .collect();
+    let mut stats = vec![
+        ("fresh_total".to_string(), fmt(res.total.fresh)),
+        ("in_sample_total".into(), fmt(res.total.in_sample)),
+        ("noise_floor".into(), fmt(res.total.noise_floor)),
+        ("verdict".into(), res.verdict.words().to_string()),
+    ];
+    for (i, b) in res.beliefs.iter().enumerate() {
+        let k = i + 1;
+        stats.push((format!("belief{k}.fresh"), fmt(b.fresh)));
+        stats.push((format!("belief{k}.ratio"), fmt(b.ratio)));
+        stats.push((format!("belief{k}.verdict"), b.verdict.words().to_string()));
+    }
+    stats.push(("evaluations".into(), res.optimiser.evaluations.to_string()));
+    RowRecord {
+        row: r.number,
+        id: r.id.clone(),
+        digest: r.digest.clone(),
+        status: "ok".into(),
+        hyperparameters,
+        stats,
+        reason: None,
+        stage: None,
+        wall_time_s: res.wall_time_s,
+    }
+}
+
+fn err_record(r: &PlannedRow, stage: &str, reason: String, t: f64) -> RowRecord {
+    RowRecord {
+        row: r.number,
+        id: r.id.clone(),
+        digest: r.digest.clone(),
+        status: "error".into(),
+        hyperparameters: Vec::new(),
+        stats: Vec::new(),
+        reason: Some(reason),
+        stage: Some(stage.into()),
+        wall_time_s: t,
+    }
+}
+
+/// Validate, fit and commit one row. I/O errors on the output folder abort.
+fn run_row(plan: &Plan, r: &PlannedRow, dir: &Path) -> Result<(RowRecord, bool)> {
+    if let Some(rec) = read_record(dir, r.number) {
+        if rec.status == "ok" && rec.digest == r.digest && rec.id == r.id {
+            return Ok((rec, true));
+        }
+    }
+    let started = Instant::now();
+    let rec = match plan.spec(r) {
+        Err(reason) => err_record(r, "input", reason, started.elapsed().as_secs_f64()),
+        Ok(spec) => match fit::fit(&spec, None) {
+            Err(e) => err_record(
+                r,
+                "fit",
+                one_line(&format!("row {} (id \"{}\"): {e}", r.number, r.id)),
+                started.elapsed().as_secs_f64(),
+            ),
+            Ok(res) => {
+                let mdir = dir.join("models").join(&r.id);
+                clean_tmp(&mdir);
+                output::write_fit(&mdir, &res)?;
+                if let Ok(tab) = &r.table {
+                    let text = format!(
+                        "# The belief file of batch row {} (id \"{}\"): {} with the row's changes.\n\
+                         # Relative paths resolve against the base file's folder.\n{}",
+                        r.number,
+                        r.id,
+                        plan.base_path.display(),
+                        toml::to_string(tab).unwrap_or_default()
+                    );
+                    write_atomic(&mdir.join("spec.toml"), text.as_bytes())?;
+                }
+                ok_record(r, &res)
+            }
+        },
+    };
+    let json = serde_json::to_string_pretty(&rec).map_err(|e| Error::Numeric(e.to_string()))?;
+    write_atomic(&record_path(dir, r.number), json.as_bytes())?;
+    Ok((rec, false))
+}
+
+/// The manifest `batch.json`: where the batch came from, for `merge`.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Manifest {
+    pub base: PathBuf,
+    pub table: PathBuf,
+    pub draws: Option<usize>,
+    pub max_draws: Option<usize>,
+    pub rows: usize,
+}
+
+fn abs(p: &Path) -> PathBuf {
+    std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf())
+}
+
+/// Run (the shard of) a batch into `dir`. `tick(done, total)` after each row.
+pub fn run(
+    plan: &Plan,
+    dir: &Path,
+    opts: &RunOptions,
+    tick: &(dyn Fn(usize, usize) + Sync),
+) -> Result<RunReport> {
+    output::ensure_dir(dir)?;
+    output::ensure_dir(&dir.join("rows"))?;
+    clean_tmp(dir);
+    clean_tmp(&dir.join("rows"));
+    let man = Manifest {
+        base: abs(&plan.base_path),
+        table: abs(&plan.table_path),
+        draws: plan.overrides.draws,
+        max_draws: plan.overrides.max_draws,
+        rows: plan.rows.len(),
+    };
+    let mj = serde_json::to_string_pretty(&man).map_err(|e| Error::Numeric(e.to_string()))?;
+    write_atomic(&dir.join("batch.json"), mj.as_bytes())?;
+    let range = shard_range(plan.rows.len(), opts.shard);
+    let mine = &plan.rows[range.clone()];
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    let out: Vec<Result<(RowRecord, bool)>> = mine
+        .par_iter()
+        .with_max_len(1)
+        .map(|r| {
+            let x = run_row(plan, r, dir);
+            let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+            tick(k, mine.len());
+            x
+        })
+        .collect();
+    let mut recs = BTreeMap::new();
+    let mut rep = RunReport {
+        rows: mine.len(),
+        ..Default::default()
+    };
+    for x in out {
+        let (rec, skipped) = x?;
+        if skipped {
+            rep.skipped += 1;
+        } else if rec.status == "ok" {
+            rep.fitted += 1;
+        }
+        if rec.status != "ok" {
+            rep.failed += 1;
+        }
+        recs.insert(rec.row, rec);
+    }
+    let suffix = match opts.shard {
+        None => String::new(),
+        Some((i, n)) => format!("-shard-{i}-of-{n}"),
+    };
+    let (res, errs, times) = assemble(plan, range, &recs)?;
+    for (name, bytes) in [
+        (format!("results{suffix}.csv"), res),
+        (format!("errors{suffix}.csv"), errs),
+        (format!("timings{suffix}.csv"), times),
+    ] {
+        write_atomic(&dir.join(&name), &bytes)?;
+        rep.tables.push(name);
+    }
+    Ok(rep)
+}
+
+/// Build results.csv, errors.csv and timings.csv for rows `range` from records.
+/// A row without a current record (digest mismatch or none) is an error.
+pub fn assemble(
+    plan: &Plan,
+    range: std::ops::Range<usize>,
+    recs: &BTreeMap<usize, RowRecord>,
+) -> Result<(Vec<u8>, Vec<u8>, Vec<u8>)> {
+    let rows = &plan.rows[range];
+    let current: Vec<(&PlannedRow, Option<&RowRecord>)> = rows
+        .iter()
+        .map(|r| {
+            (
+                r,
+                recs.get(&r.number)
+                    .filter(|x| x.digest == r.digest && x.id == r.id),
+            )
+        })
+        .collect();
+    let missing: Vec<String> = current
+        .iter()
+        .filter(|(_, x)| x.is_none())
+        .map(|(r, _)| r.number.to_string())
+        .collect();
+    if !missing.is_empty() {
+        return Err(Error::Limit(format!(
+            "no current result for row(s) {}: run the batch (or the shard holding them) again",
+            missing.join(", ")
+        )));
+    }
+    let current: Vec<(&PlannedRow, &RowRecord)> = current
+        .into_iter()
+        .filter_map(|(r, x)| x.map(|x| (r, x)))
+        .collect();
+    // Columns: the union in order of first appearance, hyperparameters first.
+    let mut hcols: Vec<String> = Vec::new();
+    let mut scols: Vec<String> = Vec::new();
+    for (_, x) in &current {
+        for (k, _) in &x.hyperparameters {
+            if !hcols.contains(k) {
+                hcols.push(k.clone());
+            }
+        }
+        for (k, _) in &x.stats {
+            if !scols.contains(k) {
+                scols.push(k.clone());
+            }
+        }
+    }
+    let e = |e: csv::Error| Error::Numeric(e.to_string());
+    let mut res = csv::Writer::from_writer(Vec::new());
+    let mut head = vec!["id".to_string(), "row".to_string()];
+    head.extend(hcols.iter().cloned());
+    head.extend(scols.iter().cloned());
+    res.write_record(&head).map_err(e)?;
+    let mut errs = csv::Writer::from_writer(Vec::new());
+    errs.write_record(["id", "row", "stage", "reason"])
+        .map_err(e)?;
+    let mut times = csv::Writer::from_writer(Vec::new());
+    times
+        .write_record(["id", "row", "wall_time_s"])
+        .map_err(e)?;
+    for (r, x) in &current {
+        if x.status == "ok" {
+            let h: BTreeMap<&str, &str> = x
+                .hyperparameters
+                .iter()
+                .chain(&x.stats)
+                .map(|(k, v)| (k.as_str(), v.as_str()))
+                .collect();
+            let mut line = vec![r.id.clone(), r.number.to_string()];
+            line.extend(
+                hcols
+                    .iter()
+                    .chain(&scols)
+                    .map(|c| h.get(c.as_str()).map_or(String::new(), |v| v.to_string())),
+            );
+            res.write_record(&line).map_err(e)?;
+            times
+                .write_record([
+                    r.id.clone(),
+                    r.number.to_string(),
+                    format!("{:.4}", x.wall_time_s),
+                ])
+                .map_err(e)?;
+        } else {
+            errs.write_record([
+                r.id.clone(),
+                r.number.to_string(),
+                x.stage.clone().unwrap_or_default(),
+                x.reason.clone().unwrap_or_default(),
+            ])
+            .map_err(e)?;
+        }
+    }
+    let f = |w: csv::Writer<Vec<u8>>| w.into_inner().map_err(|e| Error::Numeric(e.to_string()));
+    Ok((f(res)?, f(errs)?, f(times)?))
+}
+
+/// Merge the row records of batch folders into `out` (results.csv, errors.csv,
+/// timings.csv). The folders must come from the same batch (same base file,
+/// table and overrides, read from their batch.json); the tables are re-read
+/// so that only records matching the current rows count.
+pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<RunReport> {
+    let mut man: Option<Manifest> = None;
+    for d in dirs {
+        let p = d.join("batch.json");
+        let text = std::fs::read_to_string(&p).map_err(|e| Error::io(&p, e))?;
+        let m: Manifest = serde_json::from_str(&text).map_err(|e| {
+            Error::input(
+                Location {
+                    file: Some(p.clone()),
+                    ..Default::default()
+                },
+                format!("not a batch manifest: {e}"),
+            )
+        })?;
+        if let Some(first) = &man {
+            if first.base != m.base
+                || first.table != m.table
+                || first.draws != m.draws
+                || first.max_draws != m.max_draws
+            {
+                return Err(Error::input(
+                    Location {
+                        file: Some(p),
+                        ..Default::default()
+                    },
+                    format!(
+                        "this folder belongs to another batch ({} with {}) than {} ({} with {})",
+                        m.table.display(),
+                        m.base.display(),
+                        dirs[0].display(),
+                        first.table.display(),
+                        first.base.display()
+                    ),
+                ));
+            }
+        } else {
+            man = Some(m);
+        }
+    }
+    let man = man.ok_or_else(|| Error::Limit("merge needs at least one folder".into()))?;
+    let ov = Overrides {
+        seed: None,
+        draws: man.draws,
+        max_draws: man.max_draws,
+    };
+    let plan = plan(&man.base, &man.table, &ov)?;
+    let mut recs: BTreeMap<usize, RowRecord> = BTreeMap::new();
+    for r in &plan.rows {
+        // Prefer a current ok record from any folder, then a current error.
+        let mut best: Option<RowRecord> = None;
+        for d in dirs {
+            if let Some(x) = read_record(d, r.number) {
+                if x.digest != r.digest || x.id != r.id {
+                    continue;
+                }
+                if best.as_ref().is_none_or(|b| b.status != "ok") {
+                    best = Some(x);
+                }
+            }
+        }
+        if let Some(b) = best {
+            recs.insert(r.number, b);
+        }
+    }
+    let (res, errs, times) = assemble(&plan, 0..plan.rows.len(), &recs)?;
+    output::ensure_dir(out)?;
+    let mut rep = RunReport {
+        rows: plan.rows.len(),
+        failed: recs.values().filter(|x| x.status != "ok").count(),
+        ..Default::default()
+    };
+    for (name, bytes) in [
+        ("results.csv", res),
+        ("errors.csv", errs),
+        ("timings.csv", times),
+    ] {
+        write_atomic(&out.join(name), &bytes)?;
+        rep.tables.push(name.into());
+    }
+    Ok(rep)
+}

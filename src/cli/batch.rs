@@ -1,0 +1,114 @@
+//! `priorsmith batch` and `priorsmith merge`: many models from one base belief
+//! file and a table of changes (see [`crate::batch`] and docs/sweep-and-batch.md).
+
+use super::progress_bar;
+use crate::batch::{self, RunOptions};
+use crate::error::Error;
+use crate::output;
+use crate::spec::Overrides;
+use anyhow::{anyhow, Result};
+use std::path::PathBuf;
+
+#[derive(clap::Args, Debug, Clone)]
+pub struct BatchArgs {
+    /// Table of models (CSV): an `id` column plus columns naming belief-file keys.
+    pub table: PathBuf,
+    /// Base belief file that every row changes.
+    #[arg(long)]
+    pub spec: PathBuf,
+    /// Output folder (models/<id>/, rows/, results.csv, errors.csv, timings.csv).
+    #[arg(long, short, default_value = "priorsmith-batch")]
+    pub out: PathBuf,
+    /// Run only the i-th of n slices of the rows, e.g. 3/8 (for job arrays).
+    #[arg(long, value_name = "i/n")]
+    pub shard: Option<String>,
+    /// Override [simulation] draws for every row.
+    #[arg(long)]
+    pub draws: Option<usize>,
+    /// Raise the cap on draws deliberately.
+    #[arg(long)]
+    pub max_draws: Option<usize>,
+}
+
+#[derive(clap::Args, Debug, Clone)]
+pub struct MergeArgs {
+    /// Batch output folders (one per shard, or one shared folder).
+    #[arg(required = true)]
+    pub dirs: Vec<PathBuf>,
+    /// Where to write results.csv, errors.csv, timings.csv (default: the first folder).
+    #[arg(long, short)]
+    pub out: Option<PathBuf>,
+}
+
+pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
+    let shard = match &a.shard {
+        Some(s) => Some(batch::parse_shard(s).map_err(|m| anyhow!(m))?),
+        None => None,
+    };
+    let ov = Overrides {
+        seed: None,
+        draws: a.draws,
+        max_draws: a.max_draws,
+    };
+    let plan = batch::plan(&a.spec, &a.table, &ov)?;
+    let pb = progress_bar(quiet, "models");
+    let tick = |done: usize, total: usize| {
+        if let Some(pb) = &pb {
+            pb.set_length(total as u64);
+            pb.set_position(done as u64);
+        }
+    };
+    let rep = batch::run(&plan, &a.out, &RunOptions { shard }, &tick)?;
+    if let Some(pb) = pb {
+        pb.finish_and_clear();
+    }
+    if !quiet {
+        println!(
+            "{} rows{}: {} fitted, {} already done (skipped), {} failed",
+            rep.rows,
+            shard.map_or(String::new(), |(i, n)| format!(" (shard {i} of {n})")),
+            rep.fitted,
+            rep.skipped,
+            rep.failed
+        );
+        println!(
+            "wrote {}/{} and models/<id>/ (fit.json, summary.txt, draws.csv, spec.toml)",
+            a.out.display(),
+            rep.tables.join(", ")
+        );
+        println!("{}", output::summary::CAUTION);
+    }
+    if rep.failed > 0 {
+        return Err(Error::input(
+            crate::error::Location {
+                file: Some(a.table.clone()),
+                ..Default::default()
+            },
+            format!(
+                "{} of {} rows failed; the reasons are in {}/{}",
+                rep.failed,
+                rep.rows,
+                a.out.display(),
+                rep.tables.get(1).map_or("errors.csv", String::as_str)
+            ),
+        )
+        .into());
+    }
+    Ok(())
+}
+
+pub fn cmd_merge(a: &MergeArgs, quiet: bool) -> Result<()> {
+    let out = a.out.clone().unwrap_or_else(|| a.dirs[0].clone());
+    let rep = batch::merge(&a.dirs, &out)?;
+    if !quiet {
+        println!(
+            "merged {} rows from {} folder(s) ({} failed): wrote {}/{}",
+            rep.rows,
+            a.dirs.len(),
+            rep.failed,
+            out.display(),
+            rep.tables.join(", ")
+        );
+    }
+    Ok(())
+}

@@ -1,0 +1,351 @@
+//! Sensitivity of a fit to the width of the beliefs.
+//!
+//! For each width factor w the chosen beliefs are widened about their medians
+//! (see [`crate::target::widened`]: F_w(x) = F(g⁻¹(m + (g(x) − m)/w)) on the
+//! quantity's working scale g, atoms unchanged) and the free hyperparameters are
+//! refitted. At w = 1 the original belief is used unchanged, and that fit is a
+//! cold start exactly as `fit` runs it, so its hyperparameters equal `fit`'s bit
+//! for bit (same spec, same seed).
+//!
+//! Warm starts: the fit at the width nearest 1 (on the log scale) is the anchor;
+//! the wider widths are fitted in increasing order and the narrower ones in
+//! decreasing order, each adding the previous width's optimum as an extra start
+//! (`fit::fit_point(.., warm, ..)`). The two chains run in parallel (rayon::join), and
+//! every fit is a deterministic function of its spec, seed and warm start, so the
+//! sweep gives the same numbers on any thread count.
+//!
+//! Outputs: a table with one row per width (every hyperparameter, total
+//! discrepancies, verdict, and each belief's believed and implied quantiles at
+//! [`crate::fit::verdict::PROBS`]) and an SVG plot of the same against width
+//! (plotters, SVG backend).
+
+use crate::error::{Error, Result};
+use crate::fit::verdict::PROBS;
+use crate::fit::{self, FitResult};
+use crate::spec::Spec;
+use crate::target::quantiles::Scale;
+use crate::target::widened::widen;
+use crate::target::Target;
+use std::time::Instant;
+
+/// One refit of the sweep.
+#[derive(Debug, Clone)]
+pub struct SweepPoint {
+    pub width: f64,
+    pub result: FitResult,
+}
+
+/// Check and sort width factors (finite, > 0, distinct).
+pub fn check_widths(widths: &[f64]) -> std::result::Result<Vec<f64>, String> {
+    if widths.is_empty() {
+        return Err("give at least one width factor".into());
+    }
+    let mut w = widths.to_vec();
+    for x in &w {
+        if !(x.is_finite() && *x > 0.0) {
+            return Err(format!("width factor {x} must be a finite number > 0"));
+        }
+    }
+    w.sort_by(f64::total_cmp);
+    if let Some(d) = w.windows(2).find(|p| p[0] == p[1]) {
+        return Err(format!("width factor {} is given twice", d[0]));
+    }
+    Ok(w)
+}
+
+/// `spec` with the beliefs at 0-based indices `which` widened by `w`. At w = 1
+/// the spec is returned unchanged.
+pub fn widened_spec(spec: &Spec, w: f64, which: &[usize]) -> Result<Spec> {
+    let mut s = spec.clone();
+    if w == 1.0 {
+        return Ok(s);
+    }
+    for &i in which {
+        let b = s
+            .beliefs
+            .get_mut(i)
+            .ok_or_else(|| Error::Numeric(format!("belief index {} is out of range", i + 1)))?;
+        let scale = Scale::for_support(b.request.support);
+        let d = widen(&b.target.dist, scale, w)
+            .map_err(|m| Error::Numeric(format!("widening belief {}: {m}", b.label)))?;
+        b.target = Target::new(d);
+        b.stated_as = format!("{}, widened ×{w} on the {scale:?} scale", b.stated_as);
+    }
+    s.title = format!("{} (beliefs widened ×{w})", spec.title);
+    Ok(s)
+}
+
+fn fit_at(spec: &Spec, w: f64, which: &[usize], warm: Option<&[f64]>) -> Result<SweepPoint> {
+    let started = Instant::now();
+    let s = widened_spec(spec, w, which)?;
+    let (_, p) = fit::fit_point(&s, warm, None)?;
+    Ok(SweepPoint {
+        width: w,
+        result: fit::assemble(&s, p, started)?,
+    })
+}
+
+fn chain(
+    spec: &Spec,
+    widths: &[f64],
+    which: &[usize],
+    mut warm: Vec<f64>,
+    tick: &(dyn Fn() + Sync),
+) -> Result<Vec<SweepPoint>> {
+    let mut out = Vec::new();
+    for &w in widths {
+        let p = fit_at(spec, w, which, Some(&warm))?;
+        warm = p.result.full.clone();
+        out.push(p);
+        tick();
+    }
+    Ok(out)
+}
+
+/// Refit at every width (sorted ascending in the result). `which` = the 0-based
+/// beliefs to widen (all when None). `tick` is called after each refit.
+pub fn run(
+    spec: &Spec,
+    widths: &[f64],
+    which: Option<&[usize]>,
+    tick: &(dyn Fn() + Sync),
+) -> Result<Vec<SweepPoint>> {
+    let widths = check_widths(widths).map_err(Error::Numeric)?;
+    let all: Vec<usize> = (0..spec.beliefs.len()).collect();
+    let which = which.unwrap_or(&all);
+    // Anchor: the width nearest 1 on the log scale (the smaller on a tie).
+    let a = (0..widths.len())
+        .min_by(|&i, &j| {
+            widths[i]
+                .ln()
+                .abs()
+                .total_cmp(&widths[j].ln().abs())
+                .then(i.cmp(&j))
+        })
+        .unwrap_or(0);
+    let anchor = if widths[a] == 1.0 {
+        // Exactly what `fit` does.
+        let r = fit::fit(spec, None)?;
+        SweepPoint {
+            width: 1.0,
+            result: r,
+        }
+    } else {
+        fit_at(spec, widths[a], which, None)?
+    };
+    tick();
+    let up: Vec<f64> = widths[a + 1..].to_vec();
+    let down: Vec<f64> = widths[..a].iter().rev().copied().collect();
+    let warm = anchor.result.full.clone();
+    let (hi, lo) = rayon::join(
+        || chain(spec, &up, which, warm.clone(), tick),
+        || chain(spec, &down, which, warm.clone(), tick),
+    );
+    let mut pts: Vec<SweepPoint> = lo?.into_iter().rev().collect();
+    pts.push(anchor);
+    pts.extend(hi?);
+    Ok(pts)
+}
+
+fn pname(p: f64) -> String {
+    format!("q{p}")
+}
+
+/// The sweep table as CSV: one row per width.
+pub fn table_csv(points: &[SweepPoint]) -> Result<Vec<u8>> {
+    let Some(first) = points.first() else {
+        return Err(Error::Numeric("empty sweep".into()));
+    };
+    let r0 = &first.result;
+    let mut header = vec!["width".to_string()];
+    header.extend(r0.order.iter().cloned());
+    header.extend(
+        [
+            "fresh_total",
+            "noise_floor",
+            "verdict",
+            "evaluations",
+            "wall_time_s",
+        ]
+        .map(String::from),
+    );
+    for i in 0..r0.beliefs.len() {
+        for what in ["believed", "implied"] {
+            for p in PROBS {
+                header.push(format!("belief{}.{what}.{}", i + 1, pname(p)));
+            }
+        }
+    }
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let e = |e: csv::Error| Error::Numeric(e.to_string());
+    w.write_record(&header).map_err(e)?;
+    for pt in points {
+        let r = &pt.result;
+        let mut row = vec![format!("{}", pt.width)];
+        row.extend(
+            r.order
+                .iter()
+                .map(|n| crate::output::fmt_csv(r.hyperparameters[n])),
+        );
+        row.push(format!("{}", r.total.fresh));
+        row.push(format!("{}", r.total.noise_floor));
+        row.push(r.verdict.words().to_string());
+        row.push(r.optimiser.evaluations.to_string());
+        row.push(format!("{:.3}", r.wall_time_s));
+        for b in &r.beliefs {
+            row.extend(
+                b.believed_quantiles
+                    .iter()
+                    .map(|x| crate::output::fmt_csv(*x)),
+            );
+            row.extend(
+                b.implied_quantiles
+                    .iter()
+                    .map(|x| crate::output::fmt_csv(*x)),
+            );
+        }
+        w.write_record(&row).map_err(e)?;
+    }
+    w.into_inner().map_err(|e| Error::Numeric(e.to_string()))
+}
+
+/// An SVG figure: one panel per hyperparameter (value against width) and one per
+/// belief (believed and implied 5 %, 50 %, 95 % quantiles against width), with a
+/// logarithmic width axis.
+pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
+    use plotters::prelude::*;
+    let Some(first) = points.first() else {
+        return Err(Error::Numeric("empty sweep".into()));
+    };
+    let r0 = &first.result;
+    let nh = r0.order.len();
+    let nb = r0.beliefs.len();
+    let panels = nh + nb;
+    let cols = panels.clamp(1, 3);
+    let rows = panels.div_ceil(cols);
+    let (pw, ph) = (380u32, 270u32);
+    let xs: Vec<f64> = points.iter().map(|p| p.width).collect();
+    let (xlo, xhi) = (xs[0] / 1.15, xs[xs.len() - 1] * 1.15);
+    let pe = |e: String| Error::Numeric(format!("drawing the sweep plot: {e}"));
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (pw * cols as u32, ph * rows as u32 + 30))
+            .into_drawing_area();
+        root.fill(&WHITE).map_err(|e| pe(e.to_string()))?;
+        let (title, body) = root.split_vertically(30);
+        title
+            .titled(
+                &format!("{} — sensitivity to belief width", r0.title),
+                ("sans-serif", 16),
+            )
+            .map_err(|e| pe(e.to_string()))?;
+        let areas = body.split_evenly((rows, cols));
+        // (caption, series: (label, colour, values per width))
+        type Series = (String, RGBColor, Vec<f64>);
+        let mut specs: Vec<(String, Vec<Series>)> = Vec::new();
+        for n in &r0.order {
+            let v: Vec<f64> = points.iter().map(|p| p.result.hyperparameters[n]).collect();
+            let fixed = !r0.free.contains(n);
+            specs.push((
+                format!("{n}{}", if fixed { " (fixed)" } else { "" }),
+                vec![("fitted".into(), BLUE, v)],
+            ));
+        }
+        let qi = [0usize, 3, 6]; // 5 %, 50 %, 95 % in PROBS
+        for (i, b) in r0.beliefs.iter().enumerate() {
+            let mut ser = Vec::new();
+            for (k, &j) in qi.iter().enumerate() {
+                let col = [
+                    RGBColor(200, 60, 40),
+                    RGBColor(150, 20, 20),
+                    RGBColor(200, 60, 40),
+                ][k];
+                ser.push((
+                    format!("believed {}%", PROBS[j] * 100.0),
+                    col,
+                    points
+                        .iter()
+                        .map(|p| p.result.beliefs[i].believed_quantiles[j])
+                        .collect(),
+                ));
+            }
+            for (k, &j) in qi.iter().enumerate() {
+                let col = [
+                    RGBColor(60, 90, 200),
+                    RGBColor(10, 30, 140),
+                    RGBColor(60, 90, 200),
+                ][k];
+                ser.push((
+                    format!("implied {}%", PROBS[j] * 100.0),
+                    col,
+                    points
+                        .iter()
+                        .map(|p| p.result.beliefs[i].implied_quantiles[j])
+                        .collect(),
+                ));
+            }
+            specs.push((format!("{}: quantiles", b.label), ser));
+        }
+        for ((cap, ser), area) in specs.iter().zip(areas.iter()) {
+            let fin: Vec<f64> = ser
+                .iter()
+                .flat_map(|s| s.2.iter().copied())
+                .filter(|v| v.is_finite())
+                .collect();
+            let (mut ylo, mut yhi) = fin
+                .iter()
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| {
+                    (a.min(*v), b.max(*v))
+                });
+            if !ylo.is_finite() {
+                (ylo, yhi) = (0.0, 1.0);
+            }
+            let pad = if yhi > ylo {
+                0.08 * (yhi - ylo)
+            } else {
+                0.1 * ylo.abs().max(1e-3)
+            };
+            let mut chart = ChartBuilder::on(area)
+                .caption(cap, ("sans-serif", 13))
+                .margin(8)
+                .x_label_area_size(30)
+                .y_label_area_size(56)
+                .build_cartesian_2d((xlo..xhi).log_scale(), (ylo - pad)..(yhi + pad))
+                .map_err(|e| pe(e.to_string()))?;
+            chart
+                .configure_mesh()
+                .x_desc("width factor")
+                .label_style(("sans-serif", 11))
+                .draw()
+                .map_err(|e| pe(e.to_string()))?;
+            for (label, col, vals) in ser {
+                let pts: Vec<(f64, f64)> = xs
+                    .iter()
+                    .zip(vals)
+                    .filter(|(_, v)| v.is_finite())
+                    .map(|(x, v)| (*x, *v))
+                    .collect();
+                let col = *col;
+                chart
+                    .draw_series(LineSeries::new(pts.clone(), col.stroke_width(2)))
+                    .map_err(|e| pe(e.to_string()))?
+                    .label(label.as_str())
+                    .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 14, y)], col));
+                chart
+                    .draw_series(pts.iter().map(|p| Circle::new(*p, 3, col.filled())))
+                    .map_err(|e| pe(e.to_string()))?;
+            }
+            if ser.len() > 1 {
+                chart
+                    .configure_series_labels()
+                    .label_font(("sans-serif", 10))
+                    .background_style(WHITE.mix(0.8))
+                    .border_style(BLACK)
+                    .draw()
+                    .map_err(|e| pe(e.to_string()))?;
+            }
+        }
+        root.present().map_err(|e| pe(e.to_string()))?;
+    }
+    Ok(svg)
+}

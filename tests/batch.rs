@@ -1,0 +1,328 @@
+//! Integration tests of `priorsmith batch` and `priorsmith merge`: the real binary
+//! on temporary files. One invented two-belief cure model, 200 generated rows at
+//! 2000 draws.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+const BIN: &str = env!("CARGO_BIN_EXE_priorsmith");
+const ROWS: usize = 200;
+/// Rows of the kill and shard checks (the first KROWS of the same generator).
+const KROWS: usize = 80;
+
+/// The base file; `{MED}`, `{ALPHA}`, `{HORIZON}`, `{SEED}` are filled in for the
+/// separate `fit` runs by plain text substitution (independent of the batch's
+/// column addressing).
+const TEMPLATE: &str = r#"
+title = "batch test (invented)"
+[model]
+template = "mixture-cure"
+latency = "exponential"
+[simulation]
+draws = 2000
+seed = {SEED}
+[prior.cure_logit]
+family = "normal"
+mean = { fit = [-4.0, 4.0] }
+sd = { fit = [0.05, 2.5] }
+[prior.log_scale]
+family = "normal"
+mean = { fit = [0.0, 5.0] }
+sd = 0.3
+[[belief]]
+quantity = "cure_fraction"
+quantiles = { "0.1" = 0.15, "0.5" = {MED}, "0.9" = 0.40 }
+[[belief]]
+quantity = "survival_prob"
+horizon = {HORIZON}
+distribution = { family = "beta", alpha = {ALPHA}, beta = 18 }
+"#;
+
+fn row_values(k: usize) -> (String, f64, u32, u32, u64) {
+    let med = 0.18 + 0.02 * (k % 10) as f64;
+    let alpha = 8 + (k % 9) as u32;
+    let horizon = [24, 36, 48][k % 3];
+    let seed = 100 + k as u64;
+    (format!("e{k:03}"), med, alpha, horizon, seed)
+}
+
+fn fill(med: f64, alpha: u32, horizon: u32, seed: u64) -> String {
+    TEMPLATE
+        .replace("{MED}", &format!("{med}"))
+        .replace("{ALPHA}", &alpha.to_string())
+        .replace("{HORIZON}", &horizon.to_string())
+        .replace("{SEED}", &seed.to_string())
+}
+
+/// Base file (row 0's values) and a table of `n` rows in `dir`.
+fn setup(dir: &Path, n: usize) -> (PathBuf, PathBuf) {
+    setup_named(dir, n, "table.csv")
+}
+
+fn setup_named(dir: &Path, n: usize, name: &str) -> (PathBuf, PathBuf) {
+    let base = dir.join("base.toml");
+    std::fs::write(&base, fill(0.25, 12, 36, 1)).unwrap();
+    let mut t = String::from(
+        "id,belief.1.quantiles.0.5,belief.2.distribution.alpha,belief.2.horizon,simulation.seed\n",
+    );
+    for k in 0..n {
+        let (id, m, a, h, s) = row_values(k);
+        t.push_str(&format!("{id},{m},{a},{h},{s}\n"));
+    }
+    let table = dir.join(name);
+    std::fs::write(&table, t).unwrap();
+    (base, table)
+}
+
+fn batch(base: &Path, table: &Path, out: &Path, extra: &[&str]) -> std::process::Output {
+    Command::new(BIN)
+        .args(["-q", "batch"])
+        .arg(table)
+        .arg("--spec")
+        .arg(base)
+        .arg("--out")
+        .arg(out)
+        .args(extra)
+        .output()
+        .unwrap()
+}
+
+/// The hyperparameters of a fit.json as exact bits. The number text is parsed
+/// with Rust's correctly rounded `str::parse` (serde_json's default float parser
+/// may differ from it in the last bit).
+fn hypers(p: &Path) -> Vec<(String, u64)> {
+    let text = std::fs::read_to_string(p).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+    let block = text.split("\"hyperparameters\": {").nth(1).unwrap();
+    let block = &block[..block.find('}').unwrap()];
+    let names: Vec<String> = v["hyperparameters"]
+        .as_object()
+        .unwrap()
+        .keys()
+        .cloned()
+        .collect();
+    names
+        .into_iter()
+        .map(|k| {
+            let at = block.find(&format!("\"{k}\": ")).unwrap() + k.len() + 4;
+            let num: String = block[at..]
+                .chars()
+                .take_while(|c| !matches!(c, ',' | '\n'))
+                .collect();
+            (k, num.trim().parse::<f64>().unwrap().to_bits())
+        })
+        .collect()
+}
+
+fn read(p: &Path) -> String {
+    std::fs::read_to_string(p).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
+}
+
+#[test]
+fn batch_equals_fits_survives_kill_and_shards_merge() {
+    let d = tempfile::tempdir().unwrap();
+    let (base, table) = setup(d.path(), ROWS);
+
+    // 1. Uninterrupted run.
+    let whole = d.path().join("whole");
+    let o = batch(&base, &table, &whole, &[]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let results = read(&whole.join("results.csv"));
+    assert_eq!(results.lines().count(), ROWS + 1);
+    assert_eq!(read(&whole.join("errors.csv")).lines().count(), 1);
+
+    // 2. Every row equals a separate `fit` of the same beliefs (two at a time).
+    let fits = d.path().join("fits");
+    std::fs::create_dir_all(&fits).unwrap();
+    std::thread::scope(|s| {
+        for half in 0..2 {
+            let fits = &fits;
+            let whole = &whole;
+            s.spawn(move || {
+                for k in (half..ROWS).step_by(2) {
+                    let (id, m, a, h, seed) = row_values(k);
+                    let spec = fits.join(format!("{id}.toml"));
+                    std::fs::write(&spec, fill(m, a, h, seed)).unwrap();
+                    let out = fits.join(&id);
+                    let st = Command::new(BIN)
+                        .args(["-q", "--threads", "1", "fit"])
+                        .arg(&spec)
+                        .arg("--out")
+                        .arg(&out)
+                        .status()
+                        .unwrap();
+                    assert!(st.success(), "fit {id}");
+                    assert_eq!(
+                        hypers(&out.join("fit.json")),
+                        hypers(&whole.join("models").join(&id).join("fit.json")),
+                        "row {id}"
+                    );
+                }
+            });
+        }
+    });
+    // …and results.csv carries the same numbers.
+    let mut rdr = csv::Reader::from_reader(results.as_bytes());
+    let head = rdr.headers().unwrap().clone();
+    for rec in rdr.records() {
+        let rec = rec.unwrap();
+        let h = hypers(&fits.join(&rec[0]).join("fit.json"));
+        for (name, bits) in h {
+            let c = head.iter().position(|x| x == name).unwrap();
+            assert_eq!(
+                rec[c].parse::<f64>().unwrap().to_bits(),
+                bits,
+                "{} {name}",
+                &rec[0]
+            );
+        }
+    }
+
+    // 3. Killed part-way (SIGKILL), then rerun: the same results.csv as an
+    // uninterrupted run, which for the first KROWS rows is the first KROWS lines
+    // of the 200-row results (rows are independent of each other).
+    let (_, table) = setup_named(d.path(), KROWS, "table80.csv");
+    let results: String = results
+        .lines()
+        .take(KROWS + 1)
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let killed = d.path().join("killed");
+    let mut child = Command::new(BIN)
+        .args(["-q", "batch"])
+        .arg(&table)
+        .arg("--spec")
+        .arg(&base)
+        .arg("--out")
+        .arg(&killed)
+        .spawn()
+        .unwrap();
+    let rows_dir = killed.join("rows");
+    let t0 = std::time::Instant::now();
+    loop {
+        let n = std::fs::read_dir(&rows_dir)
+            .map(|r| {
+                r.flatten()
+                    .filter(|e| e.file_name().to_string_lossy().ends_with(".json"))
+                    .count()
+            })
+            .unwrap_or(0);
+        if n >= 20 {
+            break;
+        }
+        assert!(t0.elapsed().as_secs() < 120, "batch made no progress");
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    child.kill().unwrap(); // SIGKILL on Unix
+    child.wait().unwrap();
+    assert!(
+        !killed.join("results.csv").exists(),
+        "the batch finished before it could be killed; the test needs more rows"
+    );
+    let done_before = std::fs::read_dir(&rows_dir).unwrap().count();
+    let o = batch(&base, &table, &killed, &[]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert_eq!(read(&killed.join("results.csv")), results);
+    // The rerun skipped the rows finished before the kill.
+    let o = Command::new(BIN)
+        .arg("batch")
+        .arg(&table)
+        .arg("--spec")
+        .arg(&base)
+        .arg("--out")
+        .arg(&killed)
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(text.contains(&format!("{KROWS} already done")), "{text}");
+    assert!(done_before >= 20);
+
+    // 4. Four shards in four folders, merged, equal the whole.
+    let mut dirs = Vec::new();
+    for i in 1..=4 {
+        let sd = d.path().join(format!("shard{i}"));
+        let o = batch(&base, &table, &sd, &["--shard", &format!("{i}/4")]);
+        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        let part = read(&sd.join(format!("results-shard-{i}-of-4.csv")));
+        assert_eq!(part.lines().count(), KROWS / 4 + 1);
+        dirs.push(sd);
+    }
+    let merged = d.path().join("merged");
+    let st = Command::new(BIN)
+        .args(["-q", "merge"])
+        .args(&dirs)
+        .arg("--out")
+        .arg(&merged)
+        .status()
+        .unwrap();
+    assert!(st.success());
+    assert_eq!(read(&merged.join("results.csv")), results);
+    assert_eq!(
+        read(&merged.join("errors.csv")),
+        read(&whole.join("errors.csv"))
+    );
+    // A merge with a shard missing names the missing rows.
+    let o = Command::new(BIN)
+        .args(["merge"])
+        .args(&dirs[..3])
+        .arg("--out")
+        .arg(d.path().join("partial"))
+        .output()
+        .unwrap();
+    assert!(!o.status.success());
+    assert!(String::from_utf8_lossy(&o.stderr).contains("no current result for row(s) 61"));
+}
+
+#[test]
+fn bad_rows_are_reported_and_the_others_run() {
+    let d = tempfile::tempdir().unwrap();
+    let (base, _) = setup(d.path(), 0);
+    let table = d.path().join("t.csv");
+    std::fs::write(
+        &table,
+        "id,belief.2.distribution.alpha,belief.1.quantiles.0.5,belief.7.quantity\n\
+         good,10,,\n\
+         bad-alpha,abc,,\n\
+         bad-quantile,,0.9,\n\
+         bad/id,10,,\n\
+         good,11,,\n\
+         bad-path,,,rmst\n\
+         also-good,14,0.3,\n",
+    )
+    .unwrap();
+    let out = d.path().join("o");
+    let o = batch(&base, &table, &out, &[]);
+    assert_eq!(
+        o.status.code(),
+        Some(3),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let res = read(&out.join("results.csv"));
+    let ids: Vec<&str> = res
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').next().unwrap())
+        .collect();
+    assert_eq!(ids, ["good", "also-good"]);
+    let errs = read(&out.join("errors.csv"));
+    let t = table.display().to_string();
+    for want in [
+        format!("{t}:3: key `belief.2.distribution.alpha`: row 2 (id \"\"bad-alpha\"\"), value \"\"abc\"\""),
+        "expected a number, found \"\"abc\"\"".to_string(),
+        format!("{t}:4: key `belief.1.quantiles.0.5`: row 3 (id \"\"bad-quantile\"\"), value \"\"0.9\"\""),
+        "quantiles must increase".to_string(),
+        "contains `/`".to_string(),
+        "repeats the id of row 1".to_string(),
+        "column `belief.7.quantity`, row 6 (id \"\"bad-path\"\"), value \"\"rmst\"\"".to_string(),
+        "position 7 does not exist".to_string(),
+    ] {
+        assert!(errs.contains(&want), "missing {want:?} in\n{errs}");
+    }
+    assert_eq!(errs.lines().count(), 6);
+    // A table without an id column is refused as a whole, naming the file.
+    std::fs::write(&table, "name,simulation.seed\na,1\n").unwrap();
+    let o = batch(&base, &table, &out, &[]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("no `id` column"));
+}
