@@ -9,6 +9,7 @@
 
 pub mod cli;
 pub mod demo;
+pub mod design;
 pub mod discrepancy;
 pub mod dist;
 pub mod error;
