@@ -129,9 +129,10 @@ fn sub(k: &str) -> Vec<Seg> {
 /// Read the `[design]` table (required by the regression templates).
 pub fn from_ctx(ctx: &Ctx) -> Result<Design> {
     let t = ctx.raw.design.as_ref().ok_or_else(|| {
-        ctx.err(&[], "the regression templates need a [design] table").with_hint(
-            "add\n  [design]\n  file = \"covariates.csv\"   # or: columns = 100, rows = 200",
-        )
+        ctx.err(&[], "the regression templates need a [design] table")
+            .with_hint(
+                "add\n  [design]\n  file = \"covariates.csv\"   # or: columns = 100, rows = 200",
+            )
     })?;
     ctx.check_keys(&[key("design")], t, &KEYS)?;
     let standardise = match t.get("standardise") {
@@ -358,19 +359,26 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
                 )
                 .with_hint("every cell of the design must hold a number"));
             }
-            let x: f64 = cell.parse().ok().filter(|x: &f64| x.is_finite()).ok_or_else(|| {
-                Error::input(
-                    loc(line, Some(name)),
-                    format!("row {rows}, column `{name}`: \"{cell}\" is not a finite number"),
-                )
-                .with_hint("code categories as 0/1 indicator columns")
-            })?;
+            let x: f64 = cell
+                .parse()
+                .ok()
+                .filter(|x: &f64| x.is_finite())
+                .ok_or_else(|| {
+                    Error::input(
+                        loc(line, Some(name)),
+                        format!("row {rows}, column `{name}`: \"{cell}\" is not a finite number"),
+                    )
+                    .with_hint("code categories as 0/1 indicator columns")
+                })?;
             data.push(x);
         }
         if rec.len() > p {
             return Err(Error::input(
                 loc(line, None),
-                format!("row {rows} has {} cells but the header names {p}", rec.len()),
+                format!(
+                    "row {rows} has {} cells but the header names {p}",
+                    rec.len()
+                ),
             ));
         }
     }
@@ -397,8 +405,14 @@ mod tests {
     #[test]
     fn standardised_columns_have_unit_variance() {
         let d = synthetic_rows(500, 3, Correlation::Ar1(0.6), 4);
-        let des = Design::from_rows("t".into(), vec!["a".into(), "b".into(), "c".into()], 500, &d, true)
-            .unwrap();
+        let des = Design::from_rows(
+            "t".into(),
+            vec!["a".into(), "b".into(), "c".into()],
+            500,
+            &d,
+            true,
+        )
+        .unwrap();
         for v in &des.var {
             assert!((v - 1.0).abs() < 1e-12);
         }
@@ -414,7 +428,10 @@ mod tests {
         let p = dir.path().join("x.csv");
         std::fs::write(&p, "a,b\n1,2\n3,oops\n").unwrap();
         let e = read_csv(&p, false).unwrap_err().to_string();
-        assert!(e.contains(":3") && e.contains("`b`") && e.contains("oops"), "{e}");
+        assert!(
+            e.contains(":3") && e.contains("`b`") && e.contains("oops"),
+            "{e}"
+        );
         std::fs::write(&p, "a,b\n1,2\n3,\n").unwrap();
         let e = read_csv(&p, false).unwrap_err().to_string();
         assert!(e.contains("missing value") && e.contains("row 2"), "{e}");

@@ -105,7 +105,11 @@ impl Kind {
                 ("slab_scale", Positive),
                 ("slab_df", Positive),
             ],
-            Kind::R2d2 => &[("a", Positive), ("b", Positive), ("concentration", FixedPositive)],
+            Kind::R2d2 => &[
+                ("a", Positive),
+                ("b", Positive),
+                ("concentration", FixedPositive),
+            ],
             Kind::SpikeSlab => &[("inclusion", Probability), ("slab_scale", Positive)],
         }
     }
@@ -117,7 +121,9 @@ impl Kind {
             Kind::RegHorseshoe => {
                 "global_scale = { fit = [0.0001, 1.0] }\n  slab_scale = 2.0\n  slab_df = 4"
             }
-            Kind::R2d2 => "a = { fit = [0.2, 20] }\n  b = { fit = [0.2, 20] }\n  concentration = 0.5",
+            Kind::R2d2 => {
+                "a = { fit = [0.2, 20] }\n  b = { fit = [0.2, 20] }\n  concentration = 0.5"
+            }
             Kind::SpikeSlab => "inclusion = 0.05\n  slab_scale = { fit = [0.01, 2.0] }",
         }
     }
@@ -168,21 +174,22 @@ pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
         allowed.push("global");
     }
     ctx.check_keys(&path, t, &allowed)?;
-    let global_fixed = match t.get("global") {
-        None => false,
-        Some(v) => match ctx.string(&sub(&path, "global"), v)? {
-            "half-cauchy" => false,
-            "fixed" => true,
-            other => {
-                return Err(ctx
+    let global_fixed =
+        match t.get("global") {
+            None => false,
+            Some(v) => match ctx.string(&sub(&path, "global"), v)? {
+                "half-cauchy" => false,
+                "fixed" => true,
+                other => return Err(ctx
                     .err(
                         &sub(&path, "global"),
                         format!("unknown global prior \"{other}\""),
                     )
-                    .with_hint("\"half-cauchy\" (τ ~ C⁺(0, global_scale)) or \"fixed\" (τ = global_scale)"))
-            }
-        },
-    };
+                    .with_hint(
+                        "\"half-cauchy\" (τ ~ C⁺(0, global_scale)) or \"fixed\" (τ = global_scale)",
+                    )),
+            },
+        };
     let mut idx = Vec::new();
     let mut names = Vec::new();
     let mut shape = 0.0;
@@ -282,7 +289,15 @@ pub fn gamma_variate(shape: f64, r: &mut rand::rngs::ChaCha8Rng) -> f64 {
 impl CoefPrior {
     /// Draw i's normals z and local variates (the λ-free factor w, or for
     /// spike-and-slab the uniform deciding inclusion).
-    pub fn base_draw(&self, d: &Design, seed: u64, block: u64, i: usize, z: &mut [f64], loc: &mut [f64]) {
+    pub fn base_draw(
+        &self,
+        d: &Design,
+        seed: u64,
+        block: u64,
+        i: usize,
+        z: &mut [f64],
+        loc: &mut [f64],
+    ) {
         let mut r = rng::stream(seed, block + COEF_STREAM + 2 * i as u64);
         for x in z.iter_mut() {
             *x = crate::numerics::norm_quantile(rng::open01(&mut r));
