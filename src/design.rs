@@ -87,7 +87,7 @@ impl Design {
             let col = (0..rows).map(|r| data[r * p + j]);
             *m = col.clone().sum::<f64>() / rows as f64;
             *s = (col.map(|x| (x - *m).powi(2)).sum::<f64>() / rows as f64).sqrt();
-            if standardise && !(*s > 1e-12 * m.abs().max(1.0)) {
+            if standardise && (s.is_nan() || *s <= 1e-12 * m.abs().max(1.0)) {
                 return Err(format!(
                     "column `{}` is constant ({}); it cannot be standardised",
                     names[j], m

@@ -429,10 +429,14 @@ pub enum Eff<'a> {
 /// (matrixmultiply packs its left operand on every call) is amortised.
 const BLOCK: usize = 256;
 
+/// Fills draw i's scales and normals.
+pub type Fill<'a> = dyn Fn(usize, &mut [f64], &mut [f64]) + Sync + 'a;
+
 /// Compute [`Products`] for draws 0..n, where `fill(i, w, z)` writes draw i's
 /// scales ω (or w) and normals z. The design product X_cβ (the costly part,
 /// rows × p per draw) is formed only when `want_q` or `want_rows`. Parallel over
 /// blocks when `parallel`.
+#[allow(clippy::too_many_arguments)]
 pub fn products(
     d: &Design,
     n: usize,
@@ -441,7 +445,7 @@ pub fn products(
     want_q: bool,
     eff: Eff,
     parallel: bool,
-    fill: &(dyn Fn(usize, &mut [f64], &mut [f64]) + Sync),
+    fill: &Fill,
 ) -> Products {
     let p = d.cols();
     let nr = d.rows();

@@ -110,6 +110,11 @@ pub const Q_SIGNAL: QuantityInfo = QuantityInfo {
     needs: "",
 };
 
+/// A sparse linear form: (column, coefficient) pairs.
+type Form = Vec<(usize, f64)>;
+/// A request's profiles (the lookup key) and its linear form.
+type Keyed = (Vec<Vec<f64>>, Form, String);
+
 /// What the beliefs ask for beyond the always-computed products.
 #[derive(Debug, Clone, Default)]
 struct Needs {
@@ -117,7 +122,7 @@ struct Needs {
     q: bool,
     eff: bool,
     /// (profiles key, sparse linear form a: η − α = aᵀβ).
-    forms: Vec<(Vec<Vec<f64>>, Vec<(usize, f64)>)>,
+    forms: Vec<(Vec<Vec<f64>>, Form)>,
 }
 
 pub struct Regression {
@@ -219,12 +224,7 @@ impl Regression {
 
     /// A named profile: raw covariate values (design means where not given) and
     /// its sparse linear form.
-    fn profile(
-        &self,
-        ctx: &Ctx,
-        path: &[Seg],
-        name: &str,
-    ) -> Result<(Vec<f64>, Vec<(usize, f64)>)> {
+    fn profile(&self, ctx: &Ctx, path: &[Seg], name: &str) -> Result<(Vec<f64>, Form)> {
         let mut x = self.design.raw_means.clone();
         if name == "reference" {
             return Ok((x, Vec::new()));
@@ -268,12 +268,7 @@ impl Regression {
     }
 
     /// Parse `contrast = "NAME"` or `"NAME:DELTA"`.
-    fn contrast(
-        &self,
-        ctx: &Ctx,
-        path: &[Seg],
-        c: &str,
-    ) -> Result<(Vec<Vec<f64>>, Vec<(usize, f64)>, String)> {
+    fn contrast(&self, ctx: &Ctx, path: &[Seg], c: &str) -> Result<Keyed> {
         let (name, delta) = match c.split_once(':') {
             Some((n, d)) => {
                 let d: f64 = d
