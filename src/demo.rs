@@ -16,4 +16,8 @@ pub static SCENARIOS: &[Scenario] = &[
         name: "two-arm-cure",
         text: include_str!("../demo-data/two-arm-cure.toml"),
     },
+    Scenario {
+        name: "wide-design-r2",
+        text: include_str!("../demo-data/wide-design-r2.toml"),
+    },
 ];

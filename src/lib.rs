@@ -10,6 +10,7 @@
 pub mod batch;
 pub mod cli;
 pub mod demo;
+pub mod design;
 pub mod discrepancy;
 pub mod dist;
 pub mod error;

@@ -187,17 +187,16 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
             ),
         )
     })?;
-    let family = crate::dist::family(fam_name).ok_or_else(|| {
-        bad(
-            file,
-            &key("family"),
-            format!("unknown family \"{fam_name}\""),
-        )
-        .with_hint(crate::error::choice_hint(
-            fam_name,
-            &crate::dist::family_names(),
-        ))
-    })?;
+    let Some(family) = crate::dist::family(fam_name) else {
+        // A template's own structured prior (e.g. a horseshoe on regression
+        // coefficients) without supplied code: readable by the report, and every
+        // export names it as unsupported instead of guessing.
+        return Ok(Item::Supplied(Supplied {
+            parameter,
+            about: format!("{about} ({fam_name})"),
+            code: BTreeMap::new(),
+        }));
+    };
     let pairs = st
         .get("params")
         .and_then(Value::as_array)

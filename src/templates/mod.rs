@@ -10,8 +10,12 @@
 //! TemplateInfo` and a struct implementing [`Model`], a starter file
 //! `model-templates/<name>.toml`, and add one line to [`TEMPLATES`].
 
+pub mod linear;
+pub mod logistic;
 pub mod mixture_cure;
+pub mod poisson;
 pub mod priors;
+pub mod regression;
 
 use crate::dist::Support;
 use crate::error::Result;
@@ -159,7 +163,12 @@ pub trait Model: Send + Sync {
 }
 
 /// All templates. Adding a template adds one line here.
-pub static TEMPLATES: &[&TemplateInfo] = &[&mixture_cure::INFO];
+pub static TEMPLATES: &[&TemplateInfo] = &[
+    &mixture_cure::INFO,
+    &linear::INFO,
+    &logistic::INFO,
+    &poisson::INFO,
+];
 
 pub fn find(name: &str) -> Option<&'static TemplateInfo> {
     TEMPLATES.iter().copied().find(|t| t.name == name)

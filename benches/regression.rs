@@ -1,0 +1,91 @@
+//! Regression templates: one objective evaluation and a whole fit, for a design
+//! of n = 200 rows and p = 1,000 or 5,000 columns with 4,000 draws.
+//!
+//! * `eval/horseshoe-fixed/p`: scale-only case (global scale of a horseshoe with
+//!   fixed global): the design products are cached, an evaluation is O(draws).
+//! * `eval/reg-horseshoe/p`: regularised horseshoe, recomputed with blocked
+//!   matrix products at every evaluation.
+//! * `fit/...`: a whole fit (set-up, global stage, local searches, fresh judgement).
+//!
+//! Run a subset: `cargo bench --bench regression -- eval` (keep runs under a minute).
+
+use criterion::{criterion_group, criterion_main, Criterion};
+use priorsmith::discrepancy::Kind;
+use priorsmith::fit::objective::Objective;
+use priorsmith::spec::{parse, Overrides, Spec};
+use priorsmith::templates::Hyper;
+use std::time::Duration;
+
+fn spec(p: usize, coef: &str) -> Spec {
+    let text = format!(
+        r#"
+title = "bench"
+[model]
+template = "linear"
+[design]
+columns = {p}
+rows = 200
+correlation = "ar1"
+rho = 0.3
+standardise = true
+[simulation]
+draws = 4000
+seed = 1
+[prior.intercept]
+family = "normal"
+mean = 0.0
+sd = 1.0
+[prior.sigma]
+family = "half-normal"
+scale = 1.0
+[prior.coefficients]
+{coef}
+[[belief]]
+quantity = "r2"
+distribution = {{ family = "beta", alpha = 3, beta = 9 }}
+"#
+    );
+    parse(&text, None, &Overrides::default()).expect("bench spec")
+}
+
+const HS: &str =
+    "family = \"horseshoe\"\nglobal = \"fixed\"\nglobal_scale = { fit = [0.00001, 0.1] }";
+const RHS: &str = "family = \"regularised-horseshoe\"\nglobal = \"fixed\"\nglobal_scale = { fit = [0.00001, 0.1] }\nslab_scale = { fit = [0.1, 5.0] }\nslab_df = 4";
+
+fn bench(c: &mut Criterion) {
+    let mut g = c.benchmark_group("eval");
+    g.sample_size(10).measurement_time(Duration::from_secs(3));
+    for p in [1000, 5000] {
+        for (name, coef) in [("horseshoe-fixed", HS), ("reg-horseshoe", RHS)] {
+            let s = spec(p, coef);
+            let obj = Objective::new(&s, 4000, 1, 0, Kind::CramerVonMises);
+            let mut h: Vec<f64> = s.hypers().iter().map(Hyper::default_value).collect();
+            let mut k = 0u32;
+            g.bench_function(format!("{name}/{p}"), |b| {
+                b.iter(|| {
+                    // A new scale each time, as the optimiser would propose.
+                    k += 1;
+                    h[3] = 1e-3 * (1.0 + 0.01 * (k % 50) as f64);
+                    obj.total(&h).expect("objective")
+                })
+            });
+        }
+    }
+    g.finish();
+    let mut g = c.benchmark_group("fit");
+    g.sample_size(10).measurement_time(Duration::from_secs(10));
+    for (name, p, coef) in [
+        ("horseshoe-fixed", 1000, HS),
+        ("horseshoe-fixed", 5000, HS),
+        ("reg-horseshoe", 1000, RHS),
+    ] {
+        let s = spec(p, coef);
+        g.bench_function(format!("{name}/{p}"), |b| {
+            b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
+        });
+    }
+    g.finish();
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

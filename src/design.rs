@@ -1,0 +1,443 @@
+//! The design: the covariate rows over which the regression templates compute
+//! R², average risks and other design-level quantities.
+//!
+//! A `[design]` table gives either
+//! * `file = "x.csv"`: a CSV file (header row of column names, one numeric column
+//!   per covariate), read relative to the belief file; a missing or non-numeric
+//!   cell is an error naming the file, the line, the column and the bad text; or
+//! * `columns = p, rows = n`: a synthetic design of n rows drawn from a p-variate
+//!   normal with unit variances and correlation `correlation = "independent"`
+//!   (default), `"ar1"` (corr(x_j, x_k) = ρ^|j−k|, built as x_j = ρx_{j−1} +
+//!   √(1−ρ²) z_j) or `"exchangeable"` (corr = ρ ≥ 0, built as x_j = √ρ w + √(1−ρ) z_j),
+//!   with `rho` and `seed`; columns are named x1 … xp. Row r uses ChaCha8 stream r
+//!   of the seed (see [`crate::rng`]), so the design is the same on every machine.
+//!
+//! `standardise = true` centres every column and scales it to variance 1 (the
+//! 1/n variance of the rows, so that the design covariance S = X_cᵀX_c/n has unit
+//! diagonal); a constant column is then an error. Whatever the choice, the design
+//! is stored *centred* (X_c = X − x̄): the regression templates put covariates in
+//! the linear predictor as deviations from their design means.
+
+use crate::error::{choice_hint, Error, Location, Result};
+use crate::spec::{key, Ctx, Seg};
+use nalgebra::DMatrix;
+use std::path::Path;
+
+/// Largest design accepted (cells), about 400 MB of doubles.
+pub const MAX_CELLS: usize = 50_000_000;
+
+const KEYS: [&str; 7] = [
+    "file",
+    "standardise",
+    "columns",
+    "rows",
+    "correlation",
+    "rho",
+    "seed",
+];
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Correlation {
+    Independent,
+    Ar1(f64),
+    Exchangeable(f64),
+}
+
+/// A validated design, centred at its column means.
+#[derive(Debug, Clone)]
+pub struct Design {
+    /// Where the design came from (for reports).
+    pub source: String,
+    pub names: Vec<String>,
+    /// Column means of the (possibly standardised) design before centring.
+    pub means: Vec<f64>,
+    /// Original column means and sds (before standardising), for profiles in raw units.
+    pub raw_means: Vec<f64>,
+    pub raw_sds: Vec<f64>,
+    /// 1/n variances of the stored columns: the diagonal of S.
+    pub var: Vec<f64>,
+    /// Centred design X_c, rows × columns.
+    pub xc: DMatrix<f64>,
+    pub standardised: bool,
+}
+
+impl Design {
+    pub fn rows(&self) -> usize {
+        self.xc.nrows()
+    }
+    pub fn cols(&self) -> usize {
+        self.xc.ncols()
+    }
+    pub fn column(&self, name: &str) -> Option<usize> {
+        self.names.iter().position(|n| n == name)
+    }
+
+    /// Build from a row-major table of raw values.
+    pub fn from_rows(
+        source: String,
+        names: Vec<String>,
+        rows: usize,
+        data: &[f64],
+        standardise: bool,
+    ) -> std::result::Result<Self, String> {
+        let p = names.len();
+        let mut raw_means = vec![0.0; p];
+        let mut raw_sds = vec![0.0; p];
+        for (j, (m, s)) in raw_means.iter_mut().zip(raw_sds.iter_mut()).enumerate() {
+            let col = (0..rows).map(|r| data[r * p + j]);
+            *m = col.clone().sum::<f64>() / rows as f64;
+            *s = (col.map(|x| (x - *m).powi(2)).sum::<f64>() / rows as f64).sqrt();
+            if standardise && (s.is_nan() || *s <= 1e-12 * m.abs().max(1.0)) {
+                return Err(format!(
+                    "column `{}` is constant ({}); it cannot be standardised",
+                    names[j], m
+                ));
+            }
+        }
+        let mut xc = DMatrix::zeros(rows, p);
+        for j in 0..p {
+            let scale = if standardise { 1.0 / raw_sds[j] } else { 1.0 };
+            for r in 0..rows {
+                xc[(r, j)] = (data[r * p + j] - raw_means[j]) * scale;
+            }
+        }
+        let var = (0..p)
+            .map(|j| xc.column(j).iter().map(|x| x * x).sum::<f64>() / rows as f64)
+            .collect();
+        let means = if standardise {
+            vec![0.0; p]
+        } else {
+            raw_means.clone()
+        };
+        Ok(Design {
+            source,
+            names,
+            means,
+            raw_means,
+            raw_sds,
+            var,
+            xc,
+            standardised: standardise,
+        })
+    }
+}
+
+fn sub(k: &str) -> Vec<Seg> {
+    vec![key("design"), key(k)]
+}
+
+/// Read the `[design]` table (required by the regression templates).
+pub fn from_ctx(ctx: &Ctx) -> Result<Design> {
+    let t = ctx.raw.design.as_ref().ok_or_else(|| {
+        ctx.err(&[], "the regression templates need a [design] table")
+            .with_hint(
+                "add\n  [design]\n  file = \"covariates.csv\"   # or: columns = 100, rows = 200",
+            )
+    })?;
+    ctx.check_keys(&[key("design")], t, &KEYS)?;
+    let standardise = match t.get("standardise") {
+        None => false,
+        Some(toml::Value::Boolean(b)) => *b,
+        Some(v) => {
+            return Err(ctx.err(
+                &sub("standardise"),
+                format!("expected true or false, found {v}"),
+            ))
+        }
+    };
+    match (t.get("file"), t.get("columns")) {
+        (Some(_), Some(_)) => Err(ctx
+            .err(
+                &sub("columns"),
+                "give either `file` or a synthetic design (`columns`, `rows`), not both",
+            )
+            .with_hint("remove `columns` to read the file")),
+        (Some(f), None) => {
+            for k in ["rows", "correlation", "rho", "seed"] {
+                if t.contains_key(k) {
+                    return Err(ctx.err(
+                        &sub(k),
+                        format!("`{k}` applies to a synthetic design, not to `file`"),
+                    ));
+                }
+            }
+            let name = ctx.string(&sub("file"), f)?;
+            let path = ctx.resolve(name);
+            read_csv(&path, standardise)
+        }
+        (None, Some(c)) => synthetic(ctx, t, c, standardise),
+        (None, None) => Err(ctx
+            .err(
+                &[key("design")],
+                "[design] needs `file` or `columns` and `rows`",
+            )
+            .with_hint("file = \"covariates.csv\", or columns = 100, rows = 200")),
+    }
+}
+
+fn synthetic(ctx: &Ctx, t: &toml::Table, c: &toml::Value, standardise: bool) -> Result<Design> {
+    let p = ctx.count(&sub("columns"), c)? as usize;
+    let n = match t.get("rows") {
+        Some(v) => ctx.count(&sub("rows"), v)? as usize,
+        None => {
+            return Err(ctx
+                .err(&[key("design")], "a synthetic design needs `rows`")
+                .with_hint("e.g. rows = 200"))
+        }
+    };
+    if p == 0 || n < 2 {
+        return Err(ctx.err(
+            &sub(if p == 0 { "columns" } else { "rows" }),
+            format!("a design needs at least 1 column and 2 rows (found {p} × {n})"),
+        ));
+    }
+    if n.saturating_mul(p) > MAX_CELLS {
+        return Err(Error::Limit(format!(
+            "design of {n} rows × {p} columns exceeds {MAX_CELLS} cells"
+        )));
+    }
+    let rho = match t.get("rho") {
+        Some(v) => Some(ctx.num(&sub("rho"), v)?),
+        None => None,
+    };
+    let corr = match t.get("correlation") {
+        None => Correlation::Independent,
+        Some(v) => {
+            let s = ctx.string(&sub("correlation"), v)?;
+            match s {
+                "independent" => Correlation::Independent,
+                "ar1" | "exchangeable" => {
+                    let r = rho.ok_or_else(|| {
+                        ctx.err(
+                            &sub("correlation"),
+                            format!("correlation \"{s}\" needs `rho`"),
+                        )
+                    })?;
+                    if s == "ar1" {
+                        if !(r > -1.0 && r < 1.0) {
+                            return Err(
+                                ctx.err(&sub("rho"), format!("ar1 rho {r} must lie in (−1, 1)"))
+                            );
+                        }
+                        Correlation::Ar1(r)
+                    } else {
+                        if !(0.0..1.0).contains(&r) {
+                            return Err(ctx.err(
+                                &sub("rho"),
+                                format!("exchangeable rho {r} must lie in [0, 1)"),
+                            ));
+                        }
+                        Correlation::Exchangeable(r)
+                    }
+                }
+                other => {
+                    return Err(ctx
+                        .err(
+                            &sub("correlation"),
+                            format!("unknown correlation \"{other}\""),
+                        )
+                        .with_hint(choice_hint(other, &["independent", "ar1", "exchangeable"])))
+                }
+            }
+        }
+    };
+    if rho.is_some() && corr == Correlation::Independent {
+        return Err(ctx.err(
+            &sub("rho"),
+            "`rho` needs correlation = \"ar1\" or \"exchangeable\"",
+        ));
+    }
+    let seed = match t.get("seed") {
+        Some(v) => ctx.count(&sub("seed"), v)?,
+        None => 1,
+    };
+    let data = synthetic_rows(n, p, corr, seed);
+    let names = (1..=p).map(|j| format!("x{j}")).collect();
+    let label = match corr {
+        Correlation::Independent => "independent".to_string(),
+        Correlation::Ar1(r) => format!("ar1 rho {r}"),
+        Correlation::Exchangeable(r) => format!("exchangeable rho {r}"),
+    };
+    Design::from_rows(
+        format!("synthetic {n} × {p} normal design ({label}, seed {seed})"),
+        names,
+        n,
+        &data,
+        standardise,
+    )
+    .map_err(|m| ctx.err(&sub("columns"), m))
+}
+
+/// Row-major n × p synthetic normal design.
+pub fn synthetic_rows(n: usize, p: usize, corr: Correlation, seed: u64) -> Vec<f64> {
+    use rayon::prelude::*;
+    let mut data = vec![0.0; n * p];
+    data.par_chunks_mut(p).enumerate().for_each(|(r, row)| {
+        let mut rng = crate::rng::stream(seed, r as u64);
+        let w = crate::numerics::norm_quantile(crate::rng::open01(&mut rng));
+        let mut prev = 0.0;
+        for (j, x) in row.iter_mut().enumerate() {
+            let z = crate::numerics::norm_quantile(crate::rng::open01(&mut rng));
+            *x = match corr {
+                Correlation::Independent => z,
+                Correlation::Ar1(rho) => {
+                    if j == 0 {
+                        z
+                    } else {
+                        rho * prev + (1.0 - rho * rho).sqrt() * z
+                    }
+                }
+                Correlation::Exchangeable(rho) => rho.sqrt() * w + (1.0 - rho).sqrt() * z,
+            };
+            prev = *x;
+        }
+    });
+    data
+}
+
+/// Read a CSV design: header row, numeric cells only.
+pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
+    let loc = |line: Option<usize>, col: Option<&str>| Location {
+        file: Some(path.to_path_buf()),
+        line,
+        key: col.map(str::to_string),
+    };
+    let file = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+    let mut rdr = csv::ReaderBuilder::new()
+        .has_headers(true)
+        .flexible(true)
+        .trim(csv::Trim::All)
+        .from_reader(file);
+    let names: Vec<String> = rdr
+        .headers()
+        .map_err(|e| Error::input(loc(Some(1), None), format!("cannot read the header: {e}")))?
+        .iter()
+        .map(str::to_string)
+        .collect();
+    if names.is_empty() || names.iter().all(String::is_empty) {
+        return Err(Error::input(
+            loc(Some(1), None),
+            "the design file has no header row of column names",
+        ));
+    }
+    for (j, n) in names.iter().enumerate() {
+        if n.is_empty() {
+            return Err(Error::input(
+                loc(Some(1), None),
+                format!("column {} has an empty name", j + 1),
+            ));
+        }
+        if names[..j].contains(n) {
+            return Err(Error::input(
+                loc(Some(1), Some(n)),
+                format!("column name `{n}` appears twice"),
+            ));
+        }
+    }
+    let p = names.len();
+    let mut data = Vec::new();
+    let mut rows = 0usize;
+    for rec in rdr.records() {
+        let rec = rec.map_err(|e| {
+            let line = e.position().map(|p| p.line() as usize);
+            Error::input(loc(line, None), format!("cannot read the design: {e}"))
+        })?;
+        let line = rec.position().map(|p| p.line() as usize);
+        rows += 1;
+        if rows.saturating_mul(p) > MAX_CELLS {
+            return Err(Error::Limit(format!(
+                "{}: design exceeds {MAX_CELLS} cells",
+                path.display()
+            )));
+        }
+        for (j, name) in names.iter().enumerate() {
+            let cell = rec.get(j).unwrap_or("");
+            if cell.is_empty() {
+                return Err(Error::input(
+                    loc(line, Some(name)),
+                    format!("row {rows}, column `{name}`: missing value"),
+                )
+                .with_hint("every cell of the design must hold a number"));
+            }
+            let x: f64 = cell
+                .parse()
+                .ok()
+                .filter(|x: &f64| x.is_finite())
+                .ok_or_else(|| {
+                    Error::input(
+                        loc(line, Some(name)),
+                        format!("row {rows}, column `{name}`: \"{cell}\" is not a finite number"),
+                    )
+                    .with_hint("code categories as 0/1 indicator columns")
+                })?;
+            data.push(x);
+        }
+        if rec.len() > p {
+            return Err(Error::input(
+                loc(line, None),
+                format!(
+                    "row {rows} has {} cells but the header names {p}",
+                    rec.len()
+                ),
+            ));
+        }
+    }
+    if rows < 2 {
+        return Err(Error::input(
+            loc(None, None),
+            format!("the design has {rows} data rows; at least 2 are needed"),
+        ));
+    }
+    Design::from_rows(
+        format!("{} ({rows} rows × {p} columns)", path.display()),
+        names,
+        rows,
+        &data,
+        standardise,
+    )
+    .map_err(|m| Error::input(loc(None, None), m))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn standardised_columns_have_unit_variance() {
+        let d = synthetic_rows(500, 3, Correlation::Ar1(0.6), 4);
+        let des = Design::from_rows(
+            "t".into(),
+            vec!["a".into(), "b".into(), "c".into()],
+            500,
+            &d,
+            true,
+        )
+        .unwrap();
+        for v in &des.var {
+            assert!((v - 1.0).abs() < 1e-12);
+        }
+        // Sample lag-1 correlation of an AR(1) design near ρ = 0.6: 4 SE, SE ≈ (1−ρ²)/√n.
+        let x = &des.xc;
+        let c: f64 = (0..500).map(|r| x[(r, 0)] * x[(r, 1)]).sum::<f64>() / 500.0;
+        assert!((c - 0.6).abs() < 4.0 * (1.0 - 0.36) / 500f64.sqrt(), "{c}");
+    }
+
+    #[test]
+    fn csv_errors_name_row_and_column() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("x.csv");
+        std::fs::write(&p, "a,b\n1,2\n3,oops\n").unwrap();
+        let e = read_csv(&p, false).unwrap_err().to_string();
+        assert!(
+            e.contains(":3") && e.contains("`b`") && e.contains("oops"),
+            "{e}"
+        );
+        std::fs::write(&p, "a,b\n1,2\n3,\n").unwrap();
+        let e = read_csv(&p, false).unwrap_err().to_string();
+        assert!(e.contains("missing value") && e.contains("row 2"), "{e}");
+        std::fs::write(&p, "a,b\n1,2\n3,4\n5,6\n").unwrap();
+        let d = read_csv(&p, true).unwrap();
+        assert_eq!(d.rows(), 3);
+        assert!((d.var[1] - 1.0).abs() < 1e-12);
+    }
+}

@@ -1,0 +1,543 @@
+//! Coefficient priors of the regression templates, read from `[prior.coefficients]`,
+//! and the per-draw linear algebra that turns a coefficient draw into design-level
+//! quantities.
+//!
+//! Every family is a scale mixture of normals, β_j = ω_j z_j with z_j ~ N(0, 1) and
+//! a scale ω_j = g·w_j that splits into a per-draw multiplier g (global) and a
+//! λ-free local factor w_j:
+//! * `normal` (ridge), scale s:               g = s, w_j = 1
+//! * `student-t`, df ν (fixed), scale s:      g = s, w_j = √(ν/χ²_ν)
+//! * `laplace`, scale b:                      g = b, w_j = √(2E_j), E_j ~ Exp(1)
+//!   (Andrews & Mallows 1974, JRSS B 36: the Laplace is a normal scale mixture)
+//! * `horseshoe`, global_scale τ0 (Carvalho, Polson & Scott 2010, Biometrika 97):
+//!   g = τ = τ0·c, c ~ C⁺(0, 1) (`global = "half-cauchy"`, default) or c = 1
+//!   (`global = "fixed"`); w_j = λ_j ~ C⁺(0, 1)
+//! * `regularised-horseshoe`, global_scale, slab_scale s, slab_df ν (Piironen &
+//!   Vehtari 2017, EJS 11, eq. 2.8): c² ~ Inv-Gamma(ν/2, νs²/2),
+//!   λ̃_j² = c²λ_j²/(c² + τ²λ_j²), ω_j = τλ̃_j — not a pure scale: recomputed
+//! * `r2d2`, a, b, concentration a_π (fixed) (Zhang, Naughton, Bondell & Reich 2022,
+//!   JASA 117): R² ~ Beta(a, b), W = R²/(1 − R²), φ ~ Dirichlet(a_π, …, a_π),
+//!   β_j ~ N(0, ρ·W·φ_j/s_j²), with ρ the template's reference residual variance
+//!   and s_j² the design variance of covariate j, so that Σ_j s_j² E[β_j² | W, φ] = ρW
+//!   on any design: the marginal R² is exactly Beta(a, b).
+//!   The normal-kernel version of R2D2 (the paper's Laplace kernel is a further
+//!   exponential mixture); g = √(ρW), w_j = √φ_j / s_j
+//! * `spike-and-slab`, inclusion π, slab_scale s: β_j = δ_j s z_j, δ_j ~ Bernoulli(π)
+//!   (Mitchell & Beauchamp 1988, JASA 83); cached when π is fixed.
+//!
+//! When ω = g·w with w free of the hyperparameters, Xβ = g·X(w∘z): the design
+//! products are computed once per fit (q = ‖X_c(w∘z)‖²/n and friends) and only
+//! rescaled afterwards. Otherwise each evaluation forms the coefficient draws in
+//! blocks of draws and multiplies them with the design (nalgebra matrix products),
+//! in parallel with rayon where the caller is not already a pool worker. Blocks
+//! are independent, so results do not depend on the thread count.
+
+use crate::design::Design;
+use crate::error::Result;
+use crate::rng;
+use crate::spec::{key, Ctx, Seg};
+use crate::templates::{Hyper, HyperValue};
+use nalgebra::DMatrix;
+use rayon::prelude::*;
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Kind {
+    Normal,
+    StudentT,
+    Laplace,
+    Horseshoe,
+    RegHorseshoe,
+    R2d2,
+    SpikeSlab,
+}
+
+pub const FAMILIES: [&str; 7] = [
+    "normal",
+    "student-t",
+    "laplace",
+    "horseshoe",
+    "regularised-horseshoe",
+    "r2d2",
+    "spike-and-slab",
+];
+
+/// What a hyperparameter may be.
+#[derive(Clone, Copy, PartialEq)]
+enum Domain {
+    Positive,
+    Probability,
+    /// Positive and fixed (it shapes the cached base draws).
+    FixedPositive,
+}
+
+impl Kind {
+    fn parse(s: &str) -> Option<Kind> {
+        Some(match s {
+            "normal" => Kind::Normal,
+            "student-t" => Kind::StudentT,
+            "laplace" => Kind::Laplace,
+            "horseshoe" => Kind::Horseshoe,
+            "regularised-horseshoe" | "regularized-horseshoe" => Kind::RegHorseshoe,
+            "r2d2" => Kind::R2d2,
+            "spike-and-slab" => Kind::SpikeSlab,
+            _ => return None,
+        })
+    }
+    pub fn name(&self) -> &'static str {
+        match self {
+            Kind::Normal => "normal",
+            Kind::StudentT => "student-t",
+            Kind::Laplace => "laplace",
+            Kind::Horseshoe => "horseshoe",
+            Kind::RegHorseshoe => "regularised-horseshoe",
+            Kind::R2d2 => "r2d2",
+            Kind::SpikeSlab => "spike-and-slab",
+        }
+    }
+    fn params(&self) -> &'static [(&'static str, Domain)] {
+        use Domain::*;
+        match self {
+            Kind::Normal | Kind::Laplace => &[("scale", Positive)],
+            Kind::StudentT => &[("df", FixedPositive), ("scale", Positive)],
+            Kind::Horseshoe => &[("global_scale", Positive)],
+            Kind::RegHorseshoe => &[
+                ("global_scale", Positive),
+                ("slab_scale", Positive),
+                ("slab_df", Positive),
+            ],
+            Kind::R2d2 => &[
+                ("a", Positive),
+                ("b", Positive),
+                ("concentration", FixedPositive),
+            ],
+            Kind::SpikeSlab => &[("inclusion", Probability), ("slab_scale", Positive)],
+        }
+    }
+    fn example(&self) -> &'static str {
+        match self {
+            Kind::Normal | Kind::Laplace => "scale = { fit = [0.001, 1.0] }",
+            Kind::StudentT => "df = 3\n  scale = { fit = [0.001, 1.0] }",
+            Kind::Horseshoe => "global_scale = { fit = [0.0001, 1.0] }",
+            Kind::RegHorseshoe => {
+                "global_scale = { fit = [0.0001, 1.0] }\n  slab_scale = 2.0\n  slab_df = 4"
+            }
+            Kind::R2d2 => {
+                "a = { fit = [0.2, 20] }\n  b = { fit = [0.2, 20] }\n  concentration = 0.5"
+            }
+            Kind::SpikeSlab => "inclusion = 0.05\n  slab_scale = { fit = [0.01, 2.0] }",
+        }
+    }
+}
+
+pub const EXAMPLE: &str =
+    "family = \"horseshoe\"   # normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab\n  global_scale = { fit = [0.0001, 1.0] }";
+
+/// A validated coefficient prior; `idx` points into the model's hyperparameters.
+#[derive(Debug, Clone)]
+pub struct CoefPrior {
+    pub kind: Kind,
+    pub global_fixed: bool,
+    pub idx: Vec<usize>,
+    pub names: Vec<&'static str>,
+    /// Fixed values of the fixed-only parameters (student-t df, r2d2 concentration).
+    pub shape: f64,
+    /// Whether ω = g·w with w free of every hyperparameter (see module docs).
+    pub cached: bool,
+}
+
+fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
+    let mut p = path.to_vec();
+    p.push(key(k));
+    p
+}
+
+/// Read `[prior.coefficients]`, pushing its hyperparameters onto `hypers`.
+pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
+    let t = ctx.prior_table("coefficients", EXAMPLE)?;
+    let path = [key("prior"), key("coefficients")];
+    let fam = t.get("family").ok_or_else(|| {
+        ctx.err(&path, "[prior.coefficients] needs `family`")
+            .with_hint(format!("e.g.\n  {EXAMPLE}"))
+    })?;
+    let fname = ctx.string(&sub(&path, "family"), fam)?;
+    let kind = Kind::parse(fname).ok_or_else(|| {
+        ctx.err(
+            &sub(&path, "family"),
+            format!("unknown coefficient prior \"{fname}\""),
+        )
+        .with_hint(crate::error::choice_hint(fname, &FAMILIES))
+    })?;
+    let mut allowed = vec!["family"];
+    allowed.extend(kind.params().iter().map(|p| p.0));
+    let hs = matches!(kind, Kind::Horseshoe | Kind::RegHorseshoe);
+    if hs {
+        allowed.push("global");
+    }
+    ctx.check_keys(&path, t, &allowed)?;
+    let global_fixed =
+        match t.get("global") {
+            None => false,
+            Some(v) => match ctx.string(&sub(&path, "global"), v)? {
+                "half-cauchy" => false,
+                "fixed" => true,
+                other => return Err(ctx
+                    .err(
+                        &sub(&path, "global"),
+                        format!("unknown global prior \"{other}\""),
+                    )
+                    .with_hint(
+                        "\"half-cauchy\" (τ ~ C⁺(0, global_scale)) or \"fixed\" (τ = global_scale)",
+                    )),
+            },
+        };
+    let mut idx = Vec::new();
+    let mut names = Vec::new();
+    let mut shape = 0.0;
+    let mut inclusion_free = false;
+    for (p, dom) in kind.params() {
+        let pp = sub(&path, p);
+        let v = t.get(*p).ok_or_else(|| {
+            ctx.err(&path, format!("[prior.coefficients] ({fname}) needs `{p}`"))
+                .with_hint(format!("e.g.\n  {}", kind.example()))
+        })?;
+        let hv = ctx.hyper_value(&pp, v)?;
+        let ok = |x: f64| match dom {
+            Domain::Positive | Domain::FixedPositive => x > 0.0,
+            Domain::Probability => x > 0.0 && x <= 1.0,
+        };
+        let what = match dom {
+            Domain::Probability => "must lie in (0, 1]",
+            _ => "must be > 0",
+        };
+        match &hv {
+            HyperValue::Fixed(x) => {
+                if !ok(*x) {
+                    return Err(ctx.err(&pp, format!("{fname}: `{p}` = {x} {what}")));
+                }
+                if *dom == Domain::FixedPositive {
+                    shape = *x;
+                }
+            }
+            HyperValue::Free { lo, hi, .. } => {
+                if *dom == Domain::FixedPositive {
+                    return Err(ctx
+                        .err(&pp, format!("{fname}: `{p}` must be a fixed number here"))
+                        .with_hint("it shapes the coefficient draws that are computed once per fit; fit the scale hyperparameters instead"));
+                }
+                for x in [*lo, *hi] {
+                    if !ok(x) {
+                        return Err(ctx.err(
+                            &sub(&pp, "fit"),
+                            format!("{fname}: bound {x} of `{p}` {what}"),
+                        ));
+                    }
+                }
+                if *p == "inclusion" {
+                    inclusion_free = true;
+                }
+            }
+        }
+        idx.push(hypers.len());
+        names.push(*p);
+        hypers.push(Hyper::new(format!("coefficients.{p}"), hv));
+    }
+    let cached = match kind {
+        Kind::RegHorseshoe => false,
+        Kind::SpikeSlab => !inclusion_free,
+        _ => true,
+    };
+    Ok(CoefPrior {
+        kind,
+        global_fixed,
+        idx,
+        names,
+        shape,
+        cached,
+    })
+}
+
+/// Stream ids (relative to the block) of the per-draw global uniforms.
+pub const GLOBAL_STREAM: u64 = 8;
+pub const SLAB_STREAM: u64 = 9;
+pub const R2_STREAM: u64 = 10;
+/// Draw i's normals use stream COEF_STREAM + 2i, its local variates COEF_STREAM + 2i + 1.
+pub const COEF_STREAM: u64 = 64;
+
+/// A Gamma(shape, 1) variate by Marsaglia & Tsang (2000, ACM TOMS 26(3)), with the
+/// boost G(a) = G(a + 1)·U^{1/a} for a < 1; normals by probit of our uniforms.
+pub fn gamma_variate(shape: f64, r: &mut rand::rngs::ChaCha8Rng) -> f64 {
+    if shape < 1.0 {
+        let u = rng::open01(r);
+        return gamma_variate(shape + 1.0, r) * u.powf(1.0 / shape);
+    }
+    let d = shape - 1.0 / 3.0;
+    let c = 1.0 / (9.0 * d).sqrt();
+    loop {
+        let z = crate::numerics::norm_quantile(rng::open01(r));
+        let v = 1.0 + c * z;
+        if v <= 0.0 {
+            continue;
+        }
+        let v = v * v * v;
+        let u = rng::open01(r);
+        if u.ln() < 0.5 * z * z + d - d * v + d * v.ln() {
+            return d * v;
+        }
+    }
+}
+
+impl CoefPrior {
+    /// Draw i's normals z and local variates (the λ-free factor w, or for
+    /// spike-and-slab the uniform deciding inclusion).
+    pub fn base_draw(
+        &self,
+        d: &Design,
+        seed: u64,
+        block: u64,
+        i: usize,
+        z: &mut [f64],
+        loc: &mut [f64],
+    ) {
+        let mut r = rng::stream(seed, block + COEF_STREAM + 2 * i as u64);
+        for x in z.iter_mut() {
+            *x = crate::numerics::norm_quantile(rng::open01(&mut r));
+        }
+        let mut r = rng::stream(seed, block + COEF_STREAM + 2 * i as u64 + 1);
+        match self.kind {
+            Kind::Normal => loc.fill(1.0),
+            Kind::StudentT => {
+                let nu = self.shape;
+                for x in loc.iter_mut() {
+                    *x = (nu / (2.0 * gamma_variate(0.5 * nu, &mut r))).sqrt();
+                }
+            }
+            Kind::Laplace => {
+                for x in loc.iter_mut() {
+                    *x = (-2.0 * rng::open01(&mut r).ln()).sqrt();
+                }
+            }
+            Kind::Horseshoe | Kind::RegHorseshoe => {
+                for x in loc.iter_mut() {
+                    *x = (0.5 * std::f64::consts::PI * rng::open01(&mut r)).tan();
+                }
+            }
+            Kind::R2d2 => {
+                let mut s = 0.0;
+                for x in loc.iter_mut() {
+                    *x = gamma_variate(self.shape, &mut r);
+                    s += *x;
+                }
+                for (x, v) in loc.iter_mut().zip(&d.var) {
+                    *x = if *v > 0.0 { (*x / s / v).sqrt() } else { 0.0 };
+                }
+            }
+            Kind::SpikeSlab => {
+                for x in loc.iter_mut() {
+                    *x = rng::open01(&mut r);
+                }
+            }
+        }
+    }
+
+    /// In the cached case, the local factor w from the stored local variate.
+    pub fn cached_w(&self, h: &[f64], loc: f64) -> f64 {
+        match self.kind {
+            Kind::SpikeSlab => {
+                if loc < h[self.idx[0]] {
+                    1.0
+                } else {
+                    0.0
+                }
+            }
+            _ => loc,
+        }
+    }
+
+    /// The per-draw global multiplier g_i (cached kinds), given ρ_i and the globals.
+    pub fn global(&self, h: &[f64], gu: f64, w_r2: f64, rho: f64) -> f64 {
+        match self.kind {
+            Kind::Normal | Kind::Laplace => h[self.idx[0]],
+            Kind::StudentT => h[self.idx[1]],
+            Kind::Horseshoe | Kind::RegHorseshoe => {
+                let t0 = h[self.idx[0]];
+                if self.global_fixed {
+                    t0
+                } else {
+                    t0 * (0.5 * std::f64::consts::PI * gu).tan()
+                }
+            }
+            Kind::R2d2 => (rho * w_r2).sqrt(),
+            Kind::SpikeSlab => h[self.idx[1]],
+        }
+    }
+
+    /// W = R²/(1 − R²) of each draw for R2D2 (else empty), from its uniforms.
+    pub fn r2d2_w(&self, h: &[f64], u: &[f64]) -> Result<Vec<f64>> {
+        if self.kind != Kind::R2d2 {
+            return Ok(Vec::new());
+        }
+        use crate::dist::Continuous;
+        let b = crate::dist::beta::Beta::new(h[self.idx[0]], h[self.idx[1]])?;
+        Ok(u.iter()
+            .map(|u| {
+                let r = b.quantile(*u);
+                r / (1.0 - r)
+            })
+            .collect())
+    }
+
+    /// The slab scale c_i of each draw (regularised horseshoe, else empty).
+    pub fn slabs(&self, h: &[f64], u: &[f64]) -> Result<Vec<f64>> {
+        if self.kind != Kind::RegHorseshoe {
+            return Ok(Vec::new());
+        }
+        use crate::dist::Continuous;
+        let nu = h[self.idx[2]];
+        let s = h[self.idx[1]];
+        let ig = crate::dist::inverse_gamma::InverseGamma::new(0.5 * nu, 0.5 * nu)?;
+        Ok(u.iter().map(|u| s * ig.quantile(*u).sqrt()).collect())
+    }
+}
+
+/// Per-draw design products of a block of coefficient draws (unit global).
+#[derive(Default)]
+pub struct Products {
+    /// ‖X_c β‖²/n: the design variance of the linear predictor.
+    pub q: Vec<f64>,
+    /// Σ_j s_j² ω_j²: its expectation over z (the marginal signal variance).
+    pub v: Vec<f64>,
+    /// X_c β, rows × draws (draw i at i·rows), when asked for.
+    pub rows: Vec<f64>,
+    /// a_kᵀβ for each registered linear form k.
+    pub forms: Vec<Vec<f64>>,
+    /// Cached mode: n s_j² w_j² (draws × p, f32). Direct mode: m_eff per draw.
+    pub eff_store: Vec<f32>,
+    pub eff: Vec<f64>,
+}
+
+/// How effective_nonzero is served.
+#[derive(Clone, Copy)]
+pub enum Eff<'a> {
+    None,
+    /// Store n s_j² w_j² for later rescaling.
+    Store,
+    /// Compute m_eff = Σ_j x/(1 + x), x = n s_j² ω_j² / ρ_i, with 1/ρ per draw.
+    Direct(&'a [f64]),
+}
+
+/// Draws per block: large enough that packing the design for the matrix product
+/// (matrixmultiply packs its left operand on every call) is amortised.
+const BLOCK: usize = 256;
+
+/// Fills draw i's scales and normals.
+pub type Fill<'a> = dyn Fn(usize, &mut [f64], &mut [f64]) + Sync + 'a;
+
+/// Compute [`Products`] for draws 0..n, where `fill(i, w, z)` writes draw i's
+/// scales ω (or w) and normals z. The design product X_cβ (the costly part,
+/// rows × p per draw) is formed only when `want_q` or `want_rows`. Parallel over
+/// blocks when `parallel`.
+#[allow(clippy::too_many_arguments)]
+pub fn products(
+    d: &Design,
+    n: usize,
+    forms: &[Vec<(usize, f64)>],
+    want_rows: bool,
+    want_q: bool,
+    eff: Eff,
+    parallel: bool,
+    fill: &Fill,
+) -> Products {
+    let p = d.cols();
+    let nr = d.rows();
+    let nblocks = n.div_ceil(BLOCK);
+    let one = |b: usize| -> Products {
+        let i0 = b * BLOCK;
+        let nb = BLOCK.min(n - i0);
+        let mut bm = DMatrix::<f64>::zeros(p, nb);
+        let mut w = vec![0.0; p];
+        let mut out = Products {
+            q: vec![0.0; nb],
+            v: vec![0.0; nb],
+            forms: vec![vec![0.0; nb]; forms.len()],
+            ..Default::default()
+        };
+        if matches!(eff, Eff::Store) {
+            out.eff_store = vec![0.0; nb * p];
+        }
+        if matches!(eff, Eff::Direct(_)) {
+            out.eff = vec![0.0; nb];
+        }
+        for k in 0..nb {
+            let i = i0 + k;
+            let mut col = bm.column_mut(k);
+            let z = col.as_mut_slice();
+            fill(i, &mut w, z);
+            let mut v = 0.0;
+            for j in 0..p {
+                v += d.var[j] * w[j] * w[j];
+                z[j] *= w[j];
+            }
+            out.v[k] = v;
+            for (f, o) in forms.iter().zip(out.forms.iter_mut()) {
+                o[k] = f.iter().map(|(j, a)| a * z[*j]).sum();
+            }
+            match eff {
+                Eff::None => {}
+                Eff::Store => {
+                    let e = &mut out.eff_store[k * p..(k + 1) * p];
+                    for j in 0..p {
+                        e[j] = (nr as f64 * d.var[j] * w[j] * w[j]) as f32;
+                    }
+                }
+                Eff::Direct(irho) => {
+                    out.eff[k] = (0..p)
+                        .map(|j| shrink_term(nr as f64 * d.var[j] * w[j] * w[j] * irho[i]))
+                        .sum();
+                }
+            }
+        }
+        if want_q || want_rows {
+            let m = &d.xc * &bm;
+            for k in 0..nb {
+                let c = m.column(k);
+                out.q[k] = c.iter().map(|x| x * x).sum::<f64>() / nr as f64;
+            }
+            if want_rows {
+                out.rows = m.as_slice().to_vec();
+            }
+        }
+        out
+    };
+    let parts: Vec<Products> = if parallel && nblocks > 1 {
+        (0..nblocks).into_par_iter().map(one).collect()
+    } else {
+        (0..nblocks).map(one).collect()
+    };
+    let mut all = Products {
+        forms: vec![Vec::with_capacity(n); forms.len()],
+        ..Default::default()
+    };
+    for b in parts {
+        all.q.extend(b.q);
+        all.v.extend(b.v);
+        all.rows.extend(b.rows);
+        for (a, f) in all.forms.iter_mut().zip(b.forms) {
+            a.extend(f);
+        }
+        all.eff_store.extend(b.eff_store);
+        all.eff.extend(b.eff);
+    }
+    all
+}
+
+/// 1 − κ = x/(1 + x) for x = n s² ω²/σ², safe at x = 0 and x = ∞.
+#[inline]
+pub fn shrink_term(x: f64) -> f64 {
+    if x.is_nan() || x <= 0.0 {
+        0.0
+    } else if x.is_infinite() {
+        1.0
+    } else {
+        x / (1.0 + x)
+    }
+}
