@@ -183,7 +183,9 @@ pub fn optimise(
     };
 
     // Local stage on the coarse draws.
-    let tol_c = 1e-3 * coarse.floor();
+    // Stopping rules tied to the noise floor: the coarse stage only locates the
+    // basin; the full stage stops when the simplex spread is 1 % of a floor.
+    let tol_c = 0.05 * coarse.floor();
     let locals: Vec<(usize, simplex::Local)> = order[..m]
         .par_iter()
         .map(|(i, _)| {
@@ -212,7 +214,7 @@ pub fn optimise(
     best_c.sort_by(|a, b| a.1.f.total_cmp(&b.1.f).then(a.0.cmp(&b.0)));
 
     // Refinement at full draws from the best two, then one restart of the winner.
-    let tol_f = 1e-3 * full_obj.floor();
+    let tol_f = 0.01 * full_obj.floor();
     let refined: Vec<(usize, simplex::Local)> = best_c[..best_c.len().min(2)]
         .par_iter()
         .map(|(i, r)| {
