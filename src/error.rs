@@ -133,7 +133,7 @@ pub fn nearest<'a>(bad: &str, valid: impl IntoIterator<Item = &'a str>) -> Optio
 }
 
 /// A hint listing the valid choices, leading with the nearest one.
-pub fn choice_hint<'a>(bad: &str, valid: &[&'a str]) -> String {
+pub fn choice_hint(bad: &str, valid: &[&str]) -> String {
     let list = valid.join(", ");
     match nearest(bad, valid.iter().copied()) {
         Some(n) => format!("did you mean `{n}`? valid: {list}"),

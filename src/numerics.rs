@@ -10,6 +10,8 @@
 //!   interpolation", SIAM J. Numer. Anal. 17(2), 238–246.
 //! * `brent_root`: bracketing root finder (Brent 1973, Algorithms for
 //!   Minimization without Derivatives, ch. 4).
+// The AS 241 coefficients are printed to the precision Wichura published.
+#![allow(clippy::excessive_precision)]
 
 use special::Error as _;
 

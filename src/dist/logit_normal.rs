@@ -20,7 +20,7 @@ impl LogitNormal {
     }
 
     /// E[g(θ)] by quadrature on z ∈ [−10, 10].
-    fn expect(&self, g: impl Fn(f64) -> f64) -> f64 {
+    fn expectation(&self, g: impl Fn(f64) -> f64) -> f64 {
         crate::numerics::integrate(
             |z| g(logistic(self.mu + self.sigma * z)) * norm_pdf(z),
             -10.0,
@@ -67,11 +67,11 @@ impl Continuous for LogitNormal {
         (0.0, 1.0)
     }
     fn mean(&self) -> Option<f64> {
-        Some(self.expect(|t| t))
+        Some(self.expectation(|t| t))
     }
     fn variance(&self) -> Option<f64> {
-        let m = self.expect(|t| t);
-        Some(self.expect(|t| (t - m) * (t - m)))
+        let m = self.expectation(|t| t);
+        Some(self.expectation(|t| (t - m) * (t - m)))
     }
     fn params(&self) -> Vec<(&'static str, f64)> {
         vec![("mu", self.mu), ("sigma", self.sigma)]

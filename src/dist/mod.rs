@@ -113,6 +113,7 @@ pub trait Continuous: Send + Sync + fmt::Debug {
     /// The parameters in registry order, with their names.
     fn params(&self) -> Vec<(&'static str, f64)>;
     /// A draw from a base variate of the family's [`Base`] kind.
+    #[allow(clippy::wrong_self_convention)]
     fn from_base(&self, b: f64) -> f64 {
         self.quantile(b)
     }
@@ -128,6 +129,9 @@ pub trait Continuous: Send + Sync + fmt::Debug {
     }
 }
 
+/// Builds a family from its parameters in registry order.
+pub type Builder = fn(&[f64]) -> Result<Box<dyn Continuous>, DistError>;
+
 /// Registry entry of a family.
 pub struct FamilyInfo {
     pub name: &'static str,
@@ -136,7 +140,7 @@ pub struct FamilyInfo {
     pub base: Base,
     pub support: Support,
     pub about: &'static str,
-    pub build: fn(&[f64]) -> Result<Box<dyn Continuous>, DistError>,
+    pub build: Builder,
 }
 
 impl fmt::Debug for FamilyInfo {

@@ -151,10 +151,11 @@ impl SourceMap {
     pub fn line_of(&self, path: &[Seg]) -> Option<usize> {
         let mut best: Option<(usize, usize)> = None;
         for (p, line) in &self.entries {
-            if p.len() <= path.len() && path[..p.len()] == p[..] {
-                if best.is_none_or(|(len, _)| p.len() > len) {
-                    best = Some((p.len(), *line));
-                }
+            if p.len() <= path.len()
+                && path[..p.len()] == p[..]
+                && best.is_none_or(|(len, _)| p.len() > len)
+            {
+                best = Some((p.len(), *line));
             }
         }
         best.map(|b| b.1)
