@@ -13,26 +13,7 @@ use std::path::{Path, PathBuf};
 
 /// Write `bytes` to `path` atomically (temporary file in the same folder + rename).
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .map(|s| s.to_string_lossy().to_string())
-        .unwrap_or_default();
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
-    let res = (|| {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if let Err(e) = res {
-        let _ = std::fs::remove_file(&tmp);
-        return Err(Error::io(path, e));
-    }
-    Ok(())
+    write_all_atomic(&[(path.to_path_buf(), bytes.to_vec())])
 }
 
 /// Create the output folder (and parents) with a clear error.
