@@ -87,7 +87,13 @@ impl Design {
             let col = (0..rows).map(|r| data[r * p + j]);
             *m = col.clone().sum::<f64>() / rows as f64;
             *s = (col.map(|x| (x - *m).powi(2)).sum::<f64>() / rows as f64).sqrt();
-            if standardise && (s.is_nan() || *s <= 1e-12 * m.abs().max(1.0)) {
+            if !m.is_finite() || !s.is_finite() {
+                return Err(format!(
+                    "column `{}` has values too large to average (mean {}, sd {}); rescale it",
+                    names[j], m, s
+                ));
+            }
+            if standardise && *s <= 1e-12 * m.abs().max(1.0) {
                 return Err(format!(
                     "column `{}` is constant ({}); it cannot be standardised",
                     names[j], m
@@ -373,18 +379,22 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
             data.push(x);
         }
         if rec.len() > p {
+            let extra = rec.get(p).unwrap_or("");
             return Err(Error::input(
                 loc(line, None),
                 format!(
-                    "row {rows} has {} cells but the header names {p}",
-                    rec.len()
+                    "row {rows} has {} cells but the header names {p}: column {} holds \"{extra}\" \
+                     and has no name",
+                    rec.len(),
+                    p + 1
                 ),
-            ));
+            )
+            .with_hint("every row needs one cell per header name; check for a stray comma"));
         }
     }
     if rows < 2 {
         return Err(Error::input(
-            loc(None, None),
+            loc(Some(rows + 1), None),
             format!("the design has {rows} data rows; at least 2 are needed"),
         ));
     }
@@ -395,7 +405,14 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
         &data,
         standardise,
     )
-    .map_err(|m| Error::input(loc(None, None), m))
+    .map_err(|m| {
+        // Name the column (the message holds its name between backticks).
+        let col = m.split('`').nth(1).map(str::to_string);
+        Error::input(
+            loc(None, col.as_deref()),
+            format!("{m} (all {rows} data rows)"),
+        )
+    })
 }
 
 #[cfg(test)]

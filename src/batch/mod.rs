@@ -131,6 +131,21 @@ pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan>
     let base_text = std::fs::read_to_string(base_path).map_err(|e| Error::io(base_path, e))?;
     let base = spec::parse_table(&base_text, Some(base_path))?;
     let t = table::read(table_path)?;
+    let cap = crate::limits::max_batch_rows();
+    if t.rows.len() > cap {
+        // Each planned row holds a parsed copy of the base file until it runs:
+        // about 16 bytes per byte of its text (TOML nodes, keys, strings), at least 4 kB.
+        let per_row = (16 * base_text.len()).max(4096) as u64;
+        return Err(Error::Limit(format!(
+            "{}: the table has {} data rows, over the limit of {cap}; planning them \
+             needs about {} MB (a parsed copy of {} per row)\n  hint: split the table, or {}",
+            table_path.display(),
+            t.rows.len(),
+            crate::limits::mb(per_row.saturating_mul(t.rows.len() as u64)),
+            base_path.display(),
+            crate::limits::hint()
+        )));
+    }
     let mut seen: BTreeMap<String, usize> = BTreeMap::new();
     let mut rows = Vec::new();
     for r in &t.rows {

@@ -32,6 +32,9 @@ pub struct Cli {
     /// Worker threads (results do not depend on it).
     #[arg(long, global = true)]
     pub threads: Option<usize>,
+    /// Working-memory budget in MB (default 4096); work estimated above it is refused.
+    #[arg(long, global = true, value_name = "MB")]
+    pub max_memory: Option<u64>,
     #[command(subcommand)]
     pub command: Command,
 }
@@ -182,6 +185,12 @@ pub fn run(cli: Cli) -> Result<()> {
             .num_threads(t.max(1))
             .build_global()
             .context("could not set up the thread pool")?;
+    }
+    if let Some(mb) = cli.max_memory {
+        if mb == 0 {
+            anyhow::bail!("--max-memory 0: give the budget in MB, e.g. --max-memory 8192");
+        }
+        crate::limits::set_max_memory_mb(mb);
     }
     let quiet = cli.quiet;
     match cli.command {

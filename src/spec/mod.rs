@@ -522,6 +522,19 @@ pub fn from_table(
         beliefs.push(belief::validate(&ctx, &*model, info, i, rb)?);
     }
 
+    // Working memory, now that the beliefs have told the model what to prepare.
+    let (need, what) = model.working_bytes(draws);
+    if need > crate::limits::max_memory_bytes() {
+        return Err(Error::Limit(format!(
+            "{}: {what} (template {template}) need about {} MB of working memory, \
+             over the limit of {} MB; lower `draws` in [simulation]\n  hint: {}",
+            file.map_or("<input>".to_string(), |f| f.display().to_string()),
+            crate::limits::mb(need),
+            crate::limits::max_memory_mb(),
+            crate::limits::hint()
+        )));
+    }
+
     // [fit]
     let f = raw.fit.as_ref();
     let fp = |k: &str| [key("fit"), key(k)];

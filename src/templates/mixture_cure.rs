@@ -163,13 +163,29 @@ impl Latency {
     }
 
     /// ∫₀ʰ S_u(t) dt.
+    ///
+    /// Weibull: λΓ(1 + 1/k)P(1/k, x) with x = (h/λ)^k (exponential: k = 1). When
+    /// x < 1e-10 the leading terms of the series, h(1 − x/(k + 1)), are used
+    /// instead: the closed form is then 0·∞ for huge λ (ln λ > 709) or a vanishing
+    /// regularised gamma. The result is kept in [0, h] (0 ≤ S_u ≤ 1).
     pub fn integral(&self, h: f64, ls: f64, k: f64, gl: &(Vec<f64>, Vec<f64>)) -> f64 {
         let lambda = ls.exp();
-        match self {
-            Latency::Exponential => lambda * -(-h / lambda).exp_m1(),
-            Latency::Weibull => {
-                let a = 1.0 / k;
-                lambda * ln_gamma(1.0 + a).exp() * gamma_p(a, (k * (h.ln() - ls)).exp())
+        let v = match self {
+            Latency::Exponential | Latency::Weibull => {
+                let k = if *self == Latency::Exponential {
+                    1.0
+                } else {
+                    k
+                };
+                let x = (k * (h.ln() - ls)).exp();
+                if x < 1e-10 {
+                    h * (1.0 - x / (k + 1.0))
+                } else if *self == Latency::Exponential {
+                    lambda * -(-h / lambda).exp_m1()
+                } else {
+                    let a = 1.0 / k;
+                    lambda * ln_gamma(1.0 + a).exp() * gamma_p(a, x)
+                }
             }
             _ => {
                 let (x, w) = gl;
@@ -179,6 +195,18 @@ impl Latency {
                 }
                 0.5 * h * s
             }
+        };
+        if v.is_nan() {
+            // Should the closed form still be undefined (a degenerate shape draw,
+            // k = 0 or ∞), integrate S_u by Gauss–Legendre instead.
+            let (x, w) = gl;
+            0.5 * h
+                * x.iter()
+                    .zip(w)
+                    .map(|(xi, wi)| wi * self.surv(0.5 * h * (xi + 1.0), ls, k))
+                    .sum::<f64>()
+        } else {
+            v.clamp(0.0, h)
         }
     }
 }
@@ -609,6 +637,36 @@ impl Model for MixtureCure {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn rmst_integral_is_finite_for_tiny_horizons_and_huge_scales() {
+        // Found by tests/numerical_robustness.rs: Weibull with k ≈ 600, ln λ ≈ 16 and
+        // h = 1e-6 gave NaN (x = (h/λ)^k underflows to 0); exponential with
+        // ln λ > 709 gave ∞·0. S_u ≈ 1 on [0, h] there, so the integral is h.
+        let gl = crate::numerics::gauss_legendre(32);
+        let v = Latency::Weibull.integral(1e-6, 16.278815618849784, 600.0, &gl);
+        assert!((v - 1e-6).abs() <= 1e-21, "{v}");
+        let v = Latency::Exponential.integral(36.0, 800.0, 1.0, &gl);
+        assert_eq!(v, 36.0);
+        for lat in [Latency::Weibull, Latency::LogNormal, Latency::LogLogistic] {
+            for (h, ls, k) in [(1e6, -5.0, 50.0), (1e-6, 14.0, 0.05), (1e6, 14.0, 1e-300)] {
+                let v = lat.integral(h, ls, k, &gl);
+                assert!(
+                    v.is_finite() && (0.0..=h).contains(&v),
+                    "{lat:?} {h} {ls} {k}: {v}"
+                );
+            }
+        }
+        // Both sides of the series switch at x = 1e-10 (λ = 1, k = 2, h = √x) agree with
+        // Γ(1.5)·P(0.5, x) from scipy 1.17 (gamma, gammainc).
+        for (x, want) in [
+            (5e-11, 7.071067811747631e-06),
+            (2e-10, 1.4142135622788148e-05),
+        ] {
+            let v = Latency::Weibull.integral(f64::sqrt(x), 0.0, 2.0, &gl);
+            assert!((v - want).abs() < 1e-14 * want, "{x}: {v} vs {want}");
+        }
+    }
 
     #[test]
     fn latency_medians_and_integrals() {

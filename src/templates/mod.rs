@@ -160,6 +160,12 @@ pub trait Model: Send + Sync {
     /// Mean log standard deviation of the prior's components at `h` (the spread
     /// the tie-breaking objective rewards; DESIGN.md §4).
     fn spread(&self, h: &[f64]) -> f64;
+    /// Estimated bytes [`Model::draw_base`] and one simulation allocate for `n`
+    /// draws, and what they scale with (checked against [`crate::limits`] before a
+    /// fit starts; 0 = small).
+    fn working_bytes(&self, _n: usize) -> (u64, String) {
+        (0, String::new())
+    }
 }
 
 /// All templates. Adding a template adds one line here.

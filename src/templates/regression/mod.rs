@@ -745,6 +745,44 @@ impl Model for Regression {
         v
     }
 
+    /// Bytes of the base draws ([`Model::draw_base`], above) for n draws, twice
+    /// (the fit and the fresh-draw judgement hold one set each), plus one
+    /// simulation's per-draw vectors. Per draw: the prior columns and three coefficient
+    /// streams (8 B each); cached kinds: q, v and one value per registered profile
+    /// form (8 B each), n s_j² w_j² for effective_nonzero (p × 4 B, f32) and X_cβ
+    /// for row-level quantities (rows × 8 B); recomputed kinds: the normals and
+    /// local variates (2p × 8 B), X_cβ being recomputed per evaluation.
+    fn working_bytes(&self, n: usize) -> (u64, String) {
+        let what = format!(
+            "{n} draws × {} design columns ({} rows)",
+            self.design.cols(),
+            self.design.rows()
+        );
+        let needs = self.needs.lock().map(|g| g.clone()).unwrap_or_default();
+        let (n, p, r) = (
+            n as u64,
+            self.design.cols() as u64,
+            self.design.rows() as u64,
+        );
+        let k = self.priors.priors.len() as u64;
+        let forms = needs.forms.len() as u64;
+        let mut per_draw = 8 * (k + 3);
+        if self.coef.cached {
+            per_draw += 8 * (2 + forms);
+            if needs.eff {
+                per_draw += 4 * p;
+            }
+        } else {
+            per_draw += 16 * p;
+        }
+        if needs.rows {
+            per_draw += 8 * r;
+        }
+        // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
+        let sim = 8 * (k + 8 + 3 * forms.max(1));
+        (n.saturating_mul(2 * per_draw + sim), what)
+    }
+
     fn spread(&self, h: &[f64]) -> f64 {
         let k = self.priors.priors.len() as f64;
         let c = &self.coef;
