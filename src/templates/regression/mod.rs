@@ -158,6 +158,9 @@ struct RegBase {
     eff: bool,
     /// Regularised horseshoe: tabulated design products ([`table`]).
     table: Option<Arc<table::Table>>,
+    /// With the table: κ_i = √(IG(ν/2, ν/2) quantile of draw i's slab uniform), so
+    /// that c_i = s·κ_i without a quantile per evaluation.
+    kappa: Vec<f64>,
 }
 
 /// The bounds of a hyperparameter (a fixed value is its own bounds).
@@ -565,6 +568,7 @@ impl Model for Regression {
             q: needs.q,
             eff: needs.eff,
             table: None,
+            kappa: Vec::new(),
         };
         if c.cached {
             let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
@@ -589,6 +593,11 @@ impl Model for Regression {
             // evaluations): the exact products are cheaper there than a table.
             if needs.q && !needs.rows && block & rng::FRESH_STREAMS == 0 {
                 ex.table = self.tabulate(&h0, &cols, &ex.z, &ex.loc, seed, block);
+                if ex.table.is_some() {
+                    let mut unit = h0.clone();
+                    unit[c.idx[1]] = 1.0;
+                    ex.kappa = c.slabs(&unit, &cols[cols.len() - 2]).unwrap_or_default();
+                }
             }
         }
         BaseDraws {
@@ -642,7 +651,12 @@ impl Model for Regression {
             (g, prod)
         } else {
             let tau: Vec<f64> = (0..n).map(|i| c.global(h, gu[i], 0.0, rho[i])).collect();
-            let slabs = c.slabs(h, cu)?;
+            let slabs = if ex.kappa.len() == n {
+                let s = h[c.idx[1]];
+                ex.kappa.iter().map(|k| s * k).collect()
+            } else {
+                c.slabs(h, cu)?
+            };
             let irho: Vec<f64> = rho.iter().map(|r| 1.0 / r).collect();
             let kind = c.kind;
             let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
