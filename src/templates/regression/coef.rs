@@ -14,7 +14,8 @@
 //!   (`global = "fixed"`); w_j = λ_j ~ C⁺(0, 1)
 //! * `regularised-horseshoe`, global_scale, slab_scale s, slab_df ν (Piironen &
 //!   Vehtari 2017, EJS 11, eq. 2.8): c² ~ Inv-Gamma(ν/2, νs²/2),
-//!   λ̃_j² = c²λ_j²/(c² + τ²λ_j²), ω_j = τλ̃_j — not a pure scale: recomputed
+//!   λ̃_j² = c²λ_j²/(c² + τ²λ_j²), ω_j = τλ̃_j — not a pure scale: its design
+//!   products are tabulated in log(τ0/s) ([`super::table`]) or recomputed
 //! * `r2d2`, a, b, concentration a_π (fixed) (Zhang, Naughton, Bondell & Reich 2022,
 //!   JASA 117): R² ~ Beta(a, b), W = R²/(1 − R²), φ ~ Dirichlet(a_π, …, a_π),
 //!   β_j ~ N(0, ρ·W·φ_j/s_j²), with ρ the template's reference residual variance
