@@ -131,7 +131,6 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
     let mut stan_t = Vec::new();
     let mut stan_m = Vec::new();
     let mut py = vec![pymc_note];
-    let brms: Result<Vec<String>, String>;
     // Horseshoe family: global τ, as an expression, and its declarations.
     let tau = |stan_p: &mut Vec<String>, stan_m: &mut Vec<String>, py: &mut Vec<String>| {
         let t0 = num(x(0));
@@ -158,7 +157,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
             "beta_lambda = pm.HalfCauchy(\"beta_lambda\", beta=1, shape={p})"
         ));
     };
-    match c.kind {
+    let brms: Result<Vec<String>, String> = match c.kind {
         Kind::Normal | Kind::StudentT | Kind::Laplace => {
             let (sd, pd, bd) = match c.kind {
                 Kind::Normal => (
@@ -184,7 +183,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
             stan_p.push(stan_decl);
             stan_m.push(format!("beta ~ {sd};"));
             py.push(format!("beta = {pd}"));
-            brms = Ok(vec![format!("set_prior(\"{bd}\", class = \"b\")")]);
+            Ok(vec![format!("set_prior(\"{bd}\", class = \"b\")")])
         }
         Kind::Horseshoe => {
             hs_locals(&mut stan_p, &mut stan_m, &mut py);
@@ -195,11 +194,11 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
             py.push(format!(
                 "beta = pm.Deterministic(\"beta\", beta_z * beta_lambda * {t})"
             ));
-            brms = Err(
+            Err(
                 "brms's horseshoe() always has a finite slab (scale_slab), and this horseshoe has \
                  none; use family = \"regularised-horseshoe\" for a brms prior, or the Stan export"
                     .into(),
-            );
+            )
         }
         Kind::RegHorseshoe => {
             hs_locals(&mut stan_p, &mut stan_m, &mut py);
@@ -223,7 +222,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
             py.push(format!(
                 "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt(beta_c2 * beta_lambda**2 / (beta_c2 + {t}**2 * beta_lambda**2)) * {t})"
             ));
-            brms = if c.global_fixed {
+            if c.global_fixed {
                 Err(
                     "brms's horseshoe() always puts a Student-t prior on the global scale; \
                      this one is fixed (global = \"fixed\"); use the Stan export"
@@ -240,7 +239,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
                         num(nu)
                     ),
                 ])
-            };
+            }
         }
         Kind::R2d2 => {
             let (a, b, conc) = (num(x(0)), num(x(1)), num(c.shape));
@@ -295,7 +294,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
                 "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt({rho_py} * beta_r2 / (1 - beta_r2) * beta_phi) * [{inv_sd}])"
             ));
             let unit_var = d.var.iter().all(|v| (v - 1.0).abs() < 1e-9);
-            brms = if link != Link::Identity {
+            if link != Link::Identity {
                 Err(
                     "brms's R2D2() scales by sigma (or by 1 without one), while priorsmith's \
                      scales by the reference residual variance of the logit / log link, which \
@@ -321,7 +320,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
                         num(av + bv)
                     ),
                 ])
-            };
+            }
         }
         Kind::SpikeSlab => {
             let (pi, s) = (num(x(0)), num(x(1)));
@@ -339,13 +338,13 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
                  use the PyMC export"
                     .into(),
             );
-            brms = Err(
+            Err(
                 "spike-and-slab needs discrete inclusion indicators, which brms (Stan) \
                         cannot sample; use the PyMC export"
                     .into(),
-            );
+            )
         }
-    }
+    };
     if c.kind != Kind::SpikeSlab {
         section(&mut code, "stan", "parameters", stan_p);
         section(&mut code, "stan", "transformed_parameters", stan_t);
