@@ -118,11 +118,18 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
     for l in header_lines(h, "brms") {
         out.push_str(&format!("# {l}\n"));
     }
-    out.push_str(
-        "# Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,\n\
-         # e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);\n\
-         # change class / nlpar to match your model. Pass `prior = priors` to brm().\n",
-    );
+    if regression {
+        out.push_str(
+            "# For brm(y ~ <the design's columns, in design order>, family = <the template's>):\n\
+             # brms centres the predictors, as priorsmith did; pass `prior = priors` to brm().\n",
+        );
+    } else {
+        out.push_str(
+            "# Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,\n\
+             # e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);\n\
+             # change class / nlpar to match your model. Pass `prior = priors` to brm().\n",
+        );
+    }
     out.push_str("library(brms)\npriors <- c(\n");
     let n = calls.len();
     for (k, (comments, call)) in calls.into_iter().enumerate() {
