@@ -11,6 +11,9 @@
 //! A family written on another scale (logit-normal, log-logistic) gets a helper
 //! nlpar (`pLogit`) and a comment `p is inv_logit(pLogit): write inv_logit(pLogit) for it in
 //! the non-linear formula`.
+//! For the regression templates (`linear`, `logistic`, `poisson`) the intercept
+//! and the noise sd are brms's own classes `Intercept` and `sigma`, and the
+//! coefficients class `b` (code supplied by `templates::regression::code`).
 
 use super::stan::form;
 use super::{check_ident, check_unique, header_lines, num, Header, Item, Lang};
@@ -42,6 +45,7 @@ pub fn nlpar_name(name: &str) -> String {
 pub fn render(h: &Header, items: &[Item]) -> Result<String> {
     let mut calls: Vec<(Vec<String>, String)> = Vec::new();
     let mut names = Vec::new();
+    let regression = matches!(h.template.as_str(), "linear" | "logistic" | "poisson");
     for it in items {
         match it {
             Item::Scalar(s) => {
@@ -66,6 +70,28 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                 } else if nl != s.parameter {
                     comments.push(format!("nlpar {nl} is the parameter {}", s.parameter));
                 }
+                // The regression templates' intercept and noise sd are brms's own
+                // classes: `Intercept` is the intercept of the centred design (brms
+                // centres population-level predictors), as ours is; `sigma` has its
+                // lower bound built in, so no `lb` is written for it.
+                let native = match (regression, s.parameter.as_str(), f.derived) {
+                    (true, "intercept", None) => Some("Intercept"),
+                    (true, "sigma", None) => Some("sigma"),
+                    _ => None,
+                };
+                if let Some(class) = native {
+                    if s.family.name == "uniform" {
+                        comments.push(
+                            "brms gives class Intercept no bounds: start the sampler inside them"
+                                .into(),
+                        );
+                    }
+                    calls.push((
+                        comments,
+                        format!("set_prior(\"{}\", class = \"{class}\")", f.dist),
+                    ));
+                    continue;
+                }
                 let mut args = format!("\"{}\", class = \"b\", nlpar = \"{nl}\"", f.dist);
                 if let Some(l) = f.lower {
                     args.push_str(&format!(", lb = {}", num(l)));
@@ -77,8 +103,12 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
             }
             Item::Supplied(s) => {
                 names.push(s.parameter.clone());
+                let mut comments = Vec::new();
                 for l in s.lines(Lang::Brms, "priors")? {
-                    calls.push((Vec::new(), l.clone()));
+                    match l.strip_prefix('#') {
+                        Some(c) => comments.push(c.trim_start().to_string()),
+                        None => calls.push((std::mem::take(&mut comments), l.clone())),
+                    }
                 }
             }
         }
@@ -88,11 +118,18 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
     for l in header_lines(h, "brms") {
         out.push_str(&format!("# {l}\n"));
     }
-    out.push_str(
-        "# Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,\n\
-         # e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);\n\
-         # change class / nlpar to match your model. Pass `prior = priors` to brm().\n",
-    );
+    if regression {
+        out.push_str(
+            "# For brm(y ~ <the design's columns, in design order>, family = <the template's>):\n\
+             # brms centres the predictors, as priorsmith did; pass `prior = priors` to brm().\n",
+        );
+    } else {
+        out.push_str(
+            "# Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,\n\
+             # e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);\n\
+             # change class / nlpar to match your model. Pass `prior = priors` to brm().\n",
+        );
+    }
     out.push_str("library(brms)\npriors <- c(\n");
     let n = calls.len();
     for (k, (comments, call)) in calls.into_iter().enumerate() {

@@ -15,8 +15,12 @@
 //!   vector parameters such as regression coefficients under a horseshoe). Its
 //!   fit.json entry carries `code = { <language> = { <section> = [lines] } }`,
 //!   sections `parameters`, `transformed_parameters`, `model` for Stan, `model`
-//!   for PyMC, `priors` (set_prior calls) for brms. The exporter pastes the lines
-//!   into the right place; a language the template did not supply is an error.
+//!   for PyMC, `priors` (set_prior calls and `#` comment lines) for brms. The
+//!   exporter pastes the lines into the right place; a language the template did
+//!   not supply is an error, and so is a language whose only section is
+//!   `unsupported = [reason]` (the template knows the language cannot express the
+//!   prior exactly; the error gives the reason). The regression templates supply
+//!   code this way (`templates::regression::code`).
 //!
 //! Every export starts with a header comment: tool version, spec digest, seed,
 //! export date (UTC; `SOURCE_DATE_EPOCH` fixes it, the reproducible-builds
@@ -96,6 +100,14 @@ impl Supplied {
                 self.code.keys().cloned().collect::<Vec<_>>().join(", ")
             ))
         })?;
+        if let Some(why) = l.get("unsupported") {
+            return Err(unsupported(format!(
+                "prior statement for `{}` cannot be exported to {}: {}",
+                self.parameter,
+                lang.name(),
+                why.join(" ")
+            )));
+        }
         Ok(l.get(section).map(Vec::as_slice).unwrap_or(&[]))
     }
 }

@@ -128,13 +128,20 @@ pub struct BaseDraws {
     pub extra: Option<Box<dyn Any + Send + Sync>>,
 }
 
-/// A prior statement for reports and code export: parameter, family, values.
+/// Template-supplied export code: language (`stan`, `pymc`, `brms`) → section →
+/// lines (see `crate::export` for the sections each language reads).
+pub type Code = std::collections::BTreeMap<String, std::collections::BTreeMap<String, Vec<String>>>;
+
+/// A prior statement for reports and code export: parameter, family, values, and
+/// optionally the template's own code for it (vector priors, transformed scales).
 #[derive(Debug, Clone, serde::Serialize)]
 pub struct PriorStatement {
     pub parameter: String,
     pub family: String,
     pub params: Vec<(String, f64)>,
     pub about: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub code: Option<Code>,
 }
 
 /// A template instantiated from a belief file.

@@ -156,6 +156,7 @@ impl PriorSet {
                     .map(|(n, i)| (n.to_string(), h[*i]))
                     .collect(),
                 about: about(&p.param),
+                code: None,
             })
             .collect()
     }

@@ -32,6 +32,7 @@
 //! units; a covariate not named takes its design mean. `"reference"` is the design
 //! mean itself (η = α).
 
+pub mod code;
 pub mod coef;
 pub mod table;
 
@@ -833,6 +834,17 @@ impl Model for Regression {
             "sigma" => "noise sd σ".to_string(),
             other => other.to_string(),
         });
+        if sig_var {
+            for st in v.iter_mut().filter(|s| s.parameter == "sigma") {
+                let get = |n: &str| {
+                    st.params
+                        .iter()
+                        .find(|p| p.0 == n)
+                        .map_or(f64::NAN, |p| p.1)
+                };
+                st.code = Some(code::sigma_variance(get("shape"), get("scale")));
+            }
+        }
         let c = &self.coef;
         let mut about = format!(
             "each of the {} coefficients (per unit of the {} design)",
@@ -861,6 +873,13 @@ impl Model for Regression {
                 .map(|(n, i)| (n.to_string(), h[*i]))
                 .collect(),
             about,
+            code: Some(code::coefficients(
+                c,
+                h,
+                &self.design,
+                self.link,
+                self.exposure,
+            )),
         });
         v
     }

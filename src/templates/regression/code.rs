@@ -1,0 +1,367 @@
+//! Export code for the regression templates' own prior statements: the coefficient
+//! vector under each coefficient prior of [`super::coef`], and the noise prior when
+//! it is an inverse-gamma on the variance σ². The code is stored in fit.json
+//! (`PriorStatement::code`) and pasted by `crate::export`.
+//!
+//! The coefficients are a vector `beta` of length P (the number of design columns,
+//! written as a number), per unit of the standardised or centred design the fit
+//! used. The parameterisation is exactly the one [`super::coef`] simulates:
+//! * normal(s): β_j ~ N(0, s²); student-t(ν, s): β_j ~ t_ν(0, s); laplace(b):
+//!   β_j ~ Laplace(0, b) (Stan `double_exponential`, PyMC `Laplace(b=)`).
+//! * horseshoe(τ0): β_j = z_j λ_j τ, z_j ~ N(0, 1), λ_j ~ C⁺(0, 1),
+//!   τ ~ C⁺(0, τ0) or τ = τ0 (`global = "fixed"`); written non-centred.
+//! * regularised horseshoe(τ0, s, ν) (Piironen & Vehtari 2017, EJS 11, eq. 2.8):
+//!   c² ~ Inv-Gamma(ν/2, νs²/2), λ̃_j = √(c²λ_j²/(c² + τ²λ_j²)), β_j = z_j λ̃_j τ.
+//! * r2d2(a, b, a_π), normal kernel: R² ~ Beta(a, b), φ ~ Dirichlet(a_π, …, a_π),
+//!   β_j = z_j √(ρ R²/(1 − R²) φ_j) / s_j, with s_j the design sd of column j
+//!   (0 for a constant column, whose coefficient is then 0, as in the simulator)
+//!   and ρ the reference residual variance: σ² (linear), 1/(p̄(1 − p̄)) with
+//!   p̄ = logistic(intercept) (logistic), e^(−intercept)/exposure (Poisson).
+//! * spike-and-slab(π, s) (Mitchell & Beauchamp 1988, JASA 83): β_j = δ_j s z_j,
+//!   δ_j ~ Bernoulli(π): PyMC only (Stan cannot sample discrete parameters, brms
+//!   neither); the others refuse with a reason.
+//!
+//! brms: `normal`, `student-t`, `laplace` as `class = "b"` priors. The
+//! regularised horseshoe with a half-Cauchy global scale as brms's
+//! `horseshoe(df = 1, scale_global = τ0, df_global = 1, scale_slab = s,
+//! df_slab = ν, autoscale = FALSE)`: brms's local scales are Student-t(df) =
+//! C⁺(0, 1) at df = 1, its global scale Student-t⁺(df_global, 0, scale_global)
+//! (multiplied by σ when autoscale = TRUE, which we switch off), and its slab a
+//! Student-t(df_slab, 0, scale_slab) slab, i.e. c² ~ Inv-Gamma(ν/2, νs²/2)
+//! (brms documentation of `horseshoe`, brms 2.19+; the slab form from memory of
+//! brms's generated Stan code). R2D2 as brms's `R2D2(mean_R2 = a/(a + b),
+//! prec_R2 = a + b, cons_D2 = a_π, autoscale = TRUE)` only for the linear
+//! template on a standardised design (every s_j² = 1): brms's autoscale multiplies
+//! the scales by σ (our ρ = σ²) and brms does not divide by the design sds (brms
+//! documentation of `R2D2`: "does not account for scale differences"). Every
+//! other case — the plain horseshoe (brms always has a finite slab), a fixed
+//! global scale, R2D2 under a logit or log link or an unstandardised design,
+//! spike-and-slab — is refused with the reason, never written approximately.
+//!
+//! An inverse-gamma(α, β) on σ²: Stan declares `sigma2 ~ inv_gamma(α, β)` and
+//! `sigma = sqrt(sigma2)` (transformed parameter); PyMC `sigma2 =
+//! InverseGamma(alpha, beta)` and `sigma` a Deterministic. brms states priors on
+//! σ only, so the brms export refuses it.
+
+use super::coef::{CoefPrior, Kind};
+use super::Link;
+use crate::design::Design;
+use crate::export::num;
+use crate::templates::Code;
+use std::collections::BTreeMap;
+
+fn section(code: &mut Code, lang: &str, sec: &str, lines: Vec<String>) {
+    code.entry(lang.to_string())
+        .or_default()
+        .insert(sec.to_string(), lines);
+}
+
+fn refuse(code: &mut Code, lang: &str, why: String) {
+    section(code, lang, "unsupported", vec![why]);
+}
+
+/// Code for `sigma` under an inverse-gamma(shape, scale) prior on σ².
+pub fn sigma_variance(shape: f64, scale: f64) -> Code {
+    let (a, b) = (num(shape), num(scale));
+    let mut code = BTreeMap::new();
+    section(
+        &mut code,
+        "stan",
+        "parameters",
+        vec!["real<lower=0> sigma2;  // noise variance σ²".into()],
+    );
+    section(
+        &mut code,
+        "stan",
+        "transformed_parameters",
+        vec!["real<lower=0> sigma = sqrt(sigma2);  // noise sd".into()],
+    );
+    section(
+        &mut code,
+        "stan",
+        "model",
+        vec![
+            "// inverse-gamma(shape, scale) on the variance σ², not on σ".into(),
+            format!("sigma2 ~ inv_gamma({a}, {b});"),
+        ],
+    );
+    section(
+        &mut code,
+        "pymc",
+        "model",
+        vec![
+            "# inverse-gamma(shape, scale) on the variance σ², not on σ".into(),
+            format!("sigma2 = pm.InverseGamma(\"sigma2\", alpha={a}, beta={b})"),
+            "sigma = pm.Deterministic(\"sigma\", pm.math.sqrt(sigma2))".into(),
+        ],
+    );
+    refuse(
+        &mut code,
+        "brms",
+        format!(
+            "the prior is inverse-gamma({a}, {b}) on the noise variance σ², and brms states \
+             priors on sigma only; use a half-normal, half-student-t or exponential prior on \
+             sigma, or the Stan export"
+        ),
+    );
+    code
+}
+
+/// Code for the coefficient vector at hyperparameters `h`.
+pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: f64) -> Code {
+    let p = d.cols();
+    let x = |j: usize| h[c.idx[j]];
+    let unit = if d.standardised {
+        "standardised"
+    } else {
+        "centred"
+    };
+    let cols = match d.names.len() {
+        0 => String::new(),
+        1 => format!(", column {}", d.names[0]),
+        _ => format!(", columns {} … {}", d.names[0], d.names[p - 1]),
+    };
+    let about = format!(
+        "{p} coefficients per unit of the {unit} design priorsmith fitted on (in design order{cols})"
+    );
+    let mut code = BTreeMap::new();
+    let stan_decl = format!("vector[{p}] beta;  // {about}");
+    let pymc_note = format!("# beta: {about}");
+    let mut stan_p = Vec::new();
+    let mut stan_t = Vec::new();
+    let mut stan_m = Vec::new();
+    let mut py = vec![pymc_note];
+    // Horseshoe family: global τ, as an expression, and its declarations.
+    let tau = |stan_p: &mut Vec<String>, stan_m: &mut Vec<String>, py: &mut Vec<String>| {
+        let t0 = num(x(0));
+        if c.global_fixed {
+            t0
+        } else {
+            stan_p.push("real<lower=0> beta_tau;  // global scale".into());
+            stan_m.push(format!("beta_tau ~ cauchy(0, {t0});  // half-Cauchy"));
+            py.push(format!("beta_tau = pm.HalfCauchy(\"beta_tau\", beta={t0})"));
+            "beta_tau".into()
+        }
+    };
+    let hs_locals = |stan_p: &mut Vec<String>, stan_m: &mut Vec<String>, py: &mut Vec<String>| {
+        stan_p.push(format!("vector[{p}] beta_z;"));
+        stan_p.push(format!(
+            "vector<lower=0>[{p}] beta_lambda;  // local scales"
+        ));
+        stan_m.push("beta_z ~ std_normal();".into());
+        stan_m.push("beta_lambda ~ cauchy(0, 1);  // half-Cauchy".into());
+        py.push(format!(
+            "beta_z = pm.Normal(\"beta_z\", mu=0, sigma=1, shape={p})"
+        ));
+        py.push(format!(
+            "beta_lambda = pm.HalfCauchy(\"beta_lambda\", beta=1, shape={p})"
+        ));
+    };
+    let brms: Result<Vec<String>, String> = match c.kind {
+        Kind::Normal | Kind::StudentT | Kind::Laplace => {
+            let (sd, pd, bd) = match c.kind {
+                Kind::Normal => (
+                    format!("normal(0, {})", num(x(0))),
+                    format!("pm.Normal(\"beta\", mu=0, sigma={}, shape={p})", num(x(0))),
+                    format!("normal(0, {})", num(x(0))),
+                ),
+                Kind::StudentT => (
+                    format!("student_t({}, 0, {})", num(x(0)), num(x(1))),
+                    format!(
+                        "pm.StudentT(\"beta\", nu={}, mu=0, sigma={}, shape={p})",
+                        num(x(0)),
+                        num(x(1))
+                    ),
+                    format!("student_t({}, 0, {})", num(x(0)), num(x(1))),
+                ),
+                _ => (
+                    format!("double_exponential(0, {})", num(x(0))),
+                    format!("pm.Laplace(\"beta\", mu=0, b={}, shape={p})", num(x(0))),
+                    format!("double_exponential(0, {})", num(x(0))),
+                ),
+            };
+            stan_p.push(stan_decl);
+            stan_m.push(format!("beta ~ {sd};"));
+            py.push(format!("beta = {pd}"));
+            Ok(vec![format!("set_prior(\"{bd}\", class = \"b\")")])
+        }
+        Kind::Horseshoe => {
+            hs_locals(&mut stan_p, &mut stan_m, &mut py);
+            let t = tau(&mut stan_p, &mut stan_m, &mut py);
+            stan_t.push(format!(
+                "vector[{p}] beta = beta_z .* beta_lambda * {t};  // {about}"
+            ));
+            py.push(format!(
+                "beta = pm.Deterministic(\"beta\", beta_z * beta_lambda * {t})"
+            ));
+            Err(
+                "brms's horseshoe() always has a finite slab (scale_slab), and this horseshoe has \
+                 none; use family = \"regularised-horseshoe\" for a brms prior, or the Stan export"
+                    .into(),
+            )
+        }
+        Kind::RegHorseshoe => {
+            hs_locals(&mut stan_p, &mut stan_m, &mut py);
+            let t = tau(&mut stan_p, &mut stan_m, &mut py);
+            let (s, nu) = (x(1), x(2));
+            let (ig_a, ig_b) = (num(0.5 * nu), num(0.5 * nu * s * s));
+            stan_p.push("real<lower=0> beta_c2;  // slab variance c²".into());
+            stan_m.push(format!(
+                "beta_c2 ~ inv_gamma({ig_a}, {ig_b});  // slab scale {}, slab df {}",
+                num(s),
+                num(nu)
+            ));
+            stan_t.push(format!(
+                "vector[{p}] beta = beta_z .* sqrt(beta_c2 * square(beta_lambda) ./ (beta_c2 + square({t}) * square(beta_lambda))) * {t};  // {about}"
+            ));
+            py.push(format!(
+                "beta_c2 = pm.InverseGamma(\"beta_c2\", alpha={ig_a}, beta={ig_b})  # slab variance c²: slab scale {}, slab df {}",
+                num(s),
+                num(nu)
+            ));
+            py.push(format!(
+                "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt(beta_c2 * beta_lambda**2 / (beta_c2 + {t}**2 * beta_lambda**2)) * {t})"
+            ));
+            if c.global_fixed {
+                Err(
+                    "brms's horseshoe() always puts a Student-t prior on the global scale; \
+                     this one is fixed (global = \"fixed\"); use the Stan export"
+                        .into(),
+                )
+            } else {
+                Ok(vec![
+                    "# brms's regularised horseshoe with priorsmith's parameterisation: local df 1, global df 1".into(),
+                    "# (half-Cauchy), autoscale = FALSE so that brms does not multiply scale_global by sigma".into(),
+                    format!(
+                        "set_prior(horseshoe(df = 1, scale_global = {}, df_global = 1, scale_slab = {}, df_slab = {}, autoscale = FALSE), class = \"b\")",
+                        num(x(0)),
+                        num(s),
+                        num(nu)
+                    ),
+                ])
+            }
+        }
+        Kind::R2d2 => {
+            let (a, b, conc) = (num(x(0)), num(x(1)), num(c.shape));
+            let inv_sd: Vec<String> = d
+                .var
+                .iter()
+                .map(|v| {
+                    if *v > 0.0 {
+                        num(1.0 / v.sqrt())
+                    } else {
+                        "0".into()
+                    }
+                })
+                .collect();
+            let inv_sd = inv_sd.join(", ");
+            let (rho_stan, rho_py) = match link {
+                Link::Identity => ("square(sigma)".to_string(), "sigma**2".to_string()),
+                Link::Logit => (
+                    "1 / (inv_logit(intercept) * inv_logit(-intercept))".to_string(),
+                    "1 / (pm.math.sigmoid(intercept) * pm.math.sigmoid(-intercept))".to_string(),
+                ),
+                Link::Log => (
+                    format!("exp(-intercept) / {}", num(exposure)),
+                    format!("pm.math.exp(-intercept) / {}", num(exposure)),
+                ),
+            };
+            stan_p.push(format!("vector[{p}] beta_z;"));
+            stan_p.push("real<lower=0, upper=1> beta_r2;  // R²".into());
+            stan_p.push(format!("simplex[{p}] beta_phi;  // variance shares"));
+            stan_m.push("beta_z ~ std_normal();".into());
+            stan_m.push(format!("beta_r2 ~ beta({a}, {b});"));
+            stan_m.push(format!("beta_phi ~ dirichlet(rep_vector({conc}, {p}));"));
+            stan_t.push(format!(
+                "// reference residual variance {rho_stan}; the last factor is 1 / design sd of each column"
+            ));
+            stan_t.push(format!(
+                "vector[{p}] beta = beta_z .* sqrt({rho_stan} * beta_r2 / (1 - beta_r2) * beta_phi) .* [{inv_sd}]';  // {about}"
+            ));
+            py.push(format!(
+                "beta_z = pm.Normal(\"beta_z\", mu=0, sigma=1, shape={p})"
+            ));
+            py.push(format!(
+                "beta_r2 = pm.Beta(\"beta_r2\", alpha={a}, beta={b})"
+            ));
+            py.push(format!(
+                "beta_phi = pm.Dirichlet(\"beta_phi\", a=[{conc}] * {p})"
+            ));
+            py.push(format!(
+                "# reference residual variance {rho_py}; the last factor is 1 / design sd of each column"
+            ));
+            py.push(format!(
+                "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt({rho_py} * beta_r2 / (1 - beta_r2) * beta_phi) * [{inv_sd}])"
+            ));
+            let unit_var = d.var.iter().all(|v| (v - 1.0).abs() < 1e-9);
+            if link != Link::Identity {
+                Err(
+                    "brms's R2D2() scales by sigma (or by 1 without one), while priorsmith's \
+                     scales by the reference residual variance of the logit / log link, which \
+                     depends on the intercept; use the Stan or PyMC export"
+                        .into(),
+                )
+            } else if !unit_var {
+                Err(
+                    "priorsmith's R2D2 divides each coefficient's scale by its design sd and \
+                     brms's R2D2() does not; they agree only on a standardised design \
+                     (standardise = true); use the Stan or PyMC export"
+                        .into(),
+                )
+            } else {
+                let (av, bv) = (x(0), x(1));
+                Ok(vec![
+                    "# brms's R2D2 (normal kernel) with autoscale = TRUE multiplies the scales by sigma,".into(),
+                    "# as priorsmith does (reference variance σ²); exact on this standardised design only:".into(),
+                    "# give brm() the same standardised covariates.".into(),
+                    format!(
+                        "set_prior(R2D2(mean_R2 = {}, prec_R2 = {}, cons_D2 = {conc}, autoscale = TRUE), class = \"b\")",
+                        num(av / (av + bv)),
+                        num(av + bv)
+                    ),
+                ])
+            }
+        }
+        Kind::SpikeSlab => {
+            let (pi, s) = (num(x(0)), num(x(1)));
+            py.push(format!(
+                "beta_delta = pm.Bernoulli(\"beta_delta\", p={pi}, shape={p})  # inclusion"
+            ));
+            py.push(format!(
+                "beta_slab = pm.Normal(\"beta_slab\", mu=0, sigma={s}, shape={p})"
+            ));
+            py.push("beta = pm.Deterministic(\"beta\", beta_delta * beta_slab)".into());
+            refuse(
+                &mut code,
+                "stan",
+                "spike-and-slab needs discrete inclusion indicators, which Stan cannot sample; \
+                 use the PyMC export"
+                    .into(),
+            );
+            Err(
+                "spike-and-slab needs discrete inclusion indicators, which brms (Stan) \
+                        cannot sample; use the PyMC export"
+                    .into(),
+            )
+        }
+    };
+    if c.kind != Kind::SpikeSlab {
+        section(&mut code, "stan", "parameters", stan_p);
+        section(&mut code, "stan", "transformed_parameters", stan_t);
+        section(&mut code, "stan", "model", stan_m);
+    }
+    section(&mut code, "pymc", "model", py);
+    match brms {
+        Ok(mut lines) => {
+            lines.insert(
+                0,
+                format!(
+                    "# class \"b\": the {p} coefficients of the {unit} design priorsmith fitted on"
+                ),
+            );
+            section(&mut code, "brms", "priors", lines)
+        }
+        Err(why) => refuse(&mut code, "brms", why),
+    }
+    code
+}
