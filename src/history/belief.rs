@@ -233,7 +233,7 @@ impl HistBelief {
         let mut s = String::new();
         s.push_str(&format!("# from historical data: {}\n", self.source));
         s.push_str(&format!(
-            "# estimate {:.6} (se {:.6}); discount {} , extra_sd {}",
+            "# estimate {:.6} (se {:.6}); discount {}, extra_sd {}",
             self.estimate, self.se, self.discount.weight, self.discount.extra_sd
         ));
         if let Some(n) = self.n_hist {

@@ -17,6 +17,15 @@
 
 use statrs::distribution::{Binomial, Discrete, DiscreteCDF};
 
+/// A tail probability in words-friendly form (scientific below 0.001).
+fn fmt_p(p: f64) -> String {
+    if p < 1e-3 {
+        format!("{p:.1e}")
+    } else {
+        format!("{p:.4}")
+    }
+}
+
 #[derive(Debug, Clone, serde::Serialize)]
 pub struct Conflict {
     pub horizon: f64,
@@ -96,8 +105,10 @@ pub fn check(prior: &[f64], horizon: f64, s_obs: f64, se: f64, m: u64, level: f6
     };
     let words = if flagged {
         format!(
-            "CONFLICT: the new data's survival at {horizon}, {s_obs:.3}, lies in the {side} tail of what the prior predicts for a trial of {m} effective patients (two-sided tail probability {tail:.4} < {level}); the prior's 90 % range for S({horizon}) is {:.3}–{:.3}. Reconsider the belief or the discount before borrowing from it.",
-            pq[0], pq[2]
+            "CONFLICT: the new data's survival at {horizon}, {s_obs:.3}, lies in the {side} tail of what the prior predicts for a trial of {m} effective patients (two-sided tail probability {} < {level}); the prior's 90 % range for S({horizon}) is {:.3}–{:.3}. Reconsider the belief or the discount before borrowing from it.",
+            fmt_p(tail),
+            pq[0],
+            pq[2]
         )
     } else {
         format!(
