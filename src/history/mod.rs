@@ -40,6 +40,10 @@ fn bad(file: &Path, line: Option<usize>, key: &str, msg: impl Into<String>) -> E
     )
 }
 
+fn header_line_of(lines: &[usize]) -> Option<usize> {
+    lines.first().copied()
+}
+
 /// Read `(time, event)` rows from a CSV with a header naming `time` and `event`
 /// columns (and an `arm` column when `arm` is given: only rows of that arm are kept).
 /// `event` is 1/0 (also true/false). Errors name the file, line, column and value.
@@ -50,10 +54,20 @@ pub fn read_csv(path: &Path, arm: Option<&str>) -> Result<Vec<Obs>> {
 
 /// [`read_csv`] on text already read (`path` names it in errors).
 pub fn parse_csv(text: &str, path: &Path, arm: Option<&str>) -> Result<Vec<Obs>> {
+    // Comment (#) and blank lines are dropped; `lines` keeps the true line numbers
+    // (one record per line: this format has no quoted multi-line fields).
+    let (mut kept, mut lines) = (Vec::new(), Vec::new());
+    for (i, l) in text.lines().enumerate() {
+        let t = l.trim_start();
+        if !(t.is_empty() || t.starts_with('#')) {
+            kept.push(l);
+            lines.push(i + 1);
+        }
+    }
+    let cleaned = kept.join("\n");
     let mut rdr = csv::ReaderBuilder::new()
         .trim(csv::Trim::All)
-        .comment(Some(b'#'))
-        .from_reader(text.as_bytes());
+        .from_reader(cleaned.as_bytes());
     let header = rdr
         .headers()
         .map_err(|e| {
@@ -71,7 +85,7 @@ pub fn parse_csv(text: &str, path: &Path, arm: Option<&str>) -> Result<Vec<Obs>>
         _ => {
             return Err(bad(
                 path,
-                Some(1),
+                header_line_of(&lines),
                 "header",
                 format!(
                     "the header must name `time` and `event` columns; found {}",
@@ -94,12 +108,9 @@ pub fn parse_csv(text: &str, path: &Path, arm: Option<&str>) -> Result<Vec<Obs>>
     };
     let mut out = Vec::new();
     let mut arms_seen: Vec<String> = Vec::new();
-    for rec in rdr.records() {
-        let rec = rec.map_err(|e| {
-            let line = e.position().map(|p| p.line() as usize);
-            bad(path, line, "row", format!("malformed row: {e}"))
-        })?;
-        let line = rec.position().map(|p| p.line() as usize);
+    for (k, rec) in rdr.records().enumerate() {
+        let line = lines.get(k + 1).copied();
+        let rec = rec.map_err(|e| bad(path, line, "row", format!("malformed row: {e}")))?;
         if let (Some(a), Some(want)) = (ai, arm) {
             let v = rec.get(a).unwrap_or("");
             if !arms_seen.iter().any(|s| s == v) {
