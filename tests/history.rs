@@ -92,7 +92,11 @@ fn six_mp_table_and_discounted_plateau() {
 #[test]
 fn bad_history_input_names_file_line_and_value() {
     let d = tempfile::tempdir().unwrap();
-    let f = write(d.path(), "old.csv", "# invented\ntime,event\n3,1\n4,maybe\n");
+    let f = write(
+        d.path(),
+        "old.csv",
+        "# invented\ntime,event\n3,1\n4,maybe\n",
+    );
     let r = run(&[
         "history",
         f.to_str().unwrap(),

@@ -238,7 +238,7 @@ impl HistBelief {
         ));
         if let Some(n) = self.n_hist {
             s.push_str(&format!(
-                "; {:.1} effective historical patients, {:.1} kept",
+                "; {:.1} effective historical patients, belief ESS {:.1}",
                 n,
                 self.ess().unwrap_or(0.0)
             ));
