@@ -13,12 +13,7 @@ fn repo(p: &str) -> PathBuf {
 fn block_ab(s: &str) -> (f64, f64) {
     let num = |k: &str| -> f64 {
         let i = s.find(&format!("{k} = ")).unwrap() + k.len() + 3;
-        s[i..]
-            .split(|c: char| c == ',' || c == ' ')
-            .next()
-            .unwrap()
-            .parse()
-            .unwrap()
+        s[i..].split([',', ' ']).next().unwrap().parse().unwrap()
     };
     (num("alpha"), num("beta"))
 }
