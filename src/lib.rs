@@ -16,6 +16,7 @@ pub mod dist;
 pub mod error;
 pub mod export;
 pub mod fit;
+pub mod history;
 pub mod limits;
 pub mod numerics;
 pub mod output;

@@ -15,7 +15,9 @@ use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 
 mod batch;
+mod conflict;
 mod export;
+mod history;
 mod report;
 mod sweep;
 
@@ -136,6 +138,10 @@ pub enum Command {
     Batch(batch::BatchArgs),
     /// Assemble the results of batch shards (or of one batch folder) into one table.
     Merge(batch::MergeArgs),
+    /// Historical survival data (or events/total) → a discounted [[belief]] block.
+    History(history::HistoryArgs),
+    /// Check new data against a fitted prior (Kaplan–Meier survival at a horizon).
+    Conflict(conflict::ConflictArgs),
     /// Fit every shipped demo scenario and print a summary table.
     Demo {
         /// Output folder (one sub-folder per scenario).
@@ -218,6 +224,8 @@ pub fn run(cli: Cli) -> Result<()> {
         } => sweep::cmd_sweep(&spec, &widths, beliefs.as_deref(), &out, quiet),
         Command::Batch(a) => batch::cmd_batch(&a, quiet),
         Command::Merge(a) => batch::cmd_merge(&a, quiet),
+        Command::History(a) => history::run(&a),
+        Command::Conflict(a) => conflict::run(&a),
     }
 }
 

@@ -73,6 +73,11 @@ pub struct BeliefReport {
     pub implied_mass_at_inf: f64,
     /// The believed distribution as a curve, for plots (reports read it back).
     pub believed_curve: BelievedCurve,
+    /// Prior effective sample size of a probability-type quantity: the
+    /// moment-matched Beta's a + b from the implied draws (see `history::ess`).
+    pub ess: Option<f64>,
+    /// The same for the stated belief, from its exact moments.
+    pub believed_ess: Option<f64>,
 }
 
 /// The believed CDF F(x) and the density of its continuous part, tabulated on
@@ -216,6 +221,12 @@ pub fn judge(
         implied_sd: sd,
         implied_mass_at_inf: inf_mass,
         believed_curve: believed_curve(&b.target.dist),
+        ess: (b.request.support == crate::dist::Support::Unit)
+            .then(|| crate::history::ess::from_draws(sorted_fresh))
+            .flatten(),
+        believed_ess: (b.request.support == crate::dist::Support::Unit)
+            .then(|| crate::history::ess::of_belief(&b.target.dist))
+            .flatten(),
     }
 }
 

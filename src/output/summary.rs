@@ -126,6 +126,35 @@ pub fn render(r: &FitResult) -> String {
             );
         }
     }
+    if r.beliefs
+        .iter()
+        .any(|b| b.ess.is_some() || b.believed_ess.is_some())
+    {
+        let _ = writeln!(s);
+        let _ = writeln!(
+            s,
+            "Prior effective sample size (probability-type quantities: moment-matched Beta a + b)"
+        );
+        let _ = writeln!(
+            s,
+            "  {:<lw$}  {:>10}  {:>10}",
+            "belief", "believed", "implied"
+        );
+        let f = |x: Option<f64>| x.map_or("—".to_string(), |v| format!("{v:.1}"));
+        for b in r
+            .beliefs
+            .iter()
+            .filter(|b| b.ess.is_some() || b.believed_ess.is_some())
+        {
+            let _ = writeln!(
+                s,
+                "  {:<lw$}  {:>10}  {:>10}",
+                b.label,
+                f(b.believed_ess),
+                f(b.ess)
+            );
+        }
+    }
     let _ = writeln!(s);
     // Identifiability.
     let id = &r.identifiability;

@@ -66,6 +66,9 @@ impl Curve {
 #[derive(Debug, Clone)]
 pub struct BeliefView {
     pub label: String,
+    /// Prior effective sample size (implied, believed), probability quantities only.
+    pub ess: Option<f64>,
+    pub believed_ess: Option<f64>,
     pub quantity: String,
     pub unit: Option<String>,
     pub stated_as: String,
@@ -168,6 +171,8 @@ pub fn beliefs(file: &Path, json: &Value, draws_csv: &Path) -> Result<Vec<Belief
                         .collect()
                 })
                 .unwrap_or_default(),
+            ess: b.get("ess").and_then(Value::as_f64),
+            believed_ess: b.get("believed_ess").and_then(Value::as_f64),
             fresh: numf(b, "fresh"),
             noise_floor: numf(b, "noise_floor"),
             ratio: numf(b, "ratio"),
@@ -792,12 +797,20 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         esc(CAUTION.trim_start_matches("Caution: "))
     );
     // Summary table.
-    html.push_str("<section>\n<h2>How well the fitted prior meets each belief</h2>\n<table class=\"summary\"><thead><tr><th>belief</th><th>stated as</th><th>weight</th><th title=\"discrepancy on fresh draws\">discrepancy</th><th title=\"Monte Carlo noise floor\">noise floor</th><th>ratio</th><th title=\"root-mean-square CDF gap beyond noise\">CDF gap</th><th>verdict</th></tr></thead><tbody>\n");
+    html.push_str("<section>\n<h2>How well the fitted prior meets each belief</h2>\n<table class=\"summary\"><thead><tr><th>belief</th><th>stated as</th><th>weight</th><th title=\"discrepancy on fresh draws\">discrepancy</th><th title=\"Monte Carlo noise floor\">noise floor</th><th>ratio</th><th title=\"root-mean-square CDF gap beyond noise\">CDF gap</th><th>verdict</th><th title=\"prior effective sample size, moment-matched Beta a + b: believed / implied\">ESS</th></tr></thead><tbody>\n");
     for (k, b) in bs.iter().enumerate() {
+        let ess = match (b.believed_ess, b.ess) {
+            (None, None) => "—".to_string(),
+            (x, y) => format!(
+                "{} / {}",
+                x.map_or("—".into(), |v| format!("{v:.1}")),
+                y.map_or("—".into(), |v| format!("{v:.1}"))
+            ),
+        };
         let _ = writeln!(
             html,
-            "<tr><td><a href=\"#belief-{k}\">{}</a></td><td>{}</td><td>{:.2}</td><td>{:.3e}</td><td>{:.3e}</td><td>{:.2}</td><td>{:.4}</td><td class=\"v {}\"><span class=\"mark\">{}</span> {}</td></tr>",
-            esc(&b.label), esc(&b.stated_as), b.weight, b.fresh, b.noise_floor, b.ratio, b.rms, b.verdict, mark(&b.verdict), esc(&b.verdict.replace('_', " "))
+            "<tr><td><a href=\"#belief-{k}\">{}</a></td><td>{}</td><td>{:.2}</td><td>{:.3e}</td><td>{:.3e}</td><td>{:.2}</td><td>{:.4}</td><td class=\"v {}\"><span class=\"mark\">{}</span> {}</td><td>{}</td></tr>",
+            esc(&b.label), esc(&b.stated_as), b.weight, b.fresh, b.noise_floor, b.ratio, b.rms, b.verdict, mark(&b.verdict), esc(&b.verdict.replace('_', " ")), esc(&ess)
         );
     }
     html.push_str("</tbody></table>\n<p class=\"help\">The discrepancy is computed on fresh prior draws, independent of those the fit used. A ratio near 1 means the believed and implied distributions cannot be told apart with this many draws (<i>met within noise</i>); <i>met approximately</i> means the root-mean-square gap between the CDFs, beyond noise, is within the tolerance.</p>\n</section>\n");

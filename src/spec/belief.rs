@@ -1,6 +1,9 @@
 //! Validation of one `[[belief]]` table into a [`Belief`]: the quantity request
 //! (checked by the template), the believed distribution (exactly one of
-//! `distribution`, `quantiles`, `histogram`, `experts`), atoms and weight.
+//! `distribution`, `quantiles`, `histogram`, `experts`, `historical`), atoms and
+//! weight. `historical = { data = "file.csv", summary = "plateau", discount = 0.5 }`
+//! (or `{ events = 12, total = 40, discount = 0.5 }`) builds the belief from
+//! historical data through [`crate::history::belief`].
 
 use super::raw::{RawAtom, RawBelief, RawHistogram};
 use super::{key, Belief, Ctx, Seg};
@@ -235,6 +238,140 @@ fn stated(
         .map_err(|m| ctx.err(path, m))
 }
 
+/// A belief from `historical = { … }` for the quantity of `request`.
+fn historical(
+    ctx: &Ctx,
+    path: &[Seg],
+    t: &toml::Table,
+    request: &crate::templates::Request,
+) -> Result<(Mixed, String)> {
+    use crate::history::belief::{Discount, HistBelief, Shape, Summary, SUMMARIES};
+    ctx.check_keys(
+        path,
+        t,
+        &[
+            "data", "arm", "summary", "horizon", "discount", "extra_sd", "events", "total",
+        ],
+    )?;
+    let weight = match t.get("discount") {
+        Some(v) => ctx.num(&sub(path, "discount"), v)?,
+        None => {
+            return Err(ctx
+                .err(path, "missing `discount`")
+                .with_hint("a weight in (0, 1] on the historical patients, e.g. discount = 0.5; 1 borrows them in full"))
+        }
+    };
+    let extra = match t.get("extra_sd") {
+        Some(v) => ctx.num(&sub(path, "extra_sd"), v)?,
+        None => 0.0,
+    };
+    let d = Discount::new(weight, extra).map_err(|m| {
+        let k = if m.starts_with("discount") {
+            "discount"
+        } else {
+            "extra_sd"
+        };
+        ctx.err(&sub(path, k), m)
+    })?;
+    let unit = request.support == crate::dist::Support::Unit;
+    let q = request.quantity.as_str();
+    let hb = match (t.get("data"), t.get("events"), t.get("total")) {
+        (Some(dv), None, None) => {
+            let file = ctx.resolve(ctx.string(&sub(path, "data"), dv)?);
+            let arm = match t.get("arm") {
+                Some(v) => Some(ctx.string(&sub(path, "arm"), v)?),
+                None => None,
+            };
+            let sv = t.get("summary").ok_or_else(|| {
+                ctx.err(path, "missing `summary`")
+                    .with_hint(format!("one of {}", SUMMARIES.join(", ")))
+            })?;
+            let sname = ctx.string(&sub(path, "summary"), sv)?;
+            let summary = Summary::parse(sname).ok_or_else(|| {
+                ctx.err(
+                    &sub(path, "summary"),
+                    format!("unknown summary \"{sname}\""),
+                )
+                .with_hint(choice_hint(sname, &SUMMARIES))
+            })?;
+            let fits = match summary {
+                Summary::SurvivalProb => q == "survival_prob" || q == "event_prob",
+                Summary::Plateau => q == "cure_fraction",
+                Summary::Median => q == "median_survival",
+                Summary::Binary => unit,
+            };
+            if !fits {
+                return Err(ctx
+                    .err(&sub(path, "summary"), format!("summary {sname} is not evidence about {q}"))
+                    .with_hint("survival_prob → survival_prob or event_prob; plateau → cure_fraction; median → median_survival"));
+            }
+            let horizon = match t.get("horizon") {
+                Some(v) => {
+                    let h = ctx.num(&sub(path, "horizon"), v)?;
+                    if let Some(bh) = request.horizon {
+                        if bh != h {
+                            return Err(ctx.err(
+                                &sub(path, "horizon"),
+                                format!("horizon {h} differs from the belief's horizon {bh}"),
+                            ));
+                        }
+                    }
+                    Some(h)
+                }
+                None => request.horizon,
+            };
+            let obs = crate::history::read_csv(&file, arm)?;
+            let km = crate::history::km::KaplanMeier::new(&obs);
+            HistBelief::from_km(&km, summary, horizon, d)
+                .map_err(|m| ctx.err(path, format!("{}: {m}", file.display())))?
+        }
+        (None, Some(ev), Some(tv)) => {
+            if !unit {
+                return Err(ctx.err(
+                    path,
+                    format!("events/total give a probability; {q} is not one"),
+                ));
+            }
+            let e = ctx.count(&sub(path, "events"), ev)?;
+            let n = ctx.count(&sub(path, "total"), tv)?;
+            HistBelief::from_binary(e, n, request.horizon, d).map_err(|m| ctx.err(path, m))?
+        }
+        _ => return Err(ctx
+            .err(
+                path,
+                "give either `data` (with `summary`) or `events` and `total`",
+            )
+            .with_hint(
+                "historical = { data = \"control.csv\", summary = \"plateau\", discount = 0.5 }",
+            )),
+    };
+    let mut hb = hb;
+    // Survival at the horizon as a belief about the event probability: swap a and b.
+    if q == "event_prob" && hb.summary == Summary::SurvivalProb {
+        if let Shape::Beta { alpha, beta } = hb.shape {
+            hb.shape = Shape::Beta {
+                alpha: beta,
+                beta: alpha,
+            };
+        }
+    }
+    let dist = hb.dist().map_err(|m| ctx.err(path, m))?;
+    let how = format!(
+        "historical data ({}; discount {}{}) → {} distribution",
+        hb.source,
+        d.weight,
+        if d.extra_sd > 0.0 {
+            format!(", extra sd {}", d.extra_sd)
+        } else {
+            String::new()
+        },
+        dist.family()
+    );
+    Mixed::new(vec![], Some(dist))
+        .map(|m| (m, how))
+        .map_err(|m| ctx.err(path, m))
+}
+
 pub fn validate(
     ctx: &Ctx,
     model: &dyn Model,
@@ -264,7 +401,20 @@ pub fn validate(
         Some(v) => ctx.positive(&sub(&path, "weight"), v)?,
         None => 1.0,
     };
-    let (dist, stated_as) = if let Some(experts) = &rb.experts {
+    let (dist, stated_as) = if let Some(h) = &rb.historical {
+        let others = rb.distribution.is_some()
+            || rb.quantiles.is_some()
+            || rb.histogram.is_some()
+            || rb.experts.is_some()
+            || rb.atoms.is_some();
+        if others {
+            return Err(ctx.err(
+                &sub(&path, "historical"),
+                "give `historical` alone, without distribution, quantiles, histogram, experts or atoms",
+            ));
+        }
+        historical(ctx, &sub(&path, "historical"), h, &request)?
+    } else if let Some(experts) = &rb.experts {
         if rb.distribution.is_some() || rb.quantiles.is_some() || rb.histogram.is_some() {
             return Err(ctx.err(
                 &sub(&path, "experts"),

@@ -45,6 +45,8 @@ pub struct RawBelief {
     pub histogram: Option<RawHistogram>,
     pub experts: Option<Vec<RawExpert>>,
     pub atoms: Option<Vec<RawAtom>>,
+    /// A belief built from historical data (see `history::belief`).
+    pub historical: Option<toml::Table>,
 }
 
 #[derive(Debug, Clone, Deserialize)]
