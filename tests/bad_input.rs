@@ -17,25 +17,7 @@ fn variant(from: &str, to: &str) -> String {
 fn assert_bad(text: &str, code: i32, needles: &[&str]) {
     let d = tempfile::tempdir().unwrap();
     let spec = write(d.path(), "beliefs.toml", text);
-    for cmd in ["check", "fit"] {
-        let out = d.path().join("out");
-        let mut args = vec![cmd, spec.to_str().unwrap()];
-        if cmd == "fit" {
-            args.extend(["--out", out.to_str().unwrap()]);
-        }
-        let r = run(&args);
-        let err = stderr(&r);
-        assert_eq!(r.status.code(), Some(code), "{cmd}: {err}");
-        assert!(!err.contains("panicked"), "{cmd} panicked: {err}");
-        assert!(err.contains("beliefs.toml"), "{cmd}: no file name in {err}");
-        for n in needles {
-            assert!(err.contains(n), "{cmd}: expected {n:?} in\n{err}");
-        }
-        assert!(
-            !out.exists(),
-            "{cmd}: output folder created despite the error"
-        );
-    }
+    assert_rejected(d.path(), &spec, "beliefs.toml", code, needles);
 }
 
 #[test]

@@ -31,25 +31,7 @@ fn assert_bad_csv(csv: Option<&str>, standardise: bool, code: i32, needles: &[&s
     if let Some(c) = csv {
         write(d.path(), "x.csv", c);
     }
-    for cmd in ["check", "fit"] {
-        let out = d.path().join("out");
-        let mut args = vec![cmd, spec.to_str().unwrap()];
-        if cmd == "fit" {
-            args.extend(["--out", out.to_str().unwrap()]);
-        }
-        let r = run(&args);
-        let err = stderr(&r);
-        assert_eq!(r.status.code(), Some(code), "{cmd}: {err}");
-        assert!(!err.contains("panicked"), "{cmd} panicked: {err}");
-        assert!(err.contains("x.csv"), "{cmd}: no file name in {err}");
-        for n in needles {
-            assert!(err.contains(n), "{cmd}: expected {n:?} in\n{err}");
-        }
-        assert!(
-            !out.exists(),
-            "{cmd}: output folder created despite the error"
-        );
-    }
+    assert_rejected(d.path(), &spec, "x.csv", code, needles);
 }
 
 #[test]

@@ -34,3 +34,27 @@ pub fn json(path: &Path) -> serde_json::Value {
 
 /// The starter shipped for the mixture-cure template (the README example).
 pub const EXAMPLE: &str = include_str!("../../model-templates/mixture-cure.toml");
+
+/// `check` and `fit` on `spec` must both fail with exit `code`, name `file_named`,
+/// print every needle, print no panic text and create no output folder.
+pub fn assert_rejected(dir: &Path, spec: &Path, file_named: &str, code: i32, needles: &[&str]) {
+    for cmd in ["check", "fit"] {
+        let out = dir.join("out");
+        let mut args = vec![cmd, spec.to_str().unwrap()];
+        if cmd == "fit" {
+            args.extend(["--out", out.to_str().unwrap()]);
+        }
+        let r = run(&args);
+        let err = stderr(&r);
+        assert_eq!(r.status.code(), Some(code), "{cmd}: {err}");
+        assert!(!err.contains("panicked"), "{cmd} panicked: {err}");
+        assert!(err.contains(file_named), "{cmd}: no file name in {err}");
+        for n in needles {
+            assert!(err.contains(n), "{cmd}: expected {n:?} in\n{err}");
+        }
+        assert!(
+            !out.exists(),
+            "{cmd}: output folder created despite the error"
+        );
+    }
+}
