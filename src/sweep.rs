@@ -78,7 +78,7 @@ pub fn widened_spec(spec: &Spec, w: f64, which: &[usize]) -> Result<Spec> {
 fn fit_at(spec: &Spec, w: f64, which: &[usize], warm: Option<&[f64]>) -> Result<SweepPoint> {
     let started = Instant::now();
     let s = widened_spec(spec, w, which)?;
-    let (_, p) = fit::fit_point(&s, warm, None)?;
+    let p = fit::fit_point(&s, warm, None)?;
     Ok(SweepPoint {
         width: w,
         result: fit::assemble(&s, p, started)?,

@@ -272,11 +272,7 @@ pub struct Point {
 }
 
 /// Optimise, analyse identifiability, apply the tie-break rule.
-pub fn fit_point(
-    spec: &Spec,
-    warm: Option<&[f64]>,
-    progress: Option<Progress>,
-) -> Result<(Vec<f64>, Point)> {
+pub fn fit_point(spec: &Spec, warm: Option<&[f64]>, progress: Option<Progress>) -> Result<Point> {
     use crate::spec::TieBreak;
     let (h0, mut opt) = optimise(spec, 0.0, warm, progress)?;
     let mut obj = Objective::new(
@@ -318,16 +314,13 @@ pub fn fit_point(
         }
     };
     opt.evaluations += obj.evaluations();
-    Ok((
-        h.clone(),
-        Point {
-            h,
-            opt,
-            ident,
-            front,
-            tie_break: how,
-        },
-    ))
+    Ok(Point {
+        h,
+        opt,
+        ident,
+        front,
+        tie_break: how,
+    })
 }
 
 /// Judge hyperparameters `h` on fresh draws and assemble the result.
@@ -426,7 +419,7 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
 pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     let started = Instant::now();
     use crate::spec::TieBreak;
-    let (_, point) = fit_point(spec, None, progress)?;
+    let point = fit_point(spec, None, progress)?;
     let applied = match (&point.front, spec.fit.tie_break) {
         (_, TieBreak::Kappa(k)) => TieBreak::Kappa(k),
         (Some(f), _) if f.rule == "knee" => TieBreak::Knee,

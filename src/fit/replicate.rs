@@ -43,7 +43,7 @@ pub fn run(spec: &Spec, k: usize, tie_break: crate::spec::TieBreak) -> Result<Re
             let mut sp = spec.clone();
             sp.seed = *s;
             sp.fit.tie_break = tie_break;
-            super::fit_point(&sp, None, None).map(|(h, ..)| h)
+            super::fit_point(&sp, None, None).map(|p| p.h)
         })
         .collect();
     let fits: Vec<Vec<f64>> = fits.into_iter().collect::<Result<_>>()?;
