@@ -20,7 +20,7 @@
 //! variance of G exactly. Values of u are clamped to [1e-12, 1 − 1e-12], so a draw
 //! outside the belief's support costs a large but finite AD penalty.
 
-use crate::target::{Event, Target};
+use crate::target::Target;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
 pub enum Kind {
@@ -67,88 +67,136 @@ fn clamp(u: f64) -> f64 {
     u.clamp(EPS, 1.0 - EPS)
 }
 
-/// ∫ₐᵇ e(u)² w(u) du for e linear with e(a) = ea, e(b) = eb.
-#[inline]
-fn piece(kind: Kind, a: f64, b: f64, ea: f64, eb: f64) -> f64 {
+/// ∫ₐᵇ e(u)² du (Cramér–von Mises) for e linear with e(a) = ea, e(b) = eb.
+#[inline(always)]
+fn piece_cvm(a: f64, b: f64, ea: f64, eb: f64) -> f64 {
     let h = b - a;
     if h <= 0.0 {
         return 0.0;
     }
-    match kind {
-        Kind::CramerVonMises => h * (ea * ea + ea * eb + eb * eb) / 3.0,
-        Kind::AndersonDarling => {
-            let edge = a.min(1.0 - b);
-            if h <= 0.05 * edge {
-                // 4-point Gauss–Legendre: relative error of order (h/edge)^8.
-                const X: [f64; 4] = [
-                    -0.861_136_311_594_052_6,
-                    -0.339_981_043_584_856_3,
-                    0.339_981_043_584_856_3,
-                    0.861_136_311_594_052_6,
-                ];
-                const W: [f64; 4] = [
-                    0.347_854_845_137_453_9,
-                    0.652_145_154_862_546_1,
-                    0.652_145_154_862_546_1,
-                    0.347_854_845_137_453_9,
-                ];
-                let c = 0.5 * (a + b);
-                let mut s = 0.0;
-                for k in 0..4 {
-                    let t = 0.5 * (X[k] + 1.0);
-                    let u = c + 0.5 * h * X[k];
-                    let e = ea + t * (eb - ea);
-                    s += W[k] * e * e / (u * (1.0 - u));
-                }
-                return 0.5 * h * s;
-            }
-            let g = (eb - ea) / h;
-            let alpha = ea - g * a; // e(0)
-            let beta1 = eb + g * (1.0 - b); // e(1)
-            let mut s = -g * g * h;
-            if alpha != 0.0 {
-                s += alpha * alpha * (h / a).ln_1p();
-            }
-            if beta1 != 0.0 {
-                s += beta1 * beta1 * (h / (1.0 - b)).ln_1p();
-            }
-            s.max(0.0)
-        }
+    const THIRD: f64 = 1.0 / 3.0;
+    h * (ea * ea + ea * eb + eb * eb) * THIRD
+}
+
+/// ∫ₐᵇ e(u)²/(u(1 − u)) du (Anderson–Darling) for e linear.
+#[inline(always)]
+fn piece_ad(a: f64, b: f64, ea: f64, eb: f64) -> f64 {
+    let h = b - a;
+    if h <= 0.0 {
+        return 0.0;
     }
+    let edge = a.min(1.0 - b);
+    if h <= 0.05 * edge {
+        // 4-point Gauss–Legendre: relative error of order (h/edge)^8.
+        const X: [f64; 4] = [
+            -0.861_136_311_594_052_6,
+            -0.339_981_043_584_856_3,
+            0.339_981_043_584_856_3,
+            0.861_136_311_594_052_6,
+        ];
+        const W: [f64; 4] = [
+            0.347_854_845_137_453_9,
+            0.652_145_154_862_546_1,
+            0.652_145_154_862_546_1,
+            0.347_854_845_137_453_9,
+        ];
+        let c = 0.5 * (a + b);
+        let mut s = 0.0;
+        for k in 0..4 {
+            let t = 0.5 * (X[k] + 1.0);
+            let u = c + 0.5 * h * X[k];
+            let e = ea + t * (eb - ea);
+            s += W[k] * e * e / (u * (1.0 - u));
+        }
+        return 0.5 * h * s;
+    }
+    let g = (eb - ea) / h;
+    let alpha = ea - g * a; // e(0)
+    let beta1 = eb + g * (1.0 - b); // e(1)
+    let mut s = -g * g * h;
+    if alpha != 0.0 {
+        s += alpha * alpha * (h / a).ln_1p();
+    }
+    if beta1 != 0.0 {
+        s += beta1 * beta1 * (h / (1.0 - b)).ln_1p();
+    }
+    s.max(0.0)
 }
 
 /// Discrepancy between the empirical distribution of sorted values `q`
 /// (ascending, no NaN) and the belief `t`.
 pub fn discrepancy(kind: Kind, t: &Target, q: &[f64]) -> f64 {
-    let n = q.len() as f64;
-    let mut pos = 0.0f64;
-    let mut c = 0.0f64;
-    let mut s = 0.0;
-    let flat = |s: &mut f64, pos: f64, to: f64, c: f64| {
-        if to > pos {
-            let g = c / n;
-            *s += piece(kind, pos, to, g - pos, g - to);
-        }
-    };
-    t.walk(q, |e| match e {
-        Event::Point(u) => {
-            let u = clamp(u);
-            flat(&mut s, pos, u, c);
-            c += 1.0;
-            pos = pos.max(u);
-        }
-        Event::Span { lo, hi, count } => {
-            let (lo, hi) = (clamp(lo), clamp(hi));
-            flat(&mut s, pos, lo, c);
-            let lo = lo.max(pos);
-            let (g0, g1) = (c / n, (c + count as f64) / n);
-            s += piece(kind, lo, hi, g0 - lo, g1 - hi);
-            c += count as f64;
-            pos = pos.max(hi);
+    // One copy of the walk per distance, so the piece formula inlines.
+    match kind {
+        Kind::CramerVonMises => walk_sum(t, q, piece_cvm),
+        Kind::AndersonDarling => walk_sum(t, q, piece_ad),
+    }
+}
+
+/// The walk of [`Target::walk`] specialised to the sum of pieces: runs of values
+/// between atoms are mapped to u in one pass of the table, then summed in a
+/// tight loop; values on an atom make one span each.
+#[inline(always)]
+fn walk_sum(t: &Target, q: &[f64], piece: impl Fn(f64, f64, f64, f64) -> f64) -> f64 {
+    let n = q.len();
+    let inv_n = 1.0 / n as f64;
+    let cm = t.dist.cont_mass();
+    let atoms = &t.dist.atoms;
+    let (mut pos, mut c, mut s) = (0.0f64, 0.0f64, 0.0f64);
+    let (mut k, mut j, mut below, mut i) = (0usize, 0usize, 0.0f64, 0usize);
+    U.with(|u| {
+        let mut u = u.borrow_mut();
+        while i < n {
+            let x = q[i];
+            while j < atoms.len() && atoms[j].at < x {
+                below += atoms[j].mass;
+                j += 1;
+            }
+            if j < atoms.len() && atoms[j].at == x {
+                let count = q[i..].iter().take_while(|&&v| v == x).count();
+                i += count;
+                let mut ur = Vec::new();
+                t.fc_run(&q[i - 1..i], below, cm, &mut k, &mut ur);
+                let lo = clamp(ur[0]);
+                let hi = clamp((ur[0] + atoms[j].mass).min(1.0));
+                if lo > pos {
+                    let g = c * inv_n;
+                    s += piece(pos, lo, g - pos, g - lo);
+                }
+                let lo = lo.max(pos);
+                let (g0, g1) = (c * inv_n, (c + count as f64) * inv_n);
+                s += piece(lo, hi, g0 - lo, g1 - hi);
+                c += count as f64;
+                pos = pos.max(hi);
+                continue;
+            }
+            let end = match atoms.get(j) {
+                Some(a) => i + q[i..].partition_point(|&v| v < a.at),
+                None => n,
+            };
+            t.fc_run(&q[i..end], below, cm, &mut k, &mut u);
+            for &ui in u.iter() {
+                let ui = clamp(ui.min(1.0));
+                if ui > pos {
+                    let g = c * inv_n;
+                    s += piece(pos, ui, g - pos, g - ui);
+                    pos = ui;
+                }
+                c += 1.0;
+            }
+            i = end;
         }
     });
-    flat(&mut s, pos, 1.0, c);
+    if 1.0 > pos {
+        let g = c * inv_n;
+        s += piece(pos, 1.0, g - pos, g - 1.0);
+    }
     s
+}
+
+thread_local! {
+    /// Positions u of the current run of values.
+    static U: std::cell::RefCell<Vec<f64>> = const { std::cell::RefCell::new(Vec::new()) };
 }
 
 /// E[d] when the N values are an exact sample from the belief itself:

@@ -2,9 +2,9 @@
 //! random numbers (DESIGN.md §3).
 //!
 //! Base variates are drawn once; each evaluation maps them through the prior at λ,
-//! computes every belief's quantity, sorts it (reusing the previous order as the
-//! starting permutation: the stable sort is adaptive, and many quantities barely
-//! reorder between nearby λ — a quantity monotone in one base draw never does),
+//! computes every belief's quantity, sorts it (a quantity monotone in one base
+//! column never reorders, so the permutation of an earlier evaluation is tried
+//! first; otherwise an LSD radix sort, `radsort`, sorts the values directly),
 //! and integrates the discrepancy in closed form. Free hyperparameters are
 //! optimised on an unbounded scale η: λ = lo + (hi − lo)·logistic(η), or the same
 //! on ln λ for positive bounds spanning two or more orders of magnitude.
@@ -20,13 +20,24 @@ use std::sync::atomic::{AtomicU64, Ordering};
 /// Weight of the pull towards the reference in the secondary objective.
 pub const PULL: f64 = 0.5;
 
-/// Scratch buffers for one thread.
+/// Scratch buffers for one thread, for the objective `owner` (an id from
+/// [`NEXT_ID`]): another objective on the same thread resets them.
 #[derive(Default)]
 struct Workspace {
+    owner: u64,
     out: Vec<Vec<f64>>,
-    pairs: Vec<Vec<(f64, u32)>>,
+    /// Per belief: the permutation that sorted an earlier evaluation, and how
+    /// often it has failed to sort a later one.
+    order: Vec<Vec<u32>>,
+    misses: Vec<u32>,
     sorted: Vec<Vec<f64>>,
 }
+
+/// After this many evaluations whose values the kept order does not sort, a
+/// belief's quantity is taken to reorder freely and is radix-sorted directly.
+const ORDER_TRIES: u32 = 3;
+
+static NEXT_ID: AtomicU64 = AtomicU64::new(1);
 
 thread_local! {
     static WS: RefCell<Workspace> = RefCell::new(Workspace::default());
@@ -75,6 +86,24 @@ pub struct Objective<'a> {
     pub kappa: f64,
     pub floors: Vec<f64>,
     evals: AtomicU64,
+    /// Identity for the per-thread scratch buffers.
+    id: u64,
+}
+
+/// Fill `s` with `q` in the order `order` and report whether that is ascending;
+/// stops at the first descent.
+fn gather_if_sorted(q: &[f64], order: &[u32], s: &mut Vec<f64>) -> bool {
+    s.clear();
+    let mut prev = f64::NEG_INFINITY;
+    for &i in order {
+        let v = q[i as usize];
+        if v < prev {
+            return false;
+        }
+        s.push(v);
+        prev = v;
+    }
+    true
 }
 
 impl<'a> Objective<'a> {
@@ -96,6 +125,7 @@ impl<'a> Objective<'a> {
                 .map(|b| noise_floor(kind, &b.target, n))
                 .collect(),
             evals: AtomicU64::new(0),
+            id: NEXT_ID.fetch_add(1, Ordering::Relaxed),
         }
     }
 
@@ -142,8 +172,15 @@ impl<'a> Objective<'a> {
             let ws = &mut *ws;
             let nb = self.reqs.len();
             let n = self.base.n;
+            if ws.owner != self.id {
+                *ws = Workspace {
+                    owner: self.id,
+                    ..Workspace::default()
+                };
+            }
             ws.out.resize(nb, Vec::new());
-            ws.pairs.resize(nb, Vec::new());
+            ws.order.resize(nb, Vec::new());
+            ws.misses.resize(nb, 0);
             ws.sorted.resize(nb, Vec::new());
             self.spec
                 .model
@@ -156,19 +193,27 @@ impl<'a> Objective<'a> {
                         self.reqs[r].label
                     )));
                 }
-                let pairs = &mut ws.pairs[r];
-                if pairs.len() != n {
-                    *pairs = (0..n as u32).map(|i| (0.0, i)).collect();
-                }
-                for p in pairs.iter_mut() {
-                    p.0 = q[p.1 as usize];
-                }
-                if !pairs.is_sorted_by(|a, b| a.0 <= b.0) {
-                    pairs.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
-                }
                 let s = &mut ws.sorted[r];
-                s.clear();
-                s.extend(pairs.iter().map(|p| p.0));
+                let order = &mut ws.order[r];
+                if order.len() == n && gather_if_sorted(q, order, s) {
+                    continue;
+                }
+                if ws.misses[r] < ORDER_TRIES {
+                    // Keep the sorting permutation: a quantity monotone in one base
+                    // column (a cured fraction, say) never reorders again.
+                    ws.misses[r] += 1;
+                    let mut pairs: Vec<(f64, u32)> =
+                        q.iter().enumerate().map(|(i, v)| (*v, i as u32)).collect();
+                    radsort::sort_by_key(&mut pairs, |p| p.0);
+                    order.clear();
+                    order.extend(pairs.iter().map(|p| p.1));
+                    s.clear();
+                    s.extend(pairs.iter().map(|p| p.0));
+                } else {
+                    s.clear();
+                    s.extend_from_slice(q);
+                    radsort::sort(s);
+                }
             }
             Ok(f(&ws.sorted))
         })

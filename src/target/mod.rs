@@ -41,6 +41,8 @@ pub struct Target {
     pub dist: Mixed,
     xs: Vec<f64>,
     ps: Vec<f64>,
+    /// (ps[k+1] − ps[k]) / (xs[k+1] − xs[k]): linear interpolation without a division.
+    slopes: Vec<f64>,
 }
 
 impl Target {
@@ -65,7 +67,17 @@ impl Target {
                 ps.push(c.cdf(x));
             }
         }
-        Self { dist, xs, ps }
+        let slopes = xs
+            .windows(2)
+            .zip(ps.windows(2))
+            .map(|(x, p)| (p[1] - p[0]) / (x[1] - x[0]))
+            .collect();
+        Self {
+            dist,
+            xs,
+            ps,
+            slopes,
+        }
     }
 
     pub fn continuous(d: Dist) -> Self {
@@ -94,6 +106,50 @@ impl Target {
             .collect()
     }
 
+    /// Continuous CDF F_c of a run of ascending values `q`, written to `u` (scaled
+    /// by `scale` and shifted by `shift`), by one merge walk of the table.
+    #[inline]
+    pub fn fc_run(&self, q: &[f64], shift: f64, scale: f64, k: &mut usize, u: &mut Vec<f64>) {
+        u.clear();
+        let n = self.xs.len();
+        if self.dist.cont.is_none() || n < 2 {
+            u.extend(q.iter().map(|&x| shift + scale * self.fc_walk(x, k)));
+            return;
+        }
+        let (lo, hi) = (self.xs[0], self.xs[n - 1]);
+        for &x in q {
+            let f = if x < lo {
+                0.0
+            } else if x >= hi {
+                1.0
+            } else {
+                // Advance by counting the next four table points at or below x
+                // (no data-dependent branch: values and table interleave at
+                // random, so a step-by-step loop mispredicts on most values).
+                loop {
+                    if *k + 5 < n {
+                        let w = &self.xs[*k + 1..*k + 5];
+                        let a = (w[0] <= x) as usize
+                            + (w[1] <= x) as usize
+                            + (w[2] <= x) as usize
+                            + (w[3] <= x) as usize;
+                        *k += a;
+                        if a < 4 {
+                            break;
+                        }
+                    } else {
+                        while *k + 2 < n && self.xs[*k + 1] <= x {
+                            *k += 1;
+                        }
+                        break;
+                    }
+                }
+                self.ps[*k] + (x - self.xs[*k]) * self.slopes[*k]
+            };
+            u.push(shift + scale * f);
+        }
+    }
+
     /// Continuous CDF F_c by table lookup starting from index hint `k` (advanced).
     #[inline]
     fn fc_walk(&self, x: f64, k: &mut usize) -> f64 {
@@ -115,12 +171,11 @@ impl Target {
         while *k + 2 < n && self.xs[*k + 1] <= x {
             *k += 1;
         }
-        let (x0, x1) = (self.xs[*k], self.xs[*k + 1]);
-        let t = (x - x0) / (x1 - x0);
-        self.ps[*k] + t * (self.ps[*k + 1] - self.ps[*k])
+        self.ps[*k] + (x - self.xs[*k]) * self.slopes[*k]
     }
 
     /// Visit the events of sorted values `q` (ascending, NaN-free) in order.
+    #[inline]
     pub fn walk(&self, q: &[f64], mut visit: impl FnMut(Event)) {
         let cm = self.dist.cont_mass();
         let atoms = &self.dist.atoms;
