@@ -55,8 +55,83 @@ const STEP: f64 = 0.05;
 pub const UNDETERMINED_HALFWIDTH: f64 = 0.25;
 const BOUND_ETA: f64 = 6.0;
 
-/// Analyse the objective `obj` (κ ignored) around the optimum `eta`.
-pub fn analyse(obj: &Objective, eta: &[f64]) -> Identifiability {
+/// Central finite differences of `f` at `x` (with f(x) = `f0`) along the
+/// coordinates `coords`, step [`STEP`]: the Hessian (coords × coords) and the
+/// gradient. The 2m + 2m(m − 1) evaluations run in parallel; each is a
+/// deterministic function of its point, so the result does not depend on the
+/// number of threads.
+pub fn fd_hessian(
+    f: &(dyn Fn(&[f64]) -> f64 + Sync),
+    x: &[f64],
+    coords: &[usize],
+    f0: f64,
+) -> (DMatrix<f64>, Vec<f64>) {
+    differences(f, x, coords, f0, true)
+}
+
+/// As [`fd_hessian`] without the cross terms (left 0): the diagonal of the
+/// Hessian and the gradient, from 2m evaluations.
+pub fn fd_diagonal(
+    f: &(dyn Fn(&[f64]) -> f64 + Sync),
+    x: &[f64],
+    coords: &[usize],
+    f0: f64,
+) -> (DMatrix<f64>, Vec<f64>) {
+    differences(f, x, coords, f0, false)
+}
+
+fn differences(
+    f: &(dyn Fn(&[f64]) -> f64 + Sync),
+    x: &[f64],
+    coords: &[usize],
+    f0: f64,
+    cross: bool,
+) -> (DMatrix<f64>, Vec<f64>) {
+    use rayon::prelude::*;
+    let m = coords.len();
+    // Displacements as (coordinate, sign) lists, in a fixed order.
+    let mut moves: Vec<Vec<(usize, f64)>> = Vec::new();
+    for a in 0..m {
+        moves.push(vec![(coords[a], STEP)]);
+        moves.push(vec![(coords[a], -STEP)]);
+        for b in 0..if cross { a } else { 0 } {
+            for (sa, sb) in [(STEP, STEP), (STEP, -STEP), (-STEP, STEP), (-STEP, -STEP)] {
+                moves.push(vec![(coords[a], sa), (coords[b], sb)]);
+            }
+        }
+    }
+    let vals: Vec<f64> = moves
+        .par_iter()
+        .map(|mv| {
+            let mut y = x.to_vec();
+            for (k, d) in mv {
+                y[*k] += d;
+            }
+            f(&y)
+        })
+        .collect();
+    let mut h = DMatrix::<f64>::zeros(m, m);
+    let mut g = vec![0.0; m];
+    let mut it = vals.into_iter();
+    let mut next = || it.next().unwrap_or(f64::NAN);
+    for a in 0..m {
+        let (fp, fm) = (next(), next());
+        h[(a, a)] = (fp - 2.0 * f0 + fm) / (STEP * STEP);
+        g[a] = (fp - fm) / (2.0 * STEP);
+        for b in 0..if cross { a } else { 0 } {
+            let (pp, pm, mp, mm) = (next(), next(), next(), next());
+            let v = (pp - pm - mp + mm) / (4.0 * STEP * STEP);
+            h[(a, b)] = v;
+            h[(b, a)] = v;
+        }
+    }
+    (h, g)
+}
+
+/// Analyse the objective `obj` (κ ignored) around the optimum `eta`. `pre` is the
+/// Hessian of D at `eta` over every free hyperparameter, when the optimiser has
+/// already computed it there (by [`fd_hessian`], so the numbers are the same).
+pub fn analyse(obj: &Objective, eta: &[f64], pre: Option<&DMatrix<f64>>) -> Identifiability {
     let hy = obj.spec.hypers();
     let names: Vec<String> = obj.free.iter().map(|&i| hy[i].name.clone()).collect();
     let f = |x: &[f64]| obj.total(&obj.full(x)).unwrap_or(f64::INFINITY);
@@ -66,31 +141,12 @@ pub fn analyse(obj: &Objective, eta: &[f64]) -> Identifiability {
         .collect();
     let inner: Vec<usize> = (0..eta.len()).filter(|k| !at_bound.contains(k)).collect();
     let m = inner.len();
-    let f0 = f(eta);
-    let mut h = DMatrix::<f64>::zeros(m, m);
-    let shifted = |pairs: &[(usize, f64)]| {
-        let mut x = eta.to_vec();
-        for (k, d) in pairs {
-            x[*k] += d;
+    let h = match pre {
+        Some(full) if full.nrows() == eta.len() => {
+            DMatrix::from_fn(m, m, |a, b| full[(inner[a], inner[b])])
         }
-        f(&x)
+        _ => fd_hessian(&f, eta, &inner, f(eta)).0,
     };
-    for a in 0..m {
-        let ka = inner[a];
-        let fp = shifted(&[(ka, STEP)]);
-        let fm = shifted(&[(ka, -STEP)]);
-        h[(a, a)] = (fp - 2.0 * f0 + fm) / (STEP * STEP);
-        for b in 0..a {
-            let kb = inner[b];
-            let v = (shifted(&[(ka, STEP), (kb, STEP)])
-                - shifted(&[(ka, STEP), (kb, -STEP)])
-                - shifted(&[(ka, -STEP), (kb, STEP)])
-                + shifted(&[(ka, -STEP), (kb, -STEP)]))
-                / (4.0 * STEP * STEP);
-            h[(a, b)] = v;
-            h[(b, a)] = v;
-        }
-    }
     let mut directions = Vec::new();
     let mut undetermined: Vec<String> = Vec::new();
     if m > 0 && h.iter().all(|v| v.is_finite()) {

@@ -1,7 +1,9 @@
 //! Fitting: a global stage of space-filling starts on a coarse set of draws,
-//! Nelder–Mead local searches from the best of them (in parallel with rayon),
-//! refinement at the full number of draws, then judgement of the optimum on
-//! fresh, independent draws against the Monte Carlo noise floor.
+//! Nelder–Mead local searches from the best of them (two at a time, in parallel
+//! with rayon, until a basin has been reached twice), Newton refinement at the full
+//! number of draws (its last Hessian is the identifiability analysis's), then
+//! judgement of the optimum on fresh, independent draws against the Monte Carlo
+//! noise floor.
 //!
 //! Reproducibility: every random number comes from the seed (the Latin-hypercube
 //! starts from a child seed), each local search is a deterministic function of
@@ -117,7 +119,7 @@ pub fn optimise(
     kappa: f64,
     warm: Option<&[f64]>,
     progress: Option<Progress>,
-) -> Result<(Vec<f64>, OptimiserRecord)> {
+) -> Result<Optimum> {
     let kind = spec.fit.discrepancy;
     let n = spec.draws;
     let mut full_obj = Objective::new(spec, n, spec.seed, rng::FIT_STREAMS, kind);
@@ -126,15 +128,17 @@ pub fn optimise(
     if d == 0 {
         let h = full_obj.full0.clone();
         full_obj.total(&h)?;
-        return Ok((
+        return Ok(Optimum {
             h,
-            OptimiserRecord {
+            eta: Vec::new(),
+            hessian: None,
+            record: OptimiserRecord {
                 evaluations: full_obj.evaluations(),
                 starts: 0,
                 coarse_draws: n,
                 searches: Vec::new(),
             },
-        ));
+        });
     }
     let nc = n.min((n / 5).max(2000));
     let mut coarse = Objective::new(spec, nc, spec.seed, rng::FIT_STREAMS, kind);
@@ -173,12 +177,14 @@ pub fn optimise(
     }
     order.sort_by(|a, b| a.1.total_cmp(&b.1).then(a.0.cmp(&b.0)));
     let m = order.len().min(4);
-    let total_searches = m + m.min(2);
-    let done = std::sync::atomic::AtomicUsize::new(0);
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    // Local searches: m coarse, then one or two refinements (known after the coarse stage).
+    let total_searches = AtomicUsize::new(m + m.min(2));
+    let done = AtomicUsize::new(0);
     let tick = || {
-        let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+        let k = done.fetch_add(1, Ordering::Relaxed) + 1;
         if let Some(p) = progress {
-            p(k, total_searches)
+            p(k, total_searches.load(Ordering::Relaxed))
         }
     };
 
@@ -186,20 +192,31 @@ pub fn optimise(
     // Stopping rules tied to the noise floor: the coarse stage only locates the
     // basin; the full stage stops when the simplex spread is 1 % of a floor.
     let tol_c = 0.05 * coarse.floor();
-    let locals: Vec<(usize, simplex::Local)> = order[..m]
-        .par_iter()
-        .map(|(i, _)| {
-            let r = simplex::local(
-                &|x: &[f64]| coarse.cost(x),
-                &starts[*i],
-                0.6,
-                150 * d as u64 + 100,
-                tol_c,
-            );
-            tick();
-            (*i, r)
-        })
-        .collect();
+    // Searches run in rounds of two (in parallel) from the best screened starts;
+    // once two searches from different starts reach the same basin and nothing
+    // better has been found, the basin is taken as found (a basin reached twice
+    // from independent starts) and the remaining starts are not searched.
+    let mut locals: Vec<(usize, simplex::Local)> = Vec::new();
+    for chunk in order[..m].chunks(2) {
+        let got: Vec<(usize, simplex::Local)> = chunk
+            .par_iter()
+            .map(|(i, _)| {
+                let r = simplex::local(
+                    &|x: &[f64]| coarse.cost(x),
+                    &starts[*i],
+                    0.6,
+                    150 * d as u64 + 100,
+                    tol_c,
+                );
+                tick();
+                (*i, r)
+            })
+            .collect();
+        locals.extend(got);
+        if basin_confirmed(&locals, coarse.floor()) {
+            break;
+        }
+    }
     let mut searches: Vec<SearchRecord> = locals
         .iter()
         .map(|(i, r)| SearchRecord {
@@ -213,33 +230,36 @@ pub fn optimise(
     let mut best_c: Vec<&(usize, simplex::Local)> = locals.iter().collect();
     best_c.sort_by(|a, b| a.1.f.total_cmp(&b.1.f).then(a.0.cmp(&b.0)));
 
-    // Refinement at full draws from the best two, then one restart of the winner.
+    // Refinement at full draws: Newton steps on finite-difference curvature from
+    // the best coarse optimum, and from the second best when it lies in another
+    // basin and is within one coarse noise floor of the best; Nelder–Mead
+    // takes over should Newton not settle.
     let tol_f = 0.01 * full_obj.floor();
-    let refined: Vec<(usize, simplex::Local)> = best_c[..best_c.len().min(2)]
+    let mut chosen: Vec<&(usize, simplex::Local)> = best_c.iter().take(1).copied().collect();
+    if let Some(second) = best_c.get(1) {
+        let dist = best_c[0]
+            .1
+            .x
+            .iter()
+            .zip(&second.1.x)
+            .map(|(a, b)| (a - b).abs())
+            .fold(0.0, f64::max);
+        if dist > SAME_BASIN && second.1.f <= best_c[0].1.f + coarse.floor() {
+            chosen.push(second);
+        }
+    }
+    total_searches.store(m + chosen.len(), Ordering::Relaxed);
+    let refined: Vec<(usize, Refined)> = chosen
         .par_iter()
         .map(|(i, r)| {
-            let a = simplex::local(
-                &|x: &[f64]| full_obj.cost(x),
-                &r.x,
-                0.2,
-                150 * d as u64 + 100,
-                tol_f,
-            );
-            let b = simplex::local(
-                &|x: &[f64]| full_obj.cost(x),
-                &a.x,
-                0.05,
-                100 * d as u64 + 50,
-                tol_f,
-            );
+            let out = refine(&full_obj, &coarse, &r.x, tol_f, d);
             tick();
-            let best = if b.f <= a.f { b } else { a };
-            (*i, best)
+            (*i, out)
         })
         .collect();
     for (i, r) in &refined {
         searches.push(SearchRecord {
-            stage: "full",
+            stage: r.stage,
             start: *i,
             cost: r.f,
             iterations: r.iterations,
@@ -247,19 +267,171 @@ pub fn optimise(
         });
     }
     let best = refined
-        .iter()
+        .into_iter()
         .min_by(|a, b| a.1.f.total_cmp(&b.1.f).then(a.0.cmp(&b.0)))
-        .map(|(_, r)| r.x.clone())
+        .map(|(_, r)| r)
         .ok_or_else(|| Error::Numeric("no local search finished".into()))?;
-    Ok((
-        full_obj.full(&best),
-        OptimiserRecord {
+    Ok(Optimum {
+        h: full_obj.full(&best.x),
+        eta: best.x,
+        hessian: best.hessian,
+        record: OptimiserRecord {
             evaluations: full_obj.evaluations() + coarse.evaluations(),
             starts: starts.len(),
             coarse_draws: nc,
             searches,
         },
-    ))
+    })
+}
+
+/// Has the best of the local results been reached by two searches? Two results
+/// share the basin when they are within [`SAME_BASIN`] in every η coordinate and
+/// their costs within one noise floor `floor`.
+fn basin_confirmed(locals: &[(usize, simplex::Local)], floor: f64) -> bool {
+    let Some(best) = locals.iter().min_by(|a, b| a.1.f.total_cmp(&b.1.f)) else {
+        return false;
+    };
+    locals
+        .iter()
+        .filter(|(i, r)| {
+            *i != best.0
+                && r.f <= best.1.f + floor
+                && r.x
+                    .iter()
+                    .zip(&best.1.x)
+                    .all(|(a, b)| (a - b).abs() <= SAME_BASIN)
+        })
+        .count()
+        >= 1
+}
+
+/// Coarse optima closer than this in every η coordinate share a basin.
+const SAME_BASIN: f64 = 0.3;
+/// Newton iterations before Nelder–Mead takes over.
+const NEWTON_ITERATIONS: u64 = 5;
+/// Largest Newton step in any η coordinate (a trust region).
+const NEWTON_MAX_STEP: f64 = 0.5;
+
+/// The outcome of optimisation: the optimum (every hyperparameter), the Hessian
+/// of D there over the free hyperparameters on the η scale when Newton's last
+/// iteration computed it at that very point, and the record.
+pub struct Optimum {
+    pub h: Vec<f64>,
+    /// The optimum on the optimiser's unbounded scale.
+    pub eta: Vec<f64>,
+    pub hessian: Option<nalgebra::DMatrix<f64>>,
+    pub record: OptimiserRecord,
+}
+
+struct Refined {
+    x: Vec<f64>,
+    f: f64,
+    hessian: Option<nalgebra::DMatrix<f64>>,
+    iterations: u64,
+    stage: &'static str,
+    stop: simplex::Stop,
+}
+
+/// Refine a coarse optimum `x0` on the full-draw objective.
+///
+/// Newton's method on central-difference curvature (the same differences the
+/// identifiability analysis takes): at x, with gradient g and Hessian H = Σ μ v vᵀ,
+/// step along each direction whose curvature is clearly positive (μ > 2f, f the
+/// noise floor; flatter directions are left to the tie-break), with at most
+/// [`NEWTON_MAX_STEP`] in any coordinate, halving the step until D falls. It stops
+/// at x when the predicted fall ½Σ(vᵀg)²/μ, or the achieved one, is below `tol`
+/// (a hundredth of a floor), so the Hessian is exact at the returned point. On a
+/// smooth basin this takes two Hessians; should it not settle, Nelder–Mead runs
+/// from the best point found, as a fallback.
+fn refine(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -> Refined {
+    let f = |x: &[f64]| obj.cost(x);
+    let coords: Vec<usize> = (0..d).collect();
+    let floor = obj.floor();
+    let mut x = x0.to_vec();
+    let mut fx = f(&x);
+    let mut iterations = 0;
+    while fx.is_finite() && iterations < NEWTON_ITERATIONS {
+        iterations += 1;
+        // The first step borrows the cross curvature from the coarse draws (the
+        // noise floor is constant in λ, so both estimate the same curvature);
+        // later ones use the full draws throughout, so the last is exact.
+        let exact = iterations > 1;
+        let (h, g) = if exact {
+            diagnostics::fd_hessian(&f, &x, &coords, fx)
+        } else {
+            let fc = |y: &[f64]| coarse.cost(y);
+            let (mut hc, _) = diagnostics::fd_hessian(&fc, &x, &coords, fc(&x));
+            let (hd, g) = diagnostics::fd_diagonal(&f, &x, &coords, fx);
+            for a in 0..d {
+                hc[(a, a)] = hd[(a, a)];
+            }
+            (hc, g)
+        };
+        if !h.iter().chain(&g).all(|v| v.is_finite()) {
+            break;
+        }
+        let eig = nalgebra::SymmetricEigen::new(h.clone());
+        let mut step = vec![0.0; d];
+        let mut predicted = 0.0;
+        for j in 0..d {
+            let mu = eig.eigenvalues[j];
+            if mu > 2.0 * floor {
+                let v = eig.eigenvectors.column(j);
+                let proj: f64 = (0..d).map(|a| v[a] * g[a]).sum();
+                predicted += 0.5 * proj * proj / mu;
+                for a in 0..d {
+                    step[a] -= proj / mu * v[a];
+                }
+            }
+        }
+        let settled = |x: Vec<f64>, fx: f64, h: nalgebra::DMatrix<f64>| Refined {
+            x,
+            f: fx,
+            hessian: Some(h),
+            iterations,
+            stage: "newton",
+            stop: simplex::Stop::Converged,
+        };
+        if predicted < tol {
+            if exact {
+                return settled(x, fx, h);
+            }
+            continue;
+        }
+        let big = step.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        let mut t = if big > NEWTON_MAX_STEP { NEWTON_MAX_STEP / big } else { 1.0 };
+        let mut moved = false;
+        for _ in 0..4 {
+            let y: Vec<f64> = x.iter().zip(&step).map(|(a, s)| a + t * s).collect();
+            let fy = f(&y);
+            if fy < fx {
+                if exact && fx - fy < tol {
+                    // Nothing worth a move: x is the optimum and H is exact there.
+                    return settled(x, fx, h);
+                }
+                x = y;
+                fx = fy;
+                moved = true;
+                break;
+            }
+            t *= 0.5;
+        }
+        if !moved && exact {
+            break;
+        }
+    }
+    // Fallback: Nelder–Mead from the best point, then a restart of the simplex.
+    let a = simplex::local(&f, &x, 0.2, 150 * d as u64 + 100, tol);
+    let b = simplex::local(&f, &a.x, 0.05, 100 * d as u64 + 50, tol);
+    let r = if b.f <= a.f { b } else { a };
+    Refined {
+        x: r.x,
+        f: r.f,
+        hessian: None,
+        iterations: iterations + r.iterations,
+        stage: "full",
+        stop: r.stop,
+    }
 }
 
 /// What a single fit produces before judgement.
@@ -274,7 +446,12 @@ pub struct Point {
 /// Optimise, analyse identifiability, apply the tie-break rule.
 pub fn fit_point(spec: &Spec, warm: Option<&[f64]>, progress: Option<Progress>) -> Result<Point> {
     use crate::spec::TieBreak;
-    let (h0, mut opt) = optimise(spec, 0.0, warm, progress)?;
+    let Optimum {
+        h: h0,
+        eta: eta0,
+        hessian,
+        record: mut opt,
+    } = optimise(spec, 0.0, warm, progress)?;
     let mut obj = Objective::new(
         spec,
         spec.draws,
@@ -282,8 +459,7 @@ pub fn fit_point(spec: &Spec, warm: Option<&[f64]>, progress: Option<Progress>) 
         rng::FIT_STREAMS,
         spec.fit.discrepancy,
     );
-    let eta0 = obj.eta(&h0);
-    let ident = diagnostics::analyse(&obj, &eta0);
+    let ident = diagnostics::analyse(&obj, &eta0, hessian.as_ref());
     let (h, front, how) = match spec.fit.tie_break {
         TieBreak::Off => (h0, None, "off".to_string()),
         TieBreak::Auto if ident.undetermined.is_empty() => (h0, None, "off".to_string()),
