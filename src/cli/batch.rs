@@ -2,7 +2,7 @@
 //! file and a table of changes (see [`crate::batch`] and docs/sweep-and-batch.md).
 
 use super::progress_bar;
-use crate::batch::{self, RunOptions};
+use crate::batch::{self, ModelFiles, RunOptions};
 use crate::error::Error;
 use crate::output;
 use crate::spec::Overrides;
@@ -28,6 +28,10 @@ pub struct BatchArgs {
     /// Raise the cap on draws deliberately.
     #[arg(long)]
     pub max_draws: Option<usize>,
+    /// What each models/<id>/ folder holds: lean (fit.json without held profiles,
+    /// summary.txt, spec.toml) or full (also draws.csv and the profiles, for `report`)
+    #[arg(long, value_parser = ModelFiles::NAMES, default_value = "lean")]
+    pub model_files: String,
 }
 
 #[derive(clap::Args, Debug, Clone)]
@@ -50,6 +54,8 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         draws: a.draws,
         max_draws: a.max_draws,
     };
+    let model_files = ModelFiles::parse(&a.model_files)
+        .ok_or_else(|| anyhow!("--model-files: expected lean or full, found \"{}\"", a.model_files))?;
     let plan = batch::plan(&a.spec, &a.table, &ov)?;
     let pb = progress_bar(quiet, "models");
     let tick = |done: usize, total: usize| {
@@ -58,7 +64,12 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
             pb.set_position(done as u64);
         }
     };
-    let rep = batch::run(&plan, &a.out, &RunOptions { shard }, &tick)?;
+    let rep = batch::run(
+        &plan,
+        &a.out,
+        &RunOptions { shard, model_files },
+        &tick,
+    )?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }

@@ -131,7 +131,12 @@ fn differences(
 /// Analyse the objective `obj` (κ ignored) around the optimum `eta`. `pre` is the
 /// Hessian of D at `eta` over every free hyperparameter, when the optimiser has
 /// already computed it there (by [`fd_hessian`], so the numbers are the same).
-pub fn analyse(obj: &Objective, eta: &[f64], pre: Option<&DMatrix<f64>>) -> Identifiability {
+pub fn analyse(
+    obj: &Objective,
+    eta: &[f64],
+    pre: Option<&DMatrix<f64>>,
+    profiles: bool,
+) -> Identifiability {
     let hy = obj.spec.hypers();
     let names: Vec<String> = obj.free.iter().map(|&i| hy[i].name.clone()).collect();
     let f = |x: &[f64]| obj.total(&obj.full(x)).unwrap_or(f64::INFINITY);
@@ -210,8 +215,9 @@ pub fn analyse(obj: &Objective, eta: &[f64], pre: Option<&DMatrix<f64>>) -> Iden
         }
     }
     // Held profiles across the bounds.
+    let traced = profiles;
     let mut profiles = BTreeMap::new();
-    for (k, &i) in obj.free.iter().enumerate() {
+    for (k, &i) in obj.free.iter().enumerate().filter(|_| traced) {
         let mut pts = Vec::new();
         for g in 0..25 {
             let t = 0.01 + 0.98 * g as f64 / 24.0;
@@ -227,7 +233,11 @@ pub fn analyse(obj: &Objective, eta: &[f64], pre: Option<&DMatrix<f64>>) -> Iden
         at_bound: at_bound.iter().map(|&k| names[k].clone()).collect(),
         undetermined,
         profiles,
-        profile_rule: "other hyperparameters held at the optimum",
+        profile_rule: if traced {
+            "other hyperparameters held at the optimum"
+        } else {
+            "not traced (batch model folder; `fit` on the row's spec.toml traces them)"
+        },
         step: STEP,
     }
 }

@@ -459,7 +459,7 @@ pub fn fit_point(spec: &Spec, warm: Option<&[f64]>, progress: Option<Progress>) 
         rng::FIT_STREAMS,
         spec.fit.discrepancy,
     );
-    let ident = diagnostics::analyse(&obj, &eta0, hessian.as_ref());
+    let ident = diagnostics::analyse(&obj, &eta0, hessian.as_ref(), spec.fit.profiles);
     let (h, front, how) = match spec.fit.tie_break {
         TieBreak::Off => (h0, None, "off".to_string()),
         TieBreak::Auto if ident.undetermined.is_empty() => (h0, None, "off".to_string()),

@@ -107,13 +107,20 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
 
 /// Write every output of a fit into `dir`; returns the paths written.
 pub fn write_fit(dir: &Path, r: &FitResult) -> Result<Vec<PathBuf>> {
+    write_fit_files(dir, r, true)
+}
+
+/// As [`write_fit`]; `draws` = false leaves out draws.csv (batch lean folders).
+pub fn write_fit_files(dir: &Path, r: &FitResult, draws: bool) -> Result<Vec<PathBuf>> {
     ensure_dir(dir)?;
     // Render everything first, so an error leaves no file behind.
     let mut files = vec![
         (dir.join("fit.json"), fit_json(r)?.into_bytes()),
         (dir.join("summary.txt"), summary::render(r).into_bytes()),
-        (dir.join("draws.csv"), draws_csv(r)?),
     ];
+    if draws {
+        files.push((dir.join("draws.csv"), draws_csv(r)?));
+    }
     if let Some(f) = &r.pareto {
         files.push((dir.join("pareto.csv"), plots::pareto_csv(f)?));
         files.push((dir.join("pareto.svg"), plots::pareto_svg(f)?.into_bytes()));

@@ -51,6 +51,9 @@ pub struct FitOptions {
     /// objective pulls towards; unlisted free ones are pulled towards their start or
     /// the centre of their bounds.
     pub reference: Vec<(usize, f64)>,
+    /// Trace the held profiles of the identifiability analysis (for the report).
+    /// Not a belief-file key: `batch` turns it off for lean model folders.
+    pub profiles: bool,
 }
 
 /// Tie-breaking between equally faithful priors.
@@ -642,6 +645,7 @@ pub fn from_table(
             tie_break,
             replicates,
             reference,
+            profiles: true,
         },
     })
 }

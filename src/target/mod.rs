@@ -33,6 +33,8 @@ pub enum Event {
 }
 
 const GRID: usize = 4097;
+/// Table walks run side by side in [`Target::fc_run`].
+const LANES: usize = 4;
 const Z_MAX: f64 = 7.0;
 
 /// A belief ready for fast evaluation.
@@ -107,7 +109,11 @@ impl Target {
     }
 
     /// Continuous CDF F_c of a run of ascending values `q`, written to `u` (scaled
-    /// by `scale` and shifted by `shift`), by one merge walk of the table.
+    /// by `scale` and shifted by `shift`), by merge walks of the table. The run is
+    /// cut into [`LANES`] stretches walked side by side (each found by bisection
+    /// first): one walk is a chain of dependent loads, several overlap in the
+    /// processor. The values equal those of one walk. `k` is the table index hint,
+    /// left at the segment of the last value.
     #[inline]
     pub fn fc_run(&self, q: &[f64], shift: f64, scale: f64, k: &mut usize, u: &mut Vec<f64>) {
         u.clear();
@@ -117,37 +123,64 @@ impl Target {
             return;
         }
         let (lo, hi) = (self.xs[0], self.xs[n - 1]);
-        for &x in q {
-            let f = if x < lo {
-                0.0
-            } else if x >= hi {
-                1.0
-            } else {
-                // Advance by counting the next four table points at or below x
-                // (no data-dependent branch: values and table interleave at
-                // random, so a step-by-step loop mispredicts on most values).
-                loop {
-                    if *k + 5 < n {
-                        let w = &self.xs[*k + 1..*k + 5];
-                        let a = (w[0] <= x) as usize
-                            + (w[1] <= x) as usize
-                            + (w[2] <= x) as usize
-                            + (w[3] <= x) as usize;
-                        *k += a;
-                        if a < 4 {
-                            break;
-                        }
-                    } else {
-                        while *k + 2 < n && self.xs[*k + 1] <= x {
-                            *k += 1;
-                        }
+        let (xs, ps, slopes) = (&self.xs[..], &self.ps[..], &self.slopes[..]);
+        // F_c(x) with segment hint k (k never passes the segment holding x).
+        let at = |x: f64, k: &mut usize| -> f64 {
+            if x < lo {
+                return 0.0;
+            }
+            if x >= hi {
+                return 1.0;
+            }
+            // Advance by counting the next four table points at or below x
+            // (values and table interleave at random, so a step-by-step loop
+            // mispredicts on most values).
+            loop {
+                if *k + 5 < n {
+                    let w = &xs[*k + 1..*k + 5];
+                    let a = (w[0] <= x) as usize
+                        + (w[1] <= x) as usize
+                        + (w[2] <= x) as usize
+                        + (w[3] <= x) as usize;
+                    *k += a;
+                    if a < 4 {
                         break;
                     }
+                } else {
+                    while *k + 2 < n && xs[*k + 1] <= x {
+                        *k += 1;
+                    }
+                    break;
                 }
-                self.ps[*k] + (x - self.xs[*k]) * self.slopes[*k]
-            };
-            u.push(shift + scale * f);
+            }
+            ps[*k] + (x - xs[*k]) * slopes[*k]
+        };
+        let m = q.len();
+        if m < 16 * LANES {
+            u.extend(q.iter().map(|&x| shift + scale * at(x, k)));
+            return;
         }
+        u.resize(m, 0.0);
+        let chunk = m.div_ceil(LANES);
+        let mut ks = [0usize; LANES];
+        for (l, kl) in ks.iter_mut().enumerate() {
+            let first = (l * chunk).min(m - 1);
+            let x = q[first];
+            *kl = xs.partition_point(|v| *v <= x).saturating_sub(1).min(n - 2);
+        }
+        let full = m / chunk; // lanes with a whole stretch
+        for j in 0..chunk {
+            for l in 0..full {
+                let i = l * chunk + j;
+                u[i] = shift + scale * at(q[i], &mut ks[l]);
+            }
+        }
+        for l in full..LANES {
+            for i in (l * chunk).min(m)..((l + 1) * chunk).min(m) {
+                u[i] = shift + scale * at(q[i], &mut ks[l]);
+            }
+        }
+        *k = ks[(m - 1) / chunk];
     }
 
     /// Continuous CDF F_c by table lookup starting from index hint `k` (advanced).
