@@ -572,21 +572,27 @@ impl Model for MixtureCure {
             p.resize(self.priors.priors.len(), Vec::new());
             self.priors.fill(h, &base.cols, p)?;
             // π and ln λ once per distinct profile, shared by every request there.
-            cache.clear();
-            let profile_of = |x: &Vec<f64>,
-                              cache: &mut Vec<(Vec<f64>, Vec<f64>, Vec<f64>)>|
-             -> usize {
-                if let Some(j) = cache.iter().position(|c| &c.0 == x) {
+            // Entries [0, used) belong to this evaluation; later ones keep their
+            // buffers for reuse.
+            let mut used = 0usize;
+            let mut profile_of = |x: &Vec<f64>, cache: &mut ProfileCache| -> usize {
+                if let Some(j) = cache[..used].iter().position(|c| &c.0 == x) {
                     return j;
                 }
-                let (mut pis, mut lss) = (Vec::with_capacity(base.n), Vec::with_capacity(base.n));
+                if used == cache.len() {
+                    cache.push((Vec::new(), Vec::new(), Vec::new()));
+                }
+                let (cx, pis, lss) = &mut cache[used];
+                cx.clone_from(x);
+                pis.clear();
+                lss.clear();
                 for i in 0..base.n {
                     let (pi, ls, _) = self.at(p, i, x);
                     pis.push(pi);
                     lss.push(ls);
                 }
-                cache.push((x.clone(), pis, lss));
-                cache.len() - 1
+                used += 1;
+                used - 1
             };
             for (r, o) in reqs.iter().zip(out.iter_mut()) {
                 o.resize(base.n, 0.0);
@@ -601,17 +607,30 @@ impl Model for MixtureCure {
                     let hz = r.horizon.unwrap_or(1.0);
                     let lh = hz.ln();
                     let (pis, lss) = (&cache[j].1, &cache[j].2);
-                    match self.shape {
-                        Some(s) => {
-                            for (i, v) in o.iter_mut().enumerate() {
-                                *v = self.value(r.code, pis[i], lss[i], p[s][i], hz, lh);
-                            }
-                        }
+                    let ones;
+                    let ks: &[f64] = match self.shape {
+                        Some(s) => &p[s],
                         None => {
-                            for (i, v) in o.iter_mut().enumerate() {
-                                *v = self.value(r.code, pis[i], lss[i], 1.0, hz, lh);
-                            }
+                            ones = vec![1.0; base.n];
+                            &ones
                         }
+                    };
+                    // One loop per quantity, so the choice is not made per draw.
+                    macro_rules! each {
+                        ($code:expr) => {
+                            for (i, v) in o.iter_mut().enumerate() {
+                                *v = self.value($code, pis[i], lss[i], ks[i], hz, lh);
+                            }
+                        };
+                    }
+                    match r.code {
+                        CURE => each!(CURE),
+                        SURV => each!(SURV),
+                        EVENT => each!(EVENT),
+                        MEDIAN => each!(MEDIAN),
+                        MEDIAN_U => each!(MEDIAN_U),
+                        RMST => each!(RMST),
+                        other => each!(other),
                     }
                 }
             }
