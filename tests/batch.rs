@@ -326,3 +326,62 @@ fn bad_rows_are_reported_and_the_others_run() {
     assert_eq!(o.status.code(), Some(3));
     assert!(String::from_utf8_lossy(&o.stderr).contains("no `id` column"));
 }
+
+/// Lean model folders (the default) hold fit.json without held profiles,
+/// summary.txt and spec.toml; `--model-files full` adds draws.csv and the
+/// profiles. The fitted numbers and the results table are the same either way.
+#[test]
+fn lean_and_full_model_folders_hold_the_same_fit() {
+    let d = tempfile::tempdir().unwrap();
+    let (base, table) = setup(d.path(), 3);
+    let (lean, full) = (d.path().join("lean"), d.path().join("full"));
+    let o = batch(&base, &table, &lean, &[]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let o = batch(&base, &table, &full, &["--model-files", "full"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    // Every column but `evaluations` (the full folders' profiles cost evaluations).
+    let table_of = |p: &Path| -> Vec<String> {
+        read(&p.join("results.csv"))
+            .lines()
+            .map(|l| l.rsplit_once(',').unwrap().0.to_string())
+            .collect()
+    };
+    let header = read(&lean.join("results.csv"));
+    assert!(header.lines().next().unwrap().ends_with(",evaluations"));
+    assert_eq!(table_of(&lean), table_of(&full));
+    for k in 0..3 {
+        let (id, ..) = row_values(k);
+        let (l, f) = (lean.join("models").join(&id), full.join("models").join(&id));
+        assert_eq!(
+            hypers(&l.join("fit.json")),
+            hypers(&f.join("fit.json")),
+            "row {id}"
+        );
+        assert!(!l.join("draws.csv").exists(), "lean folder has draws.csv");
+        assert!(f.join("draws.csv").exists(), "full folder lacks draws.csv");
+        assert!(l.join("spec.toml").exists() && l.join("summary.txt").exists());
+        let json = |p: &Path| -> serde_json::Value {
+            serde_json::from_str(&read(&p.join("fit.json"))).unwrap()
+        };
+        let profiles =
+            |v: &serde_json::Value| v["identifiability"]["profiles"].as_object().unwrap().len();
+        let (jl, jf) = (json(&l), json(&f));
+        assert_eq!(profiles(&jl), 0, "lean fit.json traces profiles");
+        let free = jf["free"].as_array().unwrap().len();
+        assert!(free > 0);
+        assert_eq!(
+            profiles(&jf),
+            free,
+            "full fit.json: one profile per free hyperparameter"
+        );
+    }
+    // A misspelt choice is a usage error naming the choices.
+    let o = batch(
+        &base,
+        &table,
+        &d.path().join("x"),
+        &["--model-files", "thin"],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("lean, full"));
+}

@@ -383,22 +383,22 @@ fn run_row(
     let started = Instant::now();
     let rec = match plan.spec(r) {
         Err(reason) => err_record(r, "input", reason, started.elapsed().as_secs_f64()),
-        Ok(mut spec) => match {
+        Ok(mut spec) => {
             spec.fit.profiles = files == ModelFiles::Full;
-            fit::fit(&spec, None)
-        } {
-            Err(e) => err_record(
-                r,
-                "fit",
-                one_line(&format!("row {} (id \"{}\"): {e}", r.number, r.id)),
-                started.elapsed().as_secs_f64(),
-            ),
-            Ok(res) => {
-                let mdir = dir.join("models").join(&r.id);
-                clean_tmp(&mdir);
-                output::write_fit_files(&mdir, &res, files == ModelFiles::Full)?;
-                if let Ok(tab) = &r.table {
-                    let text = format!(
+            let fitted = fit::fit(&spec, None);
+            match fitted {
+                Err(e) => err_record(
+                    r,
+                    "fit",
+                    one_line(&format!("row {} (id \"{}\"): {e}", r.number, r.id)),
+                    started.elapsed().as_secs_f64(),
+                ),
+                Ok(res) => {
+                    let mdir = dir.join("models").join(&r.id);
+                    clean_tmp(&mdir);
+                    output::write_fit_files(&mdir, &res, files == ModelFiles::Full)?;
+                    if let Ok(tab) = &r.table {
+                        let text = format!(
                         "# The belief file of batch row {} (id \"{}\"): {} with the row's changes.\n\
                          # Relative paths resolve against the base file's folder.\n{}",
                         r.number,
@@ -406,11 +406,12 @@ fn run_row(
                         plan.base_path.display(),
                         toml::to_string(tab).unwrap_or_default()
                     );
-                    write_atomic(&mdir.join("spec.toml"), text.as_bytes())?;
+                        write_atomic(&mdir.join("spec.toml"), text.as_bytes())?;
+                    }
+                    ok_record(r, &res)
                 }
-                ok_record(r, &res)
             }
-        },
+        }
     };
     let json = serde_json::to_string_pretty(&rec).map_err(|e| Error::Numeric(e.to_string()))?;
     write_atomic(&record_path(dir, r.number), json.as_bytes())?;

@@ -54,8 +54,12 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         draws: a.draws,
         max_draws: a.max_draws,
     };
-    let model_files = ModelFiles::parse(&a.model_files)
-        .ok_or_else(|| anyhow!("--model-files: expected lean or full, found \"{}\"", a.model_files))?;
+    let model_files = ModelFiles::parse(&a.model_files).ok_or_else(|| {
+        anyhow!(
+            "--model-files: expected lean or full, found \"{}\"",
+            a.model_files
+        )
+    })?;
     let plan = batch::plan(&a.spec, &a.table, &ov)?;
     let pb = progress_bar(quiet, "models");
     let tick = |done: usize, total: usize| {
@@ -64,12 +68,7 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
             pb.set_position(done as u64);
         }
     };
-    let rep = batch::run(
-        &plan,
-        &a.out,
-        &RunOptions { shard, model_files },
-        &tick,
-    )?;
+    let rep = batch::run(&plan, &a.out, &RunOptions { shard, model_files }, &tick)?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }

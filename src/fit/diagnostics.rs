@@ -255,3 +255,48 @@ pub fn analyse(
         step: STEP,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// On a quadratic f(x) = ½xᵀAx + bᵀx + c central differences are exact, so the
+    /// Hessian is A and the gradient Ax + b to rounding, cross terms included
+    /// (the diagonal-pair formula is exact for quadratics).
+    #[test]
+    fn differences_are_exact_on_a_quadratic() {
+        let a = [[4.0, 1.5, -0.5], [1.5, 3.0, 0.25], [-0.5, 0.25, 2.0]];
+        let b = [0.3, -1.0, 2.0];
+        let f = |x: &[f64]| {
+            let mut s = 0.7;
+            for i in 0..3 {
+                s += b[i] * x[i];
+                for j in 0..3 {
+                    s += 0.5 * x[i] * a[i][j] * x[j];
+                }
+            }
+            s
+        };
+        let x = [0.2, -0.4, 1.1];
+        let (h, g) = fd_hessian(&f, &x, &[0, 1, 2], f(&x));
+        for i in 0..3 {
+            let gi: f64 = b[i] + (0..3).map(|j| a[i][j] * x[j]).sum::<f64>();
+            assert!((g[i] - gi).abs() < 1e-10, "gradient {i}: {} vs {gi}", g[i]);
+            for j in 0..3 {
+                assert!(
+                    (h[(i, j)] - a[i][j]).abs() < 1e-8,
+                    "H[{i},{j}] = {}",
+                    h[(i, j)]
+                );
+            }
+        }
+        // A subset of coordinates gives the sub-matrix; the diagonal-only form
+        // leaves cross terms at zero.
+        let (h2, _) = fd_hessian(&f, &x, &[2, 0], f(&x));
+        assert!((h2[(0, 1)] - a[2][0]).abs() < 1e-8);
+        let (hd, gd) = fd_diagonal(&f, &x, &[0, 1, 2], f(&x));
+        assert_eq!(hd[(0, 1)], 0.0);
+        assert_eq!(gd, g);
+        assert_eq!(hd[(1, 1)], h[(1, 1)]);
+    }
+}

@@ -340,7 +340,15 @@ mod tests {
             w[k * 50] = 0.25 + 1e-12 * k as f64 * if k % 2 == 0 { 1.0 } else { -1.0 };
         }
         cases.push(w);
-        cases.push(vec![0.0, -0.0, f64::INFINITY, -1.0, f64::NEG_INFINITY, 3.0, 0.0]);
+        cases.push(vec![
+            0.0,
+            -0.0,
+            f64::INFINITY,
+            -1.0,
+            f64::NEG_INFINITY,
+            3.0,
+            0.0,
+        ]);
         for c in cases {
             let mut a = c.clone();
             let mut b = c.clone();
