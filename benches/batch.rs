@@ -1,13 +1,14 @@
 //! Batch throughput: models per second for the mixture-cure template at 10,000
 //! draws (the relapse-free demo beliefs, one row per seed), through
 //! `batch::run` exactly as the `batch` command runs it (fits, per-model folders,
-//! row records, combined tables), on a 2-thread pool.
+//! row records, combined tables), on a 2-thread pool: with the default lean
+//! model folders, and with `--model-files full` (draws.csv and held profiles).
 
 use criterion::{criterion_group, criterion_main, BatchSize, Criterion, Throughput};
-use priorsmith::batch::{self, RunOptions};
+use priorsmith::batch::{self, ModelFiles, RunOptions};
 use priorsmith::spec::Overrides;
 
-const ROWS: usize = 4;
+const ROWS: usize = 8;
 
 fn bench(c: &mut Criterion) {
     let _ = rayon::ThreadPoolBuilder::new()
@@ -31,17 +32,32 @@ fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("batch");
     g.sample_size(10);
     g.throughput(Throughput::Elements(ROWS as u64));
-    g.bench_function("mixture-cure 10k draws, 2 threads", |b| {
-        b.iter_batched(
-            || tempfile::tempdir().unwrap(),
-            |out| {
-                let r = batch::run(&plan, out.path(), &RunOptions::default(), &|_, _| {}).unwrap();
-                assert_eq!(r.fitted, ROWS);
-                out
-            },
-            BatchSize::PerIteration,
-        )
-    });
+    for (name, files) in [
+        (
+            "mixture-cure 10k draws, 2 threads, lean folders",
+            ModelFiles::Lean,
+        ),
+        (
+            "mixture-cure 10k draws, 2 threads, full folders",
+            ModelFiles::Full,
+        ),
+    ] {
+        let opts = RunOptions {
+            model_files: files,
+            ..RunOptions::default()
+        };
+        g.bench_function(name, |b| {
+            b.iter_batched(
+                || tempfile::tempdir().unwrap(),
+                |out| {
+                    let r = batch::run(&plan, out.path(), &opts, &|_, _| {}).unwrap();
+                    assert_eq!(r.fitted, ROWS);
+                    out
+                },
+                BatchSize::PerIteration,
+            )
+        });
+    }
     g.finish();
 }
 

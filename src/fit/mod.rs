@@ -213,7 +213,7 @@ pub fn optimise(
             })
             .collect();
         locals.extend(got);
-        if basin_confirmed(&locals, coarse.floor()) {
+        if basin_confirmed(&coarse, &locals) {
             break;
         }
     }
@@ -237,14 +237,9 @@ pub fn optimise(
     let tol_f = 0.01 * full_obj.floor();
     let mut chosen: Vec<&(usize, simplex::Local)> = best_c.iter().take(1).copied().collect();
     if let Some(second) = best_c.get(1) {
-        let dist = best_c[0]
-            .1
-            .x
-            .iter()
-            .zip(&second.1.x)
-            .map(|(a, b)| (a - b).abs())
-            .fold(0.0, f64::max);
-        if dist > SAME_BASIN && second.1.f <= best_c[0].1.f + coarse.floor() {
+        if second.1.f <= best_c[0].1.f + coarse.floor()
+            && !same_basin(&coarse, &best_c[0].1, &second.1)
+        {
             chosen.push(second);
         }
     }
@@ -284,25 +279,35 @@ pub fn optimise(
     })
 }
 
-/// Has the best of the local results been reached by two searches? Two results
-/// share the basin when they are within [`SAME_BASIN`] in every η coordinate and
-/// their costs within one noise floor `floor`.
-fn basin_confirmed(locals: &[(usize, simplex::Local)], floor: f64) -> bool {
+/// Has the best of the local results been reached by two searches (a second
+/// result within one noise floor of it, in the same basin)?
+fn basin_confirmed(obj: &Objective, locals: &[(usize, simplex::Local)]) -> bool {
     let Some(best) = locals.iter().min_by(|a, b| a.1.f.total_cmp(&b.1.f)) else {
         return false;
     };
     locals
         .iter()
-        .filter(|(i, r)| {
-            *i != best.0
-                && r.f <= best.1.f + floor
-                && r.x
-                    .iter()
-                    .zip(&best.1.x)
-                    .all(|(a, b)| (a - b).abs() <= SAME_BASIN)
-        })
-        .count()
-        >= 1
+        .any(|(i, r)| *i != best.0 && r.f <= best.1.f + obj.floor() && same_basin(obj, &best.1, r))
+}
+
+/// Do two local optima share a basin? Yes when they are within [`SAME_BASIN`]
+/// in every η coordinate, or when the objective on the segment between them (at
+/// a quarter, half and three quarters) never rises more than half a noise floor
+/// above the higher of the two: no barrier separates them (a hill test, as in
+/// clustering multistart methods).
+fn same_basin(obj: &Objective, a: &simplex::Local, b: &simplex::Local) -> bool {
+    let near =
+        a.x.iter()
+            .zip(&b.x)
+            .all(|(p, q)| (p - q).abs() <= SAME_BASIN);
+    if near {
+        return true;
+    }
+    let top = a.f.max(b.f) + 0.5 * obj.floor();
+    [0.25, 0.5, 0.75].iter().all(|t| {
+        let y: Vec<f64> = a.x.iter().zip(&b.x).map(|(p, q)| p + t * (q - p)).collect();
+        obj.cost(&y) <= top
+    })
 }
 
 /// Coarse optima closer than this in every η coordinate share a basin.
