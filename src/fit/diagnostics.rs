@@ -73,6 +73,30 @@ pub fn fd_hessian(
     differences(f, x, coords, f0, true)
 }
 
+/// Central-difference gradient of `f` at `x` with a step per coordinate
+/// (`steps[a]`), the 2m evaluations in parallel.
+pub fn fd_gradient(f: &(dyn Fn(&[f64]) -> f64 + Sync), x: &[f64], steps: &[f64]) -> Vec<f64> {
+    use rayon::prelude::*;
+    let vals: Vec<f64> = (0..2 * steps.len())
+        .into_par_iter()
+        .map(|j| {
+            let mut y = x.to_vec();
+            y[j / 2] += if j % 2 == 0 {
+                steps[j / 2]
+            } else {
+                -steps[j / 2]
+            };
+            f(&y)
+        })
+        .collect();
+    (0..steps.len())
+        .map(|a| (vals[2 * a] - vals[2 * a + 1]) / (2.0 * steps[a]))
+        .collect()
+}
+
+/// The finite-difference step of the Hessian, η units.
+pub const HESSIAN_STEP: f64 = STEP;
+
 /// As [`fd_hessian`] without the cross terms (left 0): the diagonal of the
 /// Hessian and the gradient, from 2m evaluations.
 pub fn fd_diagonal(
