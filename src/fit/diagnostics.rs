@@ -50,52 +50,30 @@ pub struct Identifiability {
     pub step: f64,
 }
 
-const STEP: f64 = 0.05;
+/// The largest finite-difference step, η units ([`steps_for`] shortens it on steep coordinates).
+pub const STEP: f64 = 0.05;
 /// δ* above which a direction counts as undetermined (η units).
 pub const UNDETERMINED_HALFWIDTH: f64 = 0.25;
 const BOUND_ETA: f64 = 6.0;
 
 /// Central finite differences of `f` at `x` (with f(x) = `f0`) along the
-/// coordinates `coords`, step h = [`STEP`]: the Hessian (coords × coords) and the
-/// gradient. Diagonal terms and the gradient use f(x ± h e_a); a cross term uses
-/// f(x ± h(e_a + e_b)) with those: H_ab = [f(x+h(e_a+e_b)) + f(x−h(e_a+e_b)) −
-/// f(x+he_a) − f(x−he_a) − f(x+he_b) − f(x−he_b) + 2f(x)] / 2h², second-order
-/// accurate like the four-point formula, from 2m + m(m − 1) evaluations (31
-/// for five hyperparameters, not 51). They run in parallel; each is a
-/// deterministic function of its point, so the result does not depend on the
-/// number of threads.
+/// coordinates `coords`, with step `steps[a]` on coordinate `coords[a]`: the
+/// Hessian (coords × coords) and the gradient. Diagonal terms and the gradient use
+/// f(x ± h_a e_a); a cross term uses f(x ± (h_a e_a + h_b e_b)) with those:
+/// H_ab = [f(x+h_a e_a+h_b e_b) + f(x−h_a e_a−h_b e_b) − f(x+h_a e_a) − f(x−h_a e_a)
+/// − f(x+h_b e_b) − f(x−h_b e_b) + 2f(x)] / (2 h_a h_b), second-order accurate like
+/// the four-point formula, from 2m + m(m − 1) evaluations (31 for five
+/// hyperparameters, not 51). They run in parallel; each is a deterministic
+/// function of its point, so the result does not depend on the number of threads.
 pub fn fd_hessian(
     f: &(dyn Fn(&[f64]) -> f64 + Sync),
     x: &[f64],
     coords: &[usize],
+    steps: &[f64],
     f0: f64,
 ) -> (DMatrix<f64>, Vec<f64>) {
-    differences(f, x, coords, f0, true)
+    differences(f, x, coords, steps, f0, true)
 }
-
-/// Central-difference gradient of `f` at `x` with a step per coordinate
-/// (`steps[a]`), the 2m evaluations in parallel.
-pub fn fd_gradient(f: &(dyn Fn(&[f64]) -> f64 + Sync), x: &[f64], steps: &[f64]) -> Vec<f64> {
-    use rayon::prelude::*;
-    let vals: Vec<f64> = (0..2 * steps.len())
-        .into_par_iter()
-        .map(|j| {
-            let mut y = x.to_vec();
-            y[j / 2] += if j % 2 == 0 {
-                steps[j / 2]
-            } else {
-                -steps[j / 2]
-            };
-            f(&y)
-        })
-        .collect();
-    (0..steps.len())
-        .map(|a| (vals[2 * a] - vals[2 * a + 1]) / (2.0 * steps[a]))
-        .collect()
-}
-
-/// The finite-difference step of the Hessian, η units.
-pub const HESSIAN_STEP: f64 = STEP;
 
 /// As [`fd_hessian`] without the cross terms (left 0): the diagonal of the
 /// Hessian and the gradient, from 2m evaluations.
@@ -103,32 +81,51 @@ pub fn fd_diagonal(
     f: &(dyn Fn(&[f64]) -> f64 + Sync),
     x: &[f64],
     coords: &[usize],
+    steps: &[f64],
     f0: f64,
 ) -> (DMatrix<f64>, Vec<f64>) {
-    differences(f, x, coords, f0, false)
+    differences(f, x, coords, steps, f0, false)
+}
+
+/// Steps for [`fd_hessian`] from curvatures `diag` (H_aa): √(8f/H_aa), over
+/// which D changes by about four noise floors f, within [10⁻³, [`STEP`]]. Over a
+/// longer step a steep coordinate's differences carry a third-order bias (the
+/// gradient would vanish short of the optimum); a coordinate with δ* near the
+/// undetermined threshold has H_aa ≤ 32f and keeps the full step.
+pub fn steps_for(diag: &[f64], floor: f64) -> Vec<f64> {
+    diag.iter()
+        .map(|&c| {
+            if c > 0.0 {
+                (8.0 * floor / c).sqrt().clamp(1e-3, STEP)
+            } else {
+                STEP
+            }
+        })
+        .collect()
 }
 
 fn differences(
     f: &(dyn Fn(&[f64]) -> f64 + Sync),
     x: &[f64],
     coords: &[usize],
+    steps: &[f64],
     f0: f64,
     cross: bool,
 ) -> (DMatrix<f64>, Vec<f64>) {
     use rayon::prelude::*;
     let m = coords.len();
-    // Displacements as (coordinate, sign) lists, in a fixed order: first the
+    // Displacements as (coordinate, offset) lists, in a fixed order: first the
     // axis points, then the diagonal pairs.
     let mut moves: Vec<Vec<(usize, f64)>> = Vec::new();
-    for &c in coords {
-        moves.push(vec![(c, STEP)]);
-        moves.push(vec![(c, -STEP)]);
+    for (&c, &h) in coords.iter().zip(steps) {
+        moves.push(vec![(c, h)]);
+        moves.push(vec![(c, -h)]);
     }
     if cross {
         for a in 0..m {
             for b in 0..a {
-                for s in [STEP, -STEP] {
-                    moves.push(vec![(coords[a], s), (coords[b], s)]);
+                for s in [1.0, -1.0] {
+                    moves.push(vec![(coords[a], s * steps[a]), (coords[b], s * steps[b])]);
                 }
             }
         }
@@ -147,8 +144,8 @@ fn differences(
     let mut g = vec![0.0; m];
     for a in 0..m {
         let (fp, fm) = (vals[2 * a], vals[2 * a + 1]);
-        h[(a, a)] = (fp - 2.0 * f0 + fm) / (STEP * STEP);
-        g[a] = (fp - fm) / (2.0 * STEP);
+        h[(a, a)] = (fp - 2.0 * f0 + fm) / (steps[a] * steps[a]);
+        g[a] = (fp - fm) / (2.0 * steps[a]);
     }
     if cross {
         let mut k = 2 * m;
@@ -157,7 +154,7 @@ fn differences(
                 let (pp, mm) = (vals[k], vals[k + 1]);
                 k += 2;
                 let axis = vals[2 * a] + vals[2 * a + 1] + vals[2 * b] + vals[2 * b + 1];
-                let v = (pp + mm - axis + 2.0 * f0) / (2.0 * STEP * STEP);
+                let v = (pp + mm - axis + 2.0 * f0) / (2.0 * steps[a] * steps[b]);
                 h[(a, b)] = v;
                 h[(b, a)] = v;
             }
@@ -188,7 +185,12 @@ pub fn analyse(
         Some(full) if full.nrows() == eta.len() => {
             DMatrix::from_fn(m, m, |a, b| full[(inner[a], inner[b])])
         }
-        _ => fd_hessian(&f, eta, &inner, f(eta)).0,
+        _ => {
+            let f0 = f(eta);
+            let (d0, _) = fd_diagonal(&f, eta, &inner, &vec![STEP; m], f0);
+            let diag: Vec<f64> = (0..m).map(|a| d0[(a, a)]).collect();
+            fd_hessian(&f, eta, &inner, &steps_for(&diag, floor), f0).0
+        }
     };
     let mut directions = Vec::new();
     let mut undetermined: Vec<String> = Vec::new();
@@ -302,7 +304,7 @@ mod tests {
             s
         };
         let x = [0.2, -0.4, 1.1];
-        let (h, g) = fd_hessian(&f, &x, &[0, 1, 2], f(&x));
+        let (h, g) = fd_hessian(&f, &x, &[0, 1, 2], &[0.05, 0.01, 0.03], f(&x));
         for i in 0..3 {
             let gi: f64 = b[i] + (0..3).map(|j| a[i][j] * x[j]).sum::<f64>();
             assert!((g[i] - gi).abs() < 1e-10, "gradient {i}: {} vs {gi}", g[i]);
@@ -316,11 +318,13 @@ mod tests {
         }
         // A subset of coordinates gives the sub-matrix; the diagonal-only form
         // leaves cross terms at zero.
-        let (h2, _) = fd_hessian(&f, &x, &[2, 0], f(&x));
+        let (h2, _) = fd_hessian(&f, &x, &[2, 0], &[0.05, 0.05], f(&x));
         assert!((h2[(0, 1)] - a[2][0]).abs() < 1e-8);
-        let (hd, gd) = fd_diagonal(&f, &x, &[0, 1, 2], f(&x));
+        let (hd, gd) = fd_diagonal(&f, &x, &[0, 1, 2], &[0.05, 0.01, 0.03], f(&x));
         assert_eq!(hd[(0, 1)], 0.0);
-        assert_eq!(gd, g);
+        for a in 0..3 {
+            assert!((gd[a] - g[a]).abs() < 1e-10);
+        }
         assert_eq!(hd[(1, 1)], h[(1, 1)]);
     }
 }
