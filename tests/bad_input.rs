@@ -372,3 +372,12 @@ fn disk_full_leaves_no_partial_outputs() {
     assert!(!stderr(&r).contains("panicked"));
     assert!(listing.is_empty(), "left behind: {listing:?}");
 }
+
+#[test]
+fn fit_searches_out_of_range() {
+    assert_bad(
+        &variant("[fit]\n", "[fit]\nsearches = 0\n"),
+        3,
+        &["fit.searches", "searches = 0 must be between 1 and 64"],
+    );
+}

@@ -1,6 +1,6 @@
 //! Fitting: a global stage of space-filling starts on a coarse set of draws,
-//! Nelder–Mead local searches from the best four of them (in parallel with
-//! rayon), Newton refinement at the full
+//! Nelder–Mead local searches from the best three of them (`[fit] searches`, in
+//! parallel with rayon), Newton refinement at the full
 //! number of draws (its last Hessian is the identifiability analysis's), then
 //! judgement of the optimum on fresh, independent draws against the Monte Carlo
 //! noise floor.
@@ -176,7 +176,7 @@ pub fn optimise(
         ));
     }
     order.sort_by(|a, b| a.1.total_cmp(&b.1).then(a.0.cmp(&b.0)));
-    let m = order.len().min(4);
+    let m = order.len().min(spec.fit.searches);
     use std::sync::atomic::{AtomicUsize, Ordering};
     // Local searches: m coarse, then one or two refinements (known after the coarse stage).
     let total_searches = AtomicUsize::new(m + m.min(2));

@@ -42,6 +42,8 @@ pub struct FitOptions {
     pub discrepancy: Kind,
     /// Space-filling starts of the global stage.
     pub starts: usize,
+    /// Local searches on the coarse draws, from the best screened starts.
+    pub searches: usize,
     /// Largest root-mean-square CDF gap counted as "met approximately".
     pub tolerance: f64,
     /// How to choose among equally faithful priors (see `fit::pareto`).
@@ -55,6 +57,12 @@ pub struct FitOptions {
     /// Not a belief-file key: `batch` turns it off for lean model folders.
     pub profiles: bool,
 }
+
+/// Local searches of the global stage unless `[fit] searches` says otherwise.
+/// Three: on the 60-row multi-endpoint demo and ten seeds of the relapse-free
+/// demo a fourth changed no optimum and cost 13 % of the evaluations; a row of
+/// that demo needs the third (tests/global_search.rs).
+pub const DEFAULT_SEARCHES: usize = 3;
 
 /// Tie-breaking between equally faithful priors.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
@@ -561,6 +569,19 @@ pub fn from_table(
         }
         None => 0,
     };
+    let searches = match f.and_then(|f| f.searches.as_ref()) {
+        Some(v) => {
+            let n = ctx.count(&fp("searches"), v)? as usize;
+            if !(1..=64).contains(&n) {
+                return Err(ctx.err(
+                    &fp("searches"),
+                    format!("searches = {n} must be between 1 and 64"),
+                ));
+            }
+            n
+        }
+        None => DEFAULT_SEARCHES,
+    };
     let tolerance = match f.and_then(|f| f.tolerance.as_ref()) {
         Some(v) => {
             let t = ctx.positive(&fp("tolerance"), v)?;
@@ -641,6 +662,7 @@ pub fn from_table(
         fit: FitOptions {
             discrepancy,
             starts,
+            searches,
             tolerance,
             tie_break,
             replicates,

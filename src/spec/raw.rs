@@ -80,6 +80,7 @@ pub struct RawAtom {
 pub struct RawFit {
     pub discrepancy: Option<String>,
     pub starts: Option<toml::Value>,
+    pub searches: Option<toml::Value>,
     pub tolerance: Option<toml::Value>,
     pub tie_break: Option<toml::Value>,
     pub reference: Option<toml::Table>,
