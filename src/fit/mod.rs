@@ -338,7 +338,10 @@ fn refine(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
         return r;
     }
     let f = |x: &[f64]| obj.cost(x);
-    let p = simplex::local(&f, &r.x, 0.2, 150 * d as u64 + 100, tol);
+    // A wide simplex (reaches optima at a bound), then a narrow restart.
+    let a = simplex::local(&f, &r.x, 0.2, 150 * d as u64 + 100, tol);
+    let b = simplex::local(&f, &a.x, 0.02, 100 * d as u64 + 50, tol);
+    let p = if b.f <= a.f { b } else { a };
     if p.f < r.f - tol {
         Refined {
             x: p.x,
