@@ -8,7 +8,6 @@
 
 use priorsmith::batch;
 use priorsmith::fit::{self, objective::Objective};
-use priorsmith::rng;
 use priorsmith::spec::Overrides;
 use std::path::Path;
 
@@ -28,13 +27,7 @@ fn the_better_of_two_basins_is_found() {
         .expect("demo row");
     let spec = plan.spec(row).unwrap();
     let o = fit::optimise(&spec, 0.0, None, None).unwrap();
-    let obj = Objective::new(
-        &spec,
-        spec.draws,
-        spec.seed,
-        rng::FIT_STREAMS,
-        spec.fit.discrepancy,
-    );
+    let obj = Objective::fitting(&spec);
     let d = obj.total(&o.h).unwrap();
     let sd = o.h[spec
         .hypers()

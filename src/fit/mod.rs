@@ -482,13 +482,7 @@ pub fn fit_point(spec: &Spec, warm: Option<&[f64]>, progress: Option<Progress>) 
         hessian,
         record: mut opt,
     } = optimise(spec, 0.0, warm, progress)?;
-    let mut obj = Objective::new(
-        spec,
-        spec.draws,
-        spec.seed,
-        rng::FIT_STREAMS,
-        spec.fit.discrepancy,
-    );
+    let mut obj = Objective::fitting(spec);
     let ident = diagnostics::analyse(
         &obj,
         &eta0,
@@ -650,24 +644,23 @@ mod tests {
     use super::*;
     use crate::spec::{parse, Overrides};
 
+    /// The relapse-free demo at 4,000 draws with seed `seed`.
+    fn demo_spec(seed: u64) -> crate::spec::Spec {
+        let text = include_str!("../../demo-data/relapse-free-cure.toml")
+            .replace("draws = 20000", "draws = 4000")
+            .replace("seed = 11", &format!("seed = {seed}"));
+        parse(&text, None, &Overrides::default()).unwrap()
+    }
+
     /// Newton stops at the optimum: a long Nelder–Mead search started there on the
     /// same objective lowers D by less than 5 % of a noise floor (relapse-free
     /// demo at 4,000 draws, three seeds).
     #[test]
     fn newton_stops_at_the_optimum() {
         for seed in [3, 4, 5] {
-            let text = include_str!("../../demo-data/relapse-free-cure.toml")
-                .replace("draws = 20000", "draws = 4000")
-                .replace("seed = 11", &format!("seed = {seed}"));
-            let spec = parse(&text, None, &Overrides::default()).unwrap();
+            let spec = demo_spec(seed);
             let o = optimise(&spec, 0.0, None, None).unwrap();
-            let obj = Objective::new(
-                &spec,
-                spec.draws,
-                spec.seed,
-                rng::FIT_STREAMS,
-                spec.fit.discrepancy,
-            );
+            let obj = Objective::fitting(&spec);
             let f = |x: &[f64]| obj.cost(x);
             let at = f(&o.eta);
             let nm = simplex::local(&f, &o.eta, 0.05, 2000, 1e-4 * obj.floor());
@@ -687,18 +680,10 @@ mod tests {
     /// numbers, and the analysis agrees with one that computes its own.
     #[test]
     fn reused_hessian_is_the_hessian_at_the_optimum() {
-        let text = include_str!("../../demo-data/relapse-free-cure.toml")
-            .replace("draws = 20000", "draws = 4000");
-        let spec = parse(&text, None, &Overrides::default()).unwrap();
+        let spec = demo_spec(11);
         let o = optimise(&spec, 0.0, None, None).unwrap();
         let (h, steps) = o.hessian.expect("Newton settled on this smooth demo");
-        let obj = Objective::new(
-            &spec,
-            spec.draws,
-            spec.seed,
-            rng::FIT_STREAMS,
-            spec.fit.discrepancy,
-        );
+        let obj = Objective::fitting(&spec);
         let f = |x: &[f64]| obj.cost(x);
         let coords: Vec<usize> = (0..o.eta.len()).collect();
         let (again, _) = diagnostics::fd_hessian(&f, &o.eta, &coords, &steps, f(&o.eta));

@@ -163,6 +163,18 @@ impl<'a> Objective<'a> {
         }
     }
 
+    /// The fitting objective of `spec`: its draws, its seed, the fitting streams,
+    /// its discrepancy.
+    pub fn fitting(spec: &'a Spec) -> Self {
+        Self::new(
+            spec,
+            spec.draws,
+            spec.seed,
+            crate::rng::FIT_STREAMS,
+            spec.fit.discrepancy,
+        )
+    }
+
     pub fn n(&self) -> usize {
         self.base.n
     }
