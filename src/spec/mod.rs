@@ -556,32 +556,28 @@ pub fn from_table(
         })?,
         None => Kind::CramerVonMises,
     };
-    let starts = match f.and_then(|f| f.starts.as_ref()) {
-        Some(v) => {
-            let n = ctx.count(&fp("starts"), v)? as usize;
-            if !(1..=10_000).contains(&n) {
+    // A whole number in [1, hi] under [fit] `name`, or `default` when absent.
+    let bounded =
+        |name: &str, v: Option<&toml::Value>, hi: usize, default: usize| -> Result<usize> {
+            let Some(v) = v else {
+                return Ok(default);
+            };
+            let n = ctx.count(&fp(name), v)? as usize;
+            if !(1..=hi).contains(&n) {
                 return Err(ctx.err(
-                    &fp("starts"),
-                    format!("starts = {n} must be between 1 and 10000"),
+                    &fp(name),
+                    format!("{name} = {n} must be between 1 and {hi}"),
                 ));
             }
-            n
-        }
-        None => 0,
-    };
-    let searches = match f.and_then(|f| f.searches.as_ref()) {
-        Some(v) => {
-            let n = ctx.count(&fp("searches"), v)? as usize;
-            if !(1..=64).contains(&n) {
-                return Err(ctx.err(
-                    &fp("searches"),
-                    format!("searches = {n} must be between 1 and 64"),
-                ));
-            }
-            n
-        }
-        None => DEFAULT_SEARCHES,
-    };
+            Ok(n)
+        };
+    let starts = bounded("starts", f.and_then(|f| f.starts.as_ref()), 10_000, 0)?;
+    let searches = bounded(
+        "searches",
+        f.and_then(|f| f.searches.as_ref()),
+        64,
+        DEFAULT_SEARCHES,
+    )?;
     let tolerance = match f.and_then(|f| f.tolerance.as_ref()) {
         Some(v) => {
             let t = ctx.positive(&fp("tolerance"), v)?;
