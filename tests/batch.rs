@@ -2,10 +2,10 @@
 //! on temporary files. One invented two-belief cure model, 200 generated rows at
 //! 2000 draws.
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+mod common;
 
-const BIN: &str = env!("CARGO_BIN_EXE_priorsmith");
+use std::path::{Path, PathBuf};
+
 const ROWS: usize = 200;
 /// Rows of the kill and shard checks (the first KROWS of the same generator).
 const KROWS: usize = 80;
@@ -75,7 +75,7 @@ fn setup_named(dir: &Path, n: usize, name: &str) -> (PathBuf, PathBuf) {
 }
 
 fn batch(base: &Path, table: &Path, out: &Path, extra: &[&str]) -> std::process::Output {
-    Command::new(BIN)
+    common::bin()
         .args(["-q", "batch"])
         .arg(table)
         .arg("--spec")
@@ -144,7 +144,7 @@ fn batch_equals_fits_survives_kill_and_shards_merge() {
                     let spec = fits.join(format!("{id}.toml"));
                     std::fs::write(&spec, fill(m, a, h, seed)).unwrap();
                     let out = fits.join(&id);
-                    let st = Command::new(BIN)
+                    let st = common::bin()
                         .args(["-q", "--threads", "1", "fit"])
                         .arg(&spec)
                         .arg("--out")
@@ -188,7 +188,7 @@ fn batch_equals_fits_survives_kill_and_shards_merge() {
         .map(|l| format!("{l}\n"))
         .collect();
     let killed = d.path().join("killed");
-    let mut child = Command::new(BIN)
+    let mut child = common::bin()
         .args(["-q", "batch"])
         .arg(&table)
         .arg("--spec")
@@ -224,7 +224,7 @@ fn batch_equals_fits_survives_kill_and_shards_merge() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     assert_eq!(read(&killed.join("results.csv")), results);
     // The rerun skipped the rows finished before the kill.
-    let o = Command::new(BIN)
+    let o = common::bin()
         .arg("batch")
         .arg(&table)
         .arg("--spec")
@@ -248,7 +248,7 @@ fn batch_equals_fits_survives_kill_and_shards_merge() {
         dirs.push(sd);
     }
     let merged = d.path().join("merged");
-    let st = Command::new(BIN)
+    let st = common::bin()
         .args(["-q", "merge"])
         .args(&dirs)
         .arg("--out")
@@ -262,7 +262,7 @@ fn batch_equals_fits_survives_kill_and_shards_merge() {
         read(&whole.join("errors.csv"))
     );
     // A merge with a shard missing names the missing rows.
-    let o = Command::new(BIN)
+    let o = common::bin()
         .args(["merge"])
         .args(&dirs[..3])
         .arg("--out")

@@ -12,17 +12,18 @@
 //! Constrained parameters follow Stan's semantics: a declared bound truncates
 //! the stated distribution, F_trunc⁻¹(p) = F⁻¹(F(L) + p·(F(U) − F(L))).
 
+mod common;
+
 use priorsmith::dist::{self, Continuous};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
-const BIN: &str = env!("CARGO_BIN_EXE_priorsmith");
 const FIXTURE: &str = include_str!("fixtures/all-families-fit.json");
 const PROBS: [f64; 7] = [0.01, 0.05, 0.25, 0.5, 0.75, 0.95, 0.99];
 
 fn run(args: &[&str]) -> Output {
-    Command::new(BIN)
+    common::bin()
         .args(args)
         .env("SOURCE_DATE_EPOCH", "1767225600") // 2026-01-01
         .output()

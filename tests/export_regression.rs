@@ -23,19 +23,20 @@
 //! where a variance belongs, or a missing 1/s_j moves these quantiles and fails
 //! (see `a_slip_in_the_slab_fails_the_round_trip`).
 
+mod common;
+
 use priorsmith::dist::{self, Continuous};
 use std::collections::BTreeMap;
 use std::path::Path;
-use std::process::{Command, Output};
+use std::process::Output;
 
-const BIN: &str = env!("CARGO_BIN_EXE_priorsmith");
 const N_SIM: usize = 20_000;
 const PROBS: [f64; 5] = [0.1, 0.25, 0.5, 0.75, 0.9];
 const ROWS: usize = 40;
 const P: usize = 4;
 
 fn run(args: &[&str], dir: &Path) -> Output {
-    Command::new(BIN)
+    common::bin()
         .args(args)
         .current_dir(dir)
         .env("SOURCE_DATE_EPOCH", "1767225600")

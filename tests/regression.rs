@@ -1,14 +1,12 @@
 //! Integration tests of the regression templates: the real binary on temporary files.
 
-use std::path::Path;
-use std::process::{Command, Output};
+mod common;
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_priorsmith"))
-}
+use std::path::Path;
+use std::process::Output;
 
 fn run(args: &[&str], dir: &Path) -> Output {
-    bin().args(args).current_dir(dir).output().unwrap()
+    common::bin().args(args).current_dir(dir).output().unwrap()
 }
 
 fn text(o: &Output) -> String {

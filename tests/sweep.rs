@@ -1,9 +1,8 @@
 //! Integration tests of `priorsmith sweep`: the real binary on temporary files.
 
-use std::path::Path;
-use std::process::Command;
+mod common;
 
-const BIN: &str = env!("CARGO_BIN_EXE_priorsmith");
+use std::path::Path;
 
 /// An invented two-belief cure model, small draws so the test is quick.
 const SPEC: &str = r#"
@@ -43,7 +42,7 @@ fn wider_cure_belief_widens_cure_sd_and_width_one_is_fit() {
     std::fs::write(&spec, SPEC).unwrap();
     let out = d.path().join("sweep");
     // Widen only the cure-fraction belief (belief 1).
-    let st = Command::new(BIN)
+    let st = common::bin()
         .args(["-q", "sweep"])
         .arg(&spec)
         .args(["--widths", "2,0.5,1,0.75,1.5", "--beliefs", "1", "--out"])
@@ -78,7 +77,7 @@ fn wider_cure_belief_widens_cure_sd_and_width_one_is_fit() {
 
     // Width 1 reproduces `fit` bit for bit.
     let fit_out = d.path().join("fit");
-    let st = Command::new(BIN)
+    let st = common::bin()
         .args(["-q", "fit"])
         .arg(&spec)
         .arg("--out")
@@ -110,7 +109,7 @@ fn bad_widths_are_rejected() {
         ("1,x", "`x` is not a number"),
         ("1,1", "given twice"),
     ] {
-        let o = Command::new(BIN)
+        let o = common::bin()
             .arg("sweep")
             .arg(&spec)
             .args(["--widths", w, "--out"])
@@ -121,7 +120,7 @@ fn bad_widths_are_rejected() {
         let e = String::from_utf8_lossy(&o.stderr);
         assert!(e.contains(msg), "{w}: {e}");
     }
-    let o = Command::new(BIN)
+    let o = common::bin()
         .arg("sweep")
         .arg(&spec)
         .args(["--beliefs", "3", "--out"])

@@ -201,47 +201,37 @@ fn pareto_front_is_non_dominated_and_monotone() {
     assert_eq!(j["pareto"]["rule"], "knee");
 }
 
+/// Fit a cure-fraction belief that cannot be met; the first belief must be
+/// "not met" with a reason starting `how`. Returns the fit.json.
+fn assert_missed(cure: &str, belief: &str, how: &str) -> serde_json::Value {
+    let j = fit(&spec(5000, cure, belief), &[]);
+    let b = &j["beliefs"][0];
+    assert_eq!(b["verdict"], "not_met");
+    assert!(
+        b["how"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|h| h.as_str().unwrap().starts_with(how)),
+        "expected {how:?} in {}",
+        b["how"]
+    );
+    j
+}
+
 #[test]
 fn unmet_beliefs_say_how_they_are_missed() {
     // cure_logit sd fixed at 2: the implied cure fraction is far wider than Beta(30, 70).
-    let j = fit(
-        &spec(
-            5000,
-            "mean = { fit = [-4.0, 4.0] }\nsd = 2.0",
-            "distribution = { family = \"beta\", alpha = 30, beta = 70 }",
-        ),
-        &[],
-    );
-    let b = &j["beliefs"][0];
-    assert_eq!(b["verdict"], "not_met");
-    assert!(
-        b["how"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .any(|h| h.as_str().unwrap().starts_with("too wide")),
-        "{}",
-        b["how"]
+    assert_missed(
+        "mean = { fit = [-4.0, 4.0] }\nsd = 2.0",
+        "distribution = { family = \"beta\", alpha = 30, beta = 70 }",
+        "too wide",
     );
     // Mean fixed at −3 (cure ≈ 5 %) against a belief centred on 50 %: shifted down.
-    let j = fit(
-        &spec(
-            5000,
-            "mean = -3.0\nsd = { fit = [0.05, 2.5] }",
-            "distribution = { family = \"beta\", alpha = 20, beta = 20 }",
-        ),
-        &[],
-    );
-    let b = &j["beliefs"][0];
-    assert_eq!(b["verdict"], "not_met");
-    assert!(
-        b["how"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .any(|h| h.as_str().unwrap().starts_with("shifted down")),
-        "{}",
-        b["how"]
+    assert_missed(
+        "mean = -3.0\nsd = { fit = [0.05, 2.5] }",
+        "distribution = { family = \"beta\", alpha = 20, beta = 20 }",
+        "shifted down",
     );
     // sd bounded below at 1.0 against a narrow belief: too wide, and the sd sits at its bound.
     let j = fit(
