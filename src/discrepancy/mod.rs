@@ -155,10 +155,9 @@ fn walk_sum(t: &Target, q: &[f64], piece: impl Fn(f64, f64, f64, f64) -> f64) ->
             if j < atoms.len() && atoms[j].at == x {
                 let count = q[i..].iter().take_while(|&&v| v == x).count();
                 i += count;
-                let mut ur = Vec::new();
-                t.fc_run(&q[i - 1..i], below, cm, &mut k, &mut ur);
-                let lo = clamp(ur[0]);
-                let hi = clamp((ur[0] + atoms[j].mass).min(1.0));
+                let at = below + cm * t.fc_walk(x, &mut k);
+                let lo = clamp(at);
+                let hi = clamp((at + atoms[j].mass).min(1.0));
                 if lo > pos {
                     let g = c * inv_n;
                     s += piece(pos, lo, g - pos, g - lo);

@@ -47,6 +47,7 @@ pub struct Identifiability {
     /// D along each free hyperparameter, others held at the optimum: (value, D).
     pub profiles: BTreeMap<String, Vec<(f64, f64)>>,
     pub profile_rule: &'static str,
+    /// The largest finite-difference step (η units); steep coordinates use shorter ones.
     pub step: f64,
 }
 
@@ -165,7 +166,9 @@ fn differences(
 
 /// Analyse the objective `obj` (κ ignored) around the optimum `eta`. `pre` is the
 /// Hessian of D at `eta` over every free hyperparameter, when the optimiser has
-/// already computed it there (by [`fd_hessian`], so the numbers are the same).
+/// already computed it there (by [`fd_hessian`] with steps from [`steps_for`]);
+/// without it the analysis takes the same differences itself. `profiles`: trace
+/// the held profiles.
 pub fn analyse(
     obj: &Objective,
     eta: &[f64],
@@ -255,25 +258,26 @@ pub fn analyse(
         }
     }
     // Held profiles across the bounds.
-    let traced = profiles;
-    let mut profiles = BTreeMap::new();
-    for (k, &i) in obj.free.iter().enumerate().filter(|_| traced) {
-        let mut pts = Vec::new();
-        for g in 0..25 {
-            let t = 0.01 + 0.98 * g as f64 / 24.0;
-            let e = crate::numerics::logit(t);
-            let mut x = eta.to_vec();
-            x[k] = e;
-            pts.push((from_eta(&hy[i], e), f(&x)));
+    let mut held = BTreeMap::new();
+    if profiles {
+        for (k, &i) in obj.free.iter().enumerate() {
+            let mut pts = Vec::new();
+            for g in 0..25 {
+                let t = 0.01 + 0.98 * g as f64 / 24.0;
+                let e = crate::numerics::logit(t);
+                let mut x = eta.to_vec();
+                x[k] = e;
+                pts.push((from_eta(&hy[i], e), f(&x)));
+            }
+            held.insert(hy[i].name.clone(), pts);
         }
-        profiles.insert(hy[i].name.clone(), pts);
     }
     Identifiability {
         directions,
         at_bound: at_bound.iter().map(|&k| names[k].clone()).collect(),
         undetermined,
-        profiles,
-        profile_rule: if traced {
+        profiles: held,
+        profile_rule: if profiles {
             "other hyperparameters held at the optimum"
         } else {
             "not traced (batch model folder; `fit` on the row's spec.toml traces them)"

@@ -50,21 +50,14 @@ pub fn trace(obj: &mut Objective, eta0: &[f64], rule: &str) -> Front {
     for &k in &KAPPAS {
         obj.kappa = k * floor;
         if k > 0.0 {
-            let r = simplex::local(
+            x = simplex::restarted(
                 &|e: &[f64]| obj.cost(e),
                 &x,
-                0.3,
-                120 * d + 60,
+                (0.3, 120 * d + 60),
+                (0.05, 60 * d + 30),
                 1e-3 * floor,
-            );
-            let r2 = simplex::local(
-                &|e: &[f64]| obj.cost(e),
-                &r.x,
-                0.05,
-                60 * d + 30,
-                1e-3 * floor,
-            );
-            x = if r2.f <= r.f { r2.x } else { r.x };
+            )
+            .x;
         }
         let h = obj.full(&x);
         let disc = obj.total(&h).unwrap_or(f64::INFINITY);

@@ -91,6 +91,26 @@ pub fn local(
     }
 }
 
+/// Nelder–Mead from `x0` with an initial simplex of size `wide.0` (at most
+/// `wide.1` iterations), restarted from its best point with size `narrow.0` (at
+/// most `narrow.1`): a restart guards against a simplex that collapsed early.
+/// Returns the better of the two searches.
+pub fn restarted(
+    f: &impl Fn(&[f64]) -> f64,
+    x0: &[f64],
+    wide: (f64, u64),
+    narrow: (f64, u64),
+    sd_tol: f64,
+) -> Local {
+    let a = local(f, x0, wide.0, wide.1, sd_tol);
+    let b = local(f, &a.x, narrow.0, narrow.1, sd_tol);
+    if b.f <= a.f {
+        b
+    } else {
+        a
+    }
+}
+
 /// Convenience: best point and value.
 pub fn minimise(
     f: &impl Fn(&[f64]) -> f64,

@@ -122,39 +122,8 @@ impl Target {
             u.extend(q.iter().map(|&x| shift + scale * self.fc_walk(x, k)));
             return;
         }
-        let (lo, hi) = (self.xs[0], self.xs[n - 1]);
-        let (xs, ps, slopes) = (&self.xs[..], &self.ps[..], &self.slopes[..]);
-        // F_c(x) with segment hint k (k never passes the segment holding x).
-        let at = |x: f64, k: &mut usize| -> f64 {
-            if x < lo {
-                return 0.0;
-            }
-            if x >= hi {
-                return 1.0;
-            }
-            // Advance by counting the next four table points at or below x
-            // (values and table interleave at random, so a step-by-step loop
-            // mispredicts on most values).
-            loop {
-                if *k + 5 < n {
-                    let w = &xs[*k + 1..*k + 5];
-                    let a = (w[0] <= x) as usize
-                        + (w[1] <= x) as usize
-                        + (w[2] <= x) as usize
-                        + (w[3] <= x) as usize;
-                    *k += a;
-                    if a < 4 {
-                        break;
-                    }
-                } else {
-                    while *k + 2 < n && xs[*k + 1] <= x {
-                        *k += 1;
-                    }
-                    break;
-                }
-            }
-            ps[*k] + (x - xs[*k]) * slopes[*k]
-        };
+        let xs = &self.xs[..];
+        let at = |x: f64, k: &mut usize| self.table_at(x, k);
         let m = q.len();
         if m < 16 * LANES {
             u.extend(q.iter().map(|&x| shift + scale * at(x, k)));
@@ -185,26 +154,51 @@ impl Target {
 
     /// Continuous CDF F_c by table lookup starting from index hint `k` (advanced).
     #[inline]
-    fn fc_walk(&self, x: f64, k: &mut usize) -> f64 {
+    pub(crate) fn fc_walk(&self, x: f64, k: &mut usize) -> f64 {
         let Some(c) = &self.dist.cont else {
             return 0.0;
         };
-        let n = self.xs.len();
-        if n < 2 {
+        if self.xs.len() < 2 {
             return if x == f64::INFINITY { 1.0 } else { c.cdf(x) };
         }
-        // Beyond the table the CDF is within Φ(−7) ≈ 1.3e-12 of 0 or 1, below the
-        // discrepancy's clamp of u to [1e-12, 1 − 1e-12]: no special function needed.
-        if x < self.xs[0] {
+        self.table_at(x, k)
+    }
+
+    /// The tabulated F_c at x (a table of at least two points), from segment hint
+    /// `k`, which never passes the segment holding x and is left there. Beyond the
+    /// table the CDF is within Φ(−7) ≈ 1.3e-12 of 0 or 1, below the discrepancy's
+    /// clamp of u to [1e-12, 1 − 1e-12]: no special function needed.
+    #[inline(always)]
+    fn table_at(&self, x: f64, k: &mut usize) -> f64 {
+        let (xs, n) = (&self.xs[..], self.xs.len());
+        if x < xs[0] {
             return 0.0;
         }
-        if x >= self.xs[n - 1] {
+        if x >= xs[n - 1] {
             return 1.0;
         }
-        while *k + 2 < n && self.xs[*k + 1] <= x {
-            *k += 1;
+        // Advance by counting the next four table points at or below x (values
+        // and table interleave at random, so a step-by-step loop mispredicts on
+        // most values).
+        loop {
+            if *k + 5 < n {
+                let w = &xs[*k + 1..*k + 5];
+                let a = (w[0] <= x) as usize
+                    + (w[1] <= x) as usize
+                    + (w[2] <= x) as usize
+                    + (w[3] <= x) as usize;
+                *k += a;
+                if a < 4 {
+                    break;
+                }
+            } else {
+                while *k + 2 < n && xs[*k + 1] <= x {
+                    *k += 1;
+                }
+                break;
+            }
         }
-        self.ps[*k] + (x - self.xs[*k]) * self.slopes[*k]
+        self.ps[*k] + (x - xs[*k]) * self.slopes[*k]
     }
 
     /// Visit the events of sorted values `q` (ascending, NaN-free) in order.

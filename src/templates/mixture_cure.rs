@@ -607,19 +607,22 @@ impl Model for MixtureCure {
                     let hz = r.horizon.unwrap_or(1.0);
                     let lh = hz.ln();
                     let (pis, lss) = (&cache[j].1, &cache[j].2);
-                    let ones;
-                    let ks: &[f64] = match self.shape {
-                        Some(s) => &p[s],
-                        None => {
-                            ones = vec![1.0; base.n];
-                            &ones
-                        }
-                    };
-                    // One loop per quantity, so the choice is not made per draw.
+                    // One loop per quantity and shape case, so neither choice is
+                    // made per draw (exponential latency has shape 1).
                     macro_rules! each {
                         ($code:expr) => {
-                            for (i, v) in o.iter_mut().enumerate() {
-                                *v = self.value($code, pis[i], lss[i], ks[i], hz, lh);
+                            match self.shape {
+                                Some(s) => {
+                                    let ks = &p[s];
+                                    for (i, v) in o.iter_mut().enumerate() {
+                                        *v = self.value($code, pis[i], lss[i], ks[i], hz, lh);
+                                    }
+                                }
+                                None => {
+                                    for (i, v) in o.iter_mut().enumerate() {
+                                        *v = self.value($code, pis[i], lss[i], 1.0, hz, lh);
+                                    }
+                                }
                             }
                         };
                     }
