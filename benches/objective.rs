@@ -11,7 +11,7 @@ const EXAMPLE: &str = include_str!("../model-templates/mixture-cure.toml");
 
 fn objective(c: &mut Criterion) {
     let spec = parse(EXAMPLE, None, &Overrides::default()).expect("example parses");
-    let obj = Objective::new(&spec, spec.draws, spec.seed, 0, spec.fit.discrepancy);
+    let obj = Objective::fitting(&spec);
     let eta0 = obj.eta(&obj.full0);
     let mut g = c.benchmark_group("objective");
     g.throughput(Throughput::Elements(spec.draws as u64));

@@ -67,7 +67,7 @@ fn bench(c: &mut Criterion) {
             let mut k = 0u32;
             g.bench_function(format!("{name}/{p}"), |b| {
                 let obj =
-                    obj.get_or_insert_with(|| Objective::new(&s, 4000, 1, 0, Kind::CramerVonMises));
+                    obj.get_or_insert_with(|| Objective::new(&s, 4000, &priorsmith::rng::Plan::fit(1, s.points), Kind::CramerVonMises));
                 b.iter(|| {
                     // A new scale each time, as the optimiser would propose.
                     k += 1;

@@ -4,7 +4,6 @@
 use crate::error::Result;
 use crate::fit::objective::Objective;
 use crate::fit::verdict::{empirical_quantile, PROBS};
-use crate::rng;
 use crate::spec::Spec;
 use serde::Serialize;
 
@@ -27,13 +26,7 @@ pub struct QuantitySummary {
 
 /// Summaries of every belief's quantity at the full hyperparameter vector `h`.
 pub fn summarise(spec: &Spec, h: &[f64]) -> Result<Vec<QuantitySummary>> {
-    let obj = Objective::new(
-        spec,
-        spec.draws,
-        spec.seed,
-        rng::FIT_STREAMS,
-        spec.fit.discrepancy,
-    );
+    let obj = Objective::fitting(spec);
     let sorted = obj.sorted_draws(h)?;
     Ok(spec
         .beliefs

@@ -102,7 +102,7 @@ fn objective_is_never_nan_at_extreme_hyperparameters() {
             kinds.iter().map(move |k| {
                 (
                     format!("{name}/{k:?}"),
-                    Objective::new(s, s.draws, s.seed, 0, *k),
+                    Objective::new(s, s.draws, &s.plan(), *k),
                 )
             })
         })
@@ -127,7 +127,7 @@ fn objective_is_never_nan_at_extreme_hyperparameters() {
                 Err(e) => prop_assert!(false, "{name}: per_belief failed at h = {h:?}: {e}"),
             }
             // The tie-breaking term must not bring NaN in either.
-            let mut o2 = Objective::new(o.spec, 200, 3, 0, o.kind);
+            let mut o2 = Objective::new(o.spec, 200, &priorsmith::rng::Plan::fit(3, o.spec.points), o.kind);
             o2.kappa = if tie { 0.05 } else { 0.0 };
             for c in [o.cost(eta), o2.cost(eta)] {
                 prop_assert!(

@@ -92,7 +92,7 @@ pub fn run(a: &ConflictArgs) -> Result<()> {
     let req = &spec.beliefs[spec.beliefs.len() - 1].request;
     let base = spec
         .model
-        .draw_base(spec.draws, spec.seed, crate::rng::FRESH_STREAMS);
+        .draw_base(spec.draws, &crate::rng::Plan::fresh(spec.seed));
     let mut out = vec![Vec::new()];
     spec.model.simulate(&h, &base, &[req], &mut out)?;
     let obs = read_csv(&a.data, a.arm.as_deref())?;

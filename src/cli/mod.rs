@@ -329,7 +329,7 @@ fn cmd_simulate(a: &SpecArgs, set: &[String], json: bool) -> Result<()> {
     }
     // Validate the values by building the priors.
     spec.model
-        .simulate(&h, &spec.model.draw_base(100, spec.seed, 0), &[], &mut [])?;
+        .simulate(&h, &spec.model.draw_base(100, &spec.plan()), &[], &mut [])?;
     let sums = simulate::summarise(&spec, &h)?;
     if json {
         let names: Vec<&str> = spec.hypers().iter().map(|x| x.name.as_str()).collect();

@@ -6,12 +6,13 @@
 //! symmetric eigen-decomposition (nalgebra). Along an eigenvector v with eigenvalue
 //! μ, moving δ units of η changes D by about μδ²/2, so D rises by one Monte Carlo
 //! noise floor f only after δ* = √(2f/μ): priors closer than δ* cannot be told apart
-//! by the beliefs at this number of draws. A direction is **undetermined** when
-//! δ* > ¼ (a quarter unit of η is about 6 % of a bounded range at its centre),
-//! i.e. when μ/2 < 16f. Determined directions typically have δ* of a few hundredths. The eigenvector names the combination of
-//! hyperparameters (for example log_scale.mean and shape.meanlog moving together).
-//! Hyperparameters at a bound (|η| > 6, within 0.25 % of the range) are reported
-//! separately: there the beliefs push past the allowed range.
+//! by the beliefs. Here f is the reference floor (the independent-draw floor at
+//! 10,000 draws), so δ* does not change with the draws. The eigenvector names the
+//! combination of hyperparameters (for example log_scale.mean and shape.meanlog
+//! moving together). The call — determined, borderline, undetermined, pushed to a
+//! bound — is not taken from δ* but from a profile of D along every weak direction
+//! and every hyperparameter at a bound (|η| > 6, within 0.25 % of the range): see
+//! [`super::profile`].
 //!
 //! Profiles: D along each free hyperparameter over its bounds, the others held at
 //! the optimum (not re-optimised: a held profile shows curvature, not the profile
@@ -32,6 +33,11 @@ pub struct Direction {
     /// δ*: how far (in η units) one can move before D rises by one noise floor.
     pub indistinguishable_halfwidth: f64,
     pub undetermined: bool,
+    /// The call from the profile along the direction (determined without a
+    /// profile when δ* is below [`super::profile::CANDIDATE`]).
+    pub call: super::profile::Call,
+    /// Width of the flat interval on the t scale, when profiled.
+    pub width: Option<f64>,
     /// Eigenvector components by hyperparameter (unit length).
     pub combination: BTreeMap<String, f64>,
     /// E.g. "0.71·log_scale.mean − 0.70·shape.meanlog".
@@ -44,6 +50,12 @@ pub struct Identifiability {
     pub at_bound: Vec<String>,
     /// Hyperparameters with a large share in an undetermined direction.
     pub undetermined: Vec<String>,
+    /// Hyperparameters with a large share in a borderline direction.
+    pub borderline: Vec<String>,
+    /// The profiles behind the calls (weak directions and hyperparameters at a bound).
+    pub lines: Vec<super::profile::Line>,
+    /// The floor the calls are measured in (see [`super::profile`]).
+    pub reference_floor: f64,
     /// D along each free hyperparameter, others held at the optimum: (value, D).
     pub profiles: BTreeMap<String, Vec<(f64, f64)>>,
     pub profile_rule: &'static str,
@@ -53,9 +65,7 @@ pub struct Identifiability {
 
 /// The largest finite-difference step, η units ([`steps_for`] shortens it on steep coordinates).
 pub const STEP: f64 = 0.05;
-/// δ* above which a direction counts as undetermined (η units).
-pub const UNDETERMINED_HALFWIDTH: f64 = 0.25;
-const BOUND_ETA: f64 = 6.0;
+const BOUND_ETA: f64 = super::profile::ETA_LIMIT;
 
 /// Central finite differences of `f` at `x` (with f(x) = `f0`) along the
 /// coordinates `coords`, with step `steps[a]` on coordinate `coords[a]`: the
@@ -177,8 +187,11 @@ pub fn analyse(
 ) -> Identifiability {
     let hy = obj.spec.hypers();
     let names: Vec<String> = obj.free.iter().map(|&i| hy[i].name.clone()).collect();
-    let f = |x: &[f64]| obj.total(&obj.full(x)).unwrap_or(f64::INFINITY);
+    let f = |x: &[f64]| obj.d_at(x);
     let floor = obj.floor();
+    let f_ref = obj.reference_floor();
+    let d0 = f(eta);
+    let mut lines: Vec<super::profile::Line> = Vec::new();
     let at_bound: Vec<usize> = (0..eta.len())
         .filter(|&k| eta[k].abs() > BOUND_ETA)
         .collect();
@@ -197,6 +210,7 @@ pub fn analyse(
     };
     let mut directions = Vec::new();
     let mut undetermined: Vec<String> = Vec::new();
+    let mut borderline: Vec<String> = Vec::new();
     if m > 0 && h.iter().all(|v| v.is_finite()) {
         let eig = SymmetricEigen::new(h);
         let max = eig
@@ -235,14 +249,32 @@ pub fn analyse(
                     parts.push(s);
                 }
             }
-            let floors_per_unit = 0.5 * mu.max(0.0) / floor;
+            let floors_per_unit = 0.5 * mu.max(0.0) / f_ref;
             let halfwidth = 1.0 / floors_per_unit.max(1e-300).sqrt();
-            let und = halfwidth > UNDETERMINED_HALFWIDTH;
-            if und {
+            let description = parts.join(" ");
+            let (call, width) = if halfwidth > super::profile::CANDIDATE {
+                let mut dir = vec![0.0; eta.len()];
+                for a in 0..m {
+                    dir[inner[a]] = sign * v[a];
+                }
+                let mut l = super::profile::line(obj, eta, dir, d0, f_ref);
+                l.description = description.clone();
+                let out = (l.call, Some(l.width));
+                lines.push(l);
+                out
+            } else {
+                (super::profile::Call::Determined, None)
+            };
+            let list = match call {
+                super::profile::Call::Undetermined => Some(&mut undetermined),
+                super::profile::Call::Borderline => Some(&mut borderline),
+                _ => None,
+            };
+            if let Some(list) = list {
                 for (a, c) in &comps {
                     let n = &names[inner[*a]];
-                    if c.abs() >= 0.3 && !undetermined.contains(n) {
-                        undetermined.push(n.clone());
+                    if c.abs() >= 0.3 && !list.contains(n) {
+                        list.push(n.clone());
                     }
                 }
             }
@@ -251,11 +283,25 @@ pub fn analyse(
                 ratio: mu / max,
                 floors_per_unit,
                 indistinguishable_halfwidth: halfwidth,
-                undetermined: und,
+                undetermined: call == super::profile::Call::Undetermined,
+                call,
+                width,
                 combination,
-                description: parts.join(" "),
+                description,
             });
         }
+    }
+    // Hyperparameters at a bound: flat inwards (undetermined) or pushed there.
+    let mut pushed = Vec::new();
+    for &k in &at_bound {
+        let mut l = super::profile::bound_line(obj, eta, k, d0, f_ref);
+        l.description = format!("{} at its {} bound", names[k], if eta[k] > 0.0 { "upper" } else { "lower" });
+        match l.call {
+            super::profile::Call::PushedToBound => pushed.push(names[k].clone()),
+            super::profile::Call::Undetermined => undetermined.push(names[k].clone()),
+            _ => borderline.push(names[k].clone()),
+        }
+        lines.push(l);
     }
     // Held profiles across the bounds.
     let mut held = BTreeMap::new();
@@ -274,8 +320,11 @@ pub fn analyse(
     }
     Identifiability {
         directions,
-        at_bound: at_bound.iter().map(|&k| names[k].clone()).collect(),
+        at_bound: pushed,
         undetermined,
+        borderline,
+        lines,
+        reference_floor: f_ref,
         profiles: held,
         profile_rule: if profiles {
             "other hyperparameters held at the optimum"

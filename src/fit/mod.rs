@@ -12,9 +12,12 @@
 
 pub mod diagnostics;
 pub mod objective;
+pub mod mc_error;
 pub mod pareto;
+pub mod profile;
 pub mod replicate;
 pub mod simplex;
+pub mod tiebreak;
 pub mod verdict;
 
 use crate::discrepancy::Kind;
@@ -84,11 +87,36 @@ pub struct FitResult {
     pub pareto: Option<pareto::Front>,
     /// Spread of the fitted hyperparameters across independent seeds, when asked.
     pub replicates: Option<replicate::Replicates>,
+    /// What set each hyperparameter: beliefs, tie-break, bound, undetermined, fixed.
+    pub set_by: BTreeMap<String, SetBy>,
+    /// Monte Carlo standard error of each free hyperparameter on its own scale
+    /// (null: undetermined and not settled by a tie-break).
+    pub mc_error: BTreeMap<String, Option<f64>>,
+    /// How the number of draws was chosen.
+    pub draws_chosen: DrawsRecord,
     /// Fresh draws of each belief's quantity at the fitted prior (not serialised).
     #[serde(skip)]
     pub draws_fresh: Vec<Vec<f64>>,
     #[serde(skip)]
     pub full: Vec<f64>,
+}
+
+/// How the number of draws was chosen: fixed by the file or the command line, or
+/// raised by precision mode until every determined hyperparameter's Monte Carlo
+/// error met its target.
+#[derive(Debug, Clone, Serialize)]
+pub struct DrawsRecord {
+    /// "fixed" or "precision".
+    pub mode: &'static str,
+    /// The fitting draws' points ("scrambled-sobol" or "independent").
+    pub points: &'static str,
+    /// Precision mode's relative target (its location target is
+    /// min(0.1·δ*, 0.005) on the optimiser's scale).
+    pub target: Option<f64>,
+    /// Each fit made: (draws, largest error / target).
+    pub steps: Vec<(usize, f64)>,
+    /// Whether the last fit met the target (always true in fixed mode).
+    pub reached: bool,
 }
 
 /// Progress callback: (done, total) local searches.
@@ -122,7 +150,7 @@ pub fn optimise(
 ) -> Result<Optimum> {
     let kind = spec.fit.discrepancy;
     let n = spec.draws;
-    let mut full_obj = Objective::new(spec, n, spec.seed, rng::FIT_STREAMS, kind);
+    let mut full_obj = Objective::new(spec, n, &spec.plan(), kind);
     full_obj.kappa = kappa * full_obj.floor();
     let d = full_obj.free.len();
     if d == 0 {
@@ -141,7 +169,7 @@ pub fn optimise(
         });
     }
     let nc = n.min((n / 5).max(2000));
-    let mut coarse = Objective::new(spec, nc, spec.seed, rng::FIT_STREAMS, kind);
+    let mut coarse = Objective::new(spec, nc, &spec.plan(), kind);
     coarse.kappa = kappa * coarse.floor();
 
     // Global stage: the default point, a warm start if given, then a Latin hypercube.
@@ -462,69 +490,237 @@ fn newton(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
     }
 }
 
+/// What set a hyperparameter's value.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum SetBy {
+    /// The beliefs determine it (the optimum).
+    Beliefs,
+    /// The beliefs leave it (nearly) undetermined; the tie-break chose it.
+    TieBreak,
+    /// It sits at a bound: the beliefs push it there, or the tie-break ran to it.
+    Bound,
+    /// Undetermined, and no tie-break ran (`tie_break = "off"`): arbitrary.
+    Undetermined,
+    /// Fixed in the belief file.
+    Fixed,
+}
+
+impl SetBy {
+    pub fn words(&self) -> &'static str {
+        match self {
+            SetBy::Beliefs => "beliefs",
+            SetBy::TieBreak => "tie-break",
+            SetBy::Bound => "bound",
+            SetBy::Undetermined => "undetermined",
+            SetBy::Fixed => "fixed",
+        }
+    }
+}
+
 /// What a single fit produces before judgement.
 pub struct Point {
     pub h: Vec<f64>,
+    /// The optimum before the tie-break (full vector), for warm starts.
+    pub optimum: Vec<f64>,
     pub opt: OptimiserRecord,
     pub ident: diagnostics::Identifiability,
     pub front: Option<pareto::Front>,
     pub tie_break: String,
+    /// Per free hyperparameter: what set it, and its Monte Carlo standard error
+    /// on the optimiser's scale (None: not determined, or not estimated).
+    pub set_by: Vec<SetBy>,
+    pub mc_eta: Vec<Option<f64>>,
+    /// Largest ratio of a determined hyperparameter's Monte Carlo error to its
+    /// precision target (0 when none was estimated).
+    pub worst: f64,
 }
 
-/// Optimise, analyse identifiability, apply the tie-break rule.
+/// Optimise, analyse identifiability, apply the tie-break rule and estimate the
+/// Monte Carlo errors. `warm`: a full hyperparameter vector to add as a start of
+/// the global stage. See [`fit_point_from`] to skip the global stage.
 pub fn fit_point(spec: &Spec, warm: Option<&[f64]>, progress: Option<Progress>) -> Result<Point> {
+    let o = optimise(spec, 0.0, warm, progress)?;
+    settle(spec, o)
+}
+
+/// As [`fit_point`], refining from `start` (a full vector, e.g. the optimum at
+/// fewer draws) by Newton at full draws, without the global stage.
+pub fn fit_point_from(spec: &Spec, start: &[f64]) -> Result<Point> {
+    let obj = Objective::fitting(spec);
+    let d = obj.free.len();
+    let x0 = obj.eta(start);
+    let r = refine(&obj, &obj, &x0, 0.01 * obj.floor(), d);
+    let o = Optimum {
+        h: obj.full(&r.x),
+        eta: r.x,
+        hessian: r.hessian,
+        record: OptimiserRecord {
+            evaluations: obj.evaluations(),
+            starts: 1,
+            coarse_draws: spec.draws,
+            searches: vec![SearchRecord {
+                stage: r.stage,
+                start: 0,
+                cost: r.f,
+                iterations: r.iterations,
+                stop: r.stop,
+            }],
+        },
+    };
+    settle(spec, o)
+}
+
+/// Everything after the optimum: identifiability, tie-break, Monte Carlo errors.
+fn settle(spec: &Spec, o: Optimum) -> Result<Point> {
     use crate::spec::TieBreak;
     let Optimum {
         h: h0,
         eta: eta0,
         hessian,
         record: mut opt,
-    } = optimise(spec, 0.0, warm, progress)?;
+    } = o;
     let mut obj = Objective::fitting(spec);
-    let ident = diagnostics::analyse(
-        &obj,
-        &eta0,
-        hessian.as_ref().map(|h| &h.0),
-        spec.fit.profiles,
-    );
-    let (h, front, how) = match spec.fit.tie_break {
-        TieBreak::Off => (h0, None, "off".to_string()),
-        TieBreak::Auto if ident.undetermined.is_empty() => (h0, None, "off".to_string()),
+    let d = eta0.len();
+    // The Hessian at the optimum: Newton's last, or computed here.
+    let (hess, steps) = match hessian {
+        Some(x) => x,
+        None => {
+            let f = |x: &[f64]| obj.d_at(x);
+            let coords: Vec<usize> = (0..d).collect();
+            let f0 = f(&eta0);
+            let (d0, _) = diagnostics::fd_diagonal(&f, &eta0, &coords, &vec![diagnostics::STEP; d], f0);
+            let diag: Vec<f64> = (0..d).map(|a| d0[(a, a)]).collect();
+            let steps = diagnostics::steps_for(&diag, obj.floor());
+            (diagnostics::fd_hessian(&f, &eta0, &coords, &steps, f0).0, steps)
+        }
+    };
+    let ident = diagnostics::analyse(&obj, &eta0, Some(&hess), spec.fit.profiles);
+    let f_ref = ident.reference_floor;
+    let mut moves = Vec::new();
+    let any_flat = ident.lines.iter().any(|l| l.call.is_flat());
+    let (eta, front, how) = match spec.fit.tie_break {
+        TieBreak::Off => (eta0.clone(), None, "off".to_string()),
+        TieBreak::Auto | TieBreak::Widest if !any_flat => {
+            (eta0.clone(), None, "off".to_string())
+        }
+        TieBreak::Auto | TieBreak::Widest => {
+            let (x, mv) = tiebreak::widest(&obj, &eta0, &hess, &ident.lines, f_ref);
+            moves = mv;
+            let front = spec
+                .fit
+                .trace_front
+                .then(|| pareto::trace(&mut obj, &eta0, "widest"));
+            (x, front, "widest".to_string())
+        }
         TieBreak::Kappa(k) => {
             obj.kappa = k * obj.floor();
-            let d = eta0.len() as u64;
+            let dd = d as u64;
             let r = simplex::local(
                 &|e: &[f64]| obj.cost(e),
                 &eta0,
                 0.3,
-                120 * d + 60,
+                120 * dd + 60,
                 1e-3 * obj.floor(),
             );
-            (obj.full(&r.x), None, format!("kappa {k}"))
+            obj.kappa = 0.0;
+            (r.x, None, format!("kappa {k}"))
         }
-        TieBreak::Knee | TieBreak::Widest | TieBreak::Auto => {
-            let rule = if spec.fit.tie_break == TieBreak::Knee {
-                "knee"
-            } else {
-                "widest"
-            };
-            let f = pareto::trace(&mut obj, &eta0, rule);
-            (
-                f.points[f.chosen].hyperparameters.clone(),
-                Some(f),
-                rule.to_string(),
-            )
+        TieBreak::Knee => {
+            let f = pareto::trace(&mut obj, &eta0, "knee");
+            let x = obj.eta(&f.points[f.chosen].hyperparameters);
+            (x, Some(f), "knee".to_string())
         }
     };
     opt.evaluations += obj.evaluations();
+    // What set each free hyperparameter.
+    let hy = spec.hypers();
+    let names: Vec<&str> = obj.free.iter().map(|&i| hy[i].name.as_str()).collect();
+    let tie_ran = how != "off";
+    let set_by: Vec<SetBy> = (0..d)
+        .map(|k| {
+            let flat = ident
+                .lines
+                .iter()
+                .any(|l| l.call.is_flat() && l.direction[k].abs() >= 0.3);
+            if ident.at_bound.iter().any(|n| n == names[k]) {
+                SetBy::Bound
+            } else if flat && tie_ran {
+                if eta[k].abs() >= profile::ETA_LIMIT - 1e-9 {
+                    SetBy::Bound
+                } else {
+                    SetBy::TieBreak
+                }
+            } else if flat {
+                SetBy::Undetermined
+            } else {
+                SetBy::Beliefs
+            }
+        })
+        .collect();
+    // Monte Carlo errors (the tie-break's only for the direct solve).
+    let inner: Vec<usize> = (0..d)
+        .filter(|&k| eta0[k].abs() <= profile::ETA_LIMIT)
+        .collect();
+    let flat_dirs: Vec<Vec<f64>> = ident
+        .lines
+        .iter()
+        .filter(|l| l.call.is_flat() && l.at_bound.is_none())
+        .map(|l| l.direction.clone())
+        .collect();
+    let mc_eta = if spec.fit.mc_errors && d > 0 {
+        let mv: &[tiebreak::Move] = if how == "widest" { &moves } else { &[] };
+        let mut e = mc_error::errors(spec, spec.draws, &eta, &hess, &steps, &inner, &flat_dirs, mv);
+        for (k, s) in set_by.iter().enumerate() {
+            if *s == SetBy::Bound {
+                e[k] = Some(0.0);
+            } else if *s == SetBy::TieBreak && how != "widest" {
+                e[k] = None;
+            }
+        }
+        e
+    } else {
+        vec![None; d]
+    };
+    // Precision: each determined hyperparameter's error against its target.
+    let rel = spec
+        .precision
+        .map_or(crate::spec::DEFAULT_PRECISION, |p| p.relative);
+    let mut worst: f64 = 0.0;
+    for k in 0..d {
+        if set_by[k] != SetBy::Beliefs {
+            continue;
+        }
+        let Some(se) = mc_eta[k] else { continue };
+        let i = obj.free[k];
+        let target = match hy[i].value {
+            crate::templates::HyperValue::Free { lo, .. } if lo > 0.0 => {
+                let v = objective::from_eta(&hy[i], eta[k]);
+                rel * v / objective::lambda_per_eta(&hy[i], eta[k])
+            }
+            _ => {
+                let dstar = (2.0 * f_ref / hess[(k, k)].max(1e-300)).sqrt();
+                (0.1 * dstar).min(LOCATION_TARGET)
+            }
+        };
+        worst = worst.max(se / target);
+    }
     Ok(Point {
-        h,
+        h: obj.full(&eta),
+        optimum: h0,
         opt,
         ident,
         front,
         tie_break: how,
+        set_by,
+        mc_eta,
+        worst,
     })
 }
+
+/// Largest Monte Carlo error of a determined location hyperparameter (means,
+/// meanlogs), on the optimiser's scale, in precision mode.
+pub const LOCATION_TARGET: f64 = 0.005;
 
 /// Judge hyperparameters `h` on fresh draws and assemble the result.
 pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
@@ -534,11 +730,15 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
         ident,
         front,
         tie_break,
+        set_by,
+        mc_eta,
+        worst,
+        ..
     } = p;
     let kind = spec.fit.discrepancy;
     let n = spec.draws;
-    let fit_obj = Objective::new(spec, n, spec.seed, rng::FIT_STREAMS, kind);
-    let fresh = Objective::new(spec, n, spec.seed, rng::FRESH_STREAMS, kind);
+    let fit_obj = Objective::new(spec, n, &spec.plan(), kind);
+    let fresh = Objective::new(spec, n, &rng::Plan::fresh(spec.seed), kind);
     let d_in = fit_obj.per_belief(&h, kind)?;
     let sorted = fresh.sorted_draws(&h)?;
     let cvm_floor: Vec<f64> = spec
@@ -609,6 +809,33 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
         wall_time_s: started.elapsed().as_secs_f64(),
         prior: spec.model.priors(&h),
         tool_version: env!("CARGO_PKG_VERSION").to_string(),
+        set_by: hy
+            .iter()
+            .map(|x| {
+                let s = match free_pos(&fit_obj.free, hy, &x.name) {
+                    Some(k) => set_by[k],
+                    None => SetBy::Fixed,
+                };
+                (x.name.clone(), s)
+            })
+            .collect(),
+        mc_error: fit_obj
+            .free
+            .iter()
+            .enumerate()
+            .map(|(k, &i)| {
+                let e = objective::to_eta(&hy[i], h[i]);
+                let se = mc_eta[k].map(|s| s * objective::lambda_per_eta(&hy[i], e));
+                (hy[i].name.clone(), se)
+            })
+            .collect(),
+        draws_chosen: DrawsRecord {
+            mode: if spec.precision.is_some() { "precision" } else { "fixed" },
+            points: spec.points.name(),
+            target: spec.precision.map(|p| p.relative),
+            steps: vec![(n, worst)],
+            reached: spec.precision.is_none() || worst <= 1.0,
+        },
         identifiability: ident,
         tie_break,
         pareto: front,
@@ -618,11 +845,45 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
     })
 }
 
+/// Index among the free hyperparameters of `name`.
+fn free_pos(free: &[usize], hy: &[crate::templates::Hyper], name: &str) -> Option<usize> {
+    free.iter().position(|&i| hy[i].name == name)
+}
+
+/// The next number of draws in precision mode: assume the error falls like
+/// N^(−3/4) (between plain Monte Carlo's N^(−1/2) and the N^(−1) that scrambled
+/// Sobol points reach on smooth quantities), round up to a power of two, at
+/// least double and at most ×16, within `max`.
+pub fn next_draws(n: usize, worst: f64, max: usize) -> usize {
+    let factor = worst.powf(4.0 / 3.0).clamp(2.0, 16.0);
+    let next = (n as f64 * factor).log2().ceil().exp2() as usize;
+    next.min(max)
+}
+
 /// Fit `spec` end to end (with replicate fits when `spec.fit.replicates > 0`).
+/// In precision mode the draws are raised (each refit starting from the previous
+/// optimum) until every determined hyperparameter meets its precision target or
+/// the cap is reached.
 pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     let started = Instant::now();
     use crate::spec::TieBreak;
-    let point = fit_point(spec, None, progress)?;
+    let mut point = fit_point(spec, None, progress)?;
+    let mut steps = vec![(spec.draws, point.worst)];
+    let mut raised: Option<Spec> = None;
+    if let Some(p) = spec.precision {
+        let mut n = spec.draws;
+        while point.worst > 1.0 && n < p.max_draws {
+            let mut s = spec.clone();
+            n = next_draws(n, point.worst, p.max_draws);
+            s.draws = n;
+            let evaluations = point.opt.evaluations;
+            point = fit_point_from(&s, &point.optimum)?;
+            point.opt.evaluations += evaluations;
+            steps.push((n, point.worst));
+            raised = Some(s);
+        }
+    }
+    let spec = raised.as_ref().unwrap_or(spec);
     let applied = match (&point.front, spec.fit.tie_break) {
         (_, TieBreak::Kappa(k)) => TieBreak::Kappa(k),
         (Some(f), _) if f.rule == "knee" => TieBreak::Knee,
@@ -630,6 +891,8 @@ pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
         (None, _) => TieBreak::Off,
     };
     let mut r = assemble(spec, point, started)?;
+    r.draws_chosen.steps = steps;
+    r.draws_chosen.reached = spec.precision.is_none() || r.draws_chosen.steps.last().is_some_and(|s| s.1 <= 1.0);
     if spec.fit.replicates > 0 {
         r.replicates = Some(replicate::run(spec, spec.fit.replicates, applied)?);
         r.wall_time_s = started.elapsed().as_secs_f64();

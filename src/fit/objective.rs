@@ -1,5 +1,6 @@
 //! The deterministic objective D(λ) = Σ_r w_r d(P_λ,r, T_r) / Σ_r w_r on common
-//! random numbers (DESIGN.md §3).
+//! random numbers: the base variates are drawn once per fit, so D is a
+//! deterministic, continuous function of λ.
 //!
 //! Base variates are drawn once; each evaluation maps them through the prior at λ,
 //! computes every belief's quantity, sorts it (a quantity monotone in one base
@@ -16,6 +17,10 @@ use crate::spec::Spec;
 use crate::templates::{BaseDraws, Hyper, HyperValue, Request};
 use std::cell::RefCell;
 use std::sync::atomic::{AtomicU64, Ordering};
+
+/// Draws whose independent-draw noise floor is the reference floor
+/// ([`Objective::reference_floor`]).
+pub const REFERENCE_DRAWS: usize = 10_000;
 
 /// Weight of the pull towards the reference in the secondary objective.
 pub const PULL: f64 = 0.5;
@@ -70,6 +75,22 @@ pub fn from_eta(h: &Hyper, eta: f64) -> f64 {
             }
         }
         HyperValue::Fixed(v) => v,
+    }
+}
+
+/// dλ/dη of hyperparameter `h` at η (0 for a fixed one).
+pub fn lambda_per_eta(h: &Hyper, eta: f64) -> f64 {
+    match h.value {
+        HyperValue::Free { lo, hi, .. } => {
+            let t = logistic(eta.clamp(-30.0, 30.0));
+            let w = t * (1.0 - t);
+            if h.log_scale {
+                from_eta(h, eta) * (hi.ln() - lo.ln()) * w
+            } else {
+                (hi - lo) * w
+            }
+        }
+        HyperValue::Fixed(_) => 0.0,
     }
 }
 
@@ -141,12 +162,12 @@ fn gather_if_sorted(q: &[f64], order: &[u32], s: &mut Vec<f64>) -> bool {
 }
 
 impl<'a> Objective<'a> {
-    pub fn new(spec: &'a Spec, n: usize, seed: u64, block: u64, kind: Kind) -> Self {
+    pub fn new(spec: &'a Spec, n: usize, plan: &crate::rng::Plan, kind: Kind) -> Self {
         let hypers = spec.hypers();
         let total: f64 = spec.beliefs.iter().map(|b| b.weight).sum();
         Objective {
             spec,
-            base: spec.model.draw_base(n, seed, block),
+            base: spec.model.draw_base(n, plan),
             free: spec.free(),
             full0: hypers.iter().map(Hyper::default_value).collect(),
             reqs: spec.beliefs.iter().map(|b| &b.request).collect(),
@@ -166,13 +187,7 @@ impl<'a> Objective<'a> {
     /// The fitting objective of `spec`: its draws, its seed, the fitting streams,
     /// its discrepancy.
     pub fn fitting(spec: &'a Spec) -> Self {
-        Self::new(
-            spec,
-            spec.draws,
-            spec.seed,
-            crate::rng::FIT_STREAMS,
-            spec.fit.discrepancy,
-        )
+        Self::new(spec, spec.draws, &spec.plan(), spec.fit.discrepancy)
     }
 
     pub fn n(&self) -> usize {
@@ -190,6 +205,27 @@ impl<'a> Objective<'a> {
             .zip(&self.weights)
             .map(|(f, w)| f * w)
             .sum()
+    }
+
+    /// The reference floor: the weighted noise floor of D for [`REFERENCE_DRAWS`]
+    /// independent draws, whatever draws or points this objective uses. The
+    /// identifiability calls and the tie-break measure "indistinguishable" in it,
+    /// so they do not change when the draws change.
+    pub fn reference_floor(&self) -> f64 {
+        self.spec
+            .beliefs
+            .iter()
+            .zip(&self.weights)
+            .map(|(b, w)| w * noise_floor(self.kind, &b.target, REFERENCE_DRAWS))
+            .sum()
+    }
+
+    /// D at η (κ ignored); +∞ when undefined.
+    pub fn d_at(&self, eta: &[f64]) -> f64 {
+        self.total(&self.full(eta))
+            .ok()
+            .filter(|d| d.is_finite())
+            .unwrap_or(f64::INFINITY)
     }
 
     pub fn full(&self, eta: &[f64]) -> Vec<f64> {

@@ -123,6 +123,48 @@ pub fn minimise(
     (r.x, r.f)
 }
 
+/// A one-dimensional closure for argmin's Brent minimiser.
+struct Scalar<'a, F: Fn(f64) -> f64>(&'a F);
+
+impl<F: Fn(f64) -> f64> CostFunction for Scalar<'_, F> {
+    type Param = f64;
+    type Output = f64;
+    fn cost(&self, p: &f64) -> Result<f64, argmin::core::Error> {
+        let v = (self.0)(*p);
+        Ok(if v.is_nan() { f64::INFINITY } else { v })
+    }
+}
+
+/// Minimise `f` on [lo, hi] with Brent's method (argmin 0.11 `BrentOpt`:
+/// parabolic interpolation with golden-section safeguards), to an absolute
+/// tolerance `tol` in x; returns (x, f(x)), or the better end when it fails.
+pub fn brent_min(f: &impl Fn(f64) -> f64, lo: f64, hi: f64, tol: f64, max_iters: u64) -> (f64, f64) {
+    use argmin::solver::brent::BrentOpt;
+    let solver = BrentOpt::new(lo, hi).set_tolerance(1e-8, tol);
+    let run = Executor::new(Scalar(f), solver)
+        .configure(|s| s.max_iters(max_iters))
+        .run();
+    match run {
+        Ok(r) => {
+            let st = r.state();
+            match (st.get_best_param(), st.get_best_cost()) {
+                (Some(x), c) if c.is_finite() => (*x, c),
+                _ => ends(f, lo, hi),
+            }
+        }
+        Err(_) => ends(f, lo, hi),
+    }
+}
+
+fn ends(f: &impl Fn(f64) -> f64, lo: f64, hi: f64) -> (f64, f64) {
+    let (a, b) = (f(lo), f(hi));
+    if a <= b {
+        (lo, a)
+    } else {
+        (hi, b)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -22,7 +22,14 @@ use std::sync::Arc;
 /// Upper limit on draws unless raised deliberately (`--max-draws`); documented in
 /// the README. 2,000,000 draws × a few quantities is a few hundred MB.
 pub const MAX_DRAWS: usize = 2_000_000;
-pub const DEFAULT_DRAWS: usize = 20_000;
+/// Draws of the first fit in precision mode (no `draws` given): 2¹³.
+pub const DEFAULT_DRAWS: usize = 1 << 13;
+/// Largest number of draws precision mode raises a fit to, unless `--max-draws`
+/// is lower: 2¹⁸.
+pub const PRECISION_MAX_DRAWS: usize = 1 << 18;
+/// Default precision target: the Monte Carlo standard error of each determined
+/// scale hyperparameter at most this fraction of its value.
+pub const DEFAULT_PRECISION: f64 = 0.0015;
 pub const DEFAULT_SEED: u64 = 1;
 
 /// One validated belief: what quantity, at which profile, believed how.
@@ -56,6 +63,12 @@ pub struct FitOptions {
     /// Trace the held profiles of the identifiability analysis (for the report).
     /// Not a belief-file key: `batch` turns it off for lean model folders.
     pub profiles: bool,
+    /// Trace the Pareto front of discrepancy against spread even when the
+    /// tie-break is solved directly (`[fit] trace_front = true`).
+    pub trace_front: bool,
+    /// Estimate the Monte Carlo error of every hyperparameter (not a file key:
+    /// lean batch folders skip it).
+    pub mc_errors: bool,
 }
 
 /// Local searches of the global stage unless `[fit] searches` says otherwise.
@@ -91,8 +104,24 @@ pub struct Spec {
     pub model: Arc<dyn Model>,
     pub draws: usize,
     pub seed: u64,
+    /// How the fitting draws are generated (`[simulation] points`).
+    pub points: crate::rng::Points,
+    /// Precision mode: raise the draws until every determined hyperparameter's
+    /// Monte Carlo error meets the target (`None` when `draws` was given).
+    pub precision: Option<Precision>,
     pub beliefs: Vec<Belief>,
     pub fit: FitOptions,
+}
+
+/// Precision mode's target and cap (see `fit::precision`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Precision {
+    /// Largest relative Monte Carlo standard error of a determined scale
+    /// hyperparameter (a location one: a tenth of its δ*, at most 0.005 on the
+    /// optimiser's scale).
+    pub relative: f64,
+    /// Largest number of draws to raise to.
+    pub max_draws: usize,
 }
 
 impl std::fmt::Debug for Spec {
@@ -109,6 +138,10 @@ impl std::fmt::Debug for Spec {
 impl Spec {
     pub fn hypers(&self) -> &[Hyper] {
         self.model.hypers()
+    }
+    /// The plan of the fitting draws.
+    pub fn plan(&self) -> crate::rng::Plan {
+        crate::rng::Plan::fit(self.seed, self.points)
     }
     pub fn free(&self) -> Vec<usize> {
         self.hypers()
@@ -457,10 +490,44 @@ pub fn from_table(
         Some(v) => ctx.count(&sp("draws"), v)? as usize,
         None => DEFAULT_DRAWS,
     };
+    let explicit = sim.and_then(|s| s.draws.as_ref()).is_some() || ov.draws.is_some();
     if let Some(d) = ov.draws {
         draws = d;
     }
     let cap = ov.max_draws.unwrap_or(MAX_DRAWS);
+    let points = match sim.and_then(|s| s.points.as_deref()) {
+        Some(s) => crate::rng::Points::parse(s).ok_or_else(|| {
+            ctx.err(&sp("points"), format!("unknown points \"{s}\""))
+                .with_hint(choice_hint(s, &crate::rng::Points::NAMES))
+        })?,
+        None => crate::rng::Points::ScrambledSobol,
+    };
+    let precision = match sim.and_then(|s| s.precision.as_ref()) {
+        Some(_) if explicit => {
+            return Err(ctx
+                .err(&sp("precision"), "`precision` chooses the draws itself: give it or `draws`, not both")
+                .with_hint("remove `draws` (and --draws) to let precision mode choose them"))
+        }
+        Some(v) => {
+            let r = ctx.positive(&sp("precision"), v)?;
+            if !(1e-5..=0.1).contains(&r) {
+                return Err(ctx.err(
+                    &sp("precision"),
+                    format!("precision = {r} must be between 0.00001 and 0.1 (a relative standard error)"),
+                ));
+            }
+            Some(r)
+        }
+        None if explicit => None,
+        None => Some(DEFAULT_PRECISION),
+    };
+    let precision = precision.map(|relative| Precision {
+        relative,
+        max_draws: cap.min(PRECISION_MAX_DRAWS).max(draws),
+    });
+    if precision.is_some() && cap < draws {
+        draws = cap;
+    }
     if draws < 100 {
         return Err(ctx
             .err(
@@ -546,6 +613,16 @@ pub fn from_table(
         )));
     }
 
+    // Precision mode raises the draws only as far as the memory budget allows.
+    let precision = precision.map(|mut p| {
+        while p.max_draws > draws
+            && model.working_bytes(p.max_draws).0 > crate::limits::max_memory_bytes()
+        {
+            p.max_draws = (p.max_draws / 2).max(draws);
+        }
+        p
+    });
+
     // [fit]
     let f = raw.fit.as_ref();
     let fp = |k: &str| [key("fit"), key(k)];
@@ -615,6 +692,16 @@ pub fn from_table(
         }
         None => TieBreak::Auto,
     };
+    let trace_front = match f.and_then(|f| f.trace_front.as_ref()) {
+        Some(toml::Value::Boolean(b)) => *b,
+        Some(v) => {
+            return Err(ctx.err(
+                &fp("trace_front"),
+                format!("trace_front must be true or false, not {v}"),
+            ))
+        }
+        None => false,
+    };
     let replicates = match f.and_then(|f| f.replicates.as_ref()) {
         Some(v) => ctx.count(&fp("replicates"), v)? as usize,
         None => 0,
@@ -654,6 +741,8 @@ pub fn from_table(
         model,
         draws,
         seed,
+        points,
+        precision,
         beliefs,
         fit: FitOptions {
             discrepancy,
@@ -664,6 +753,8 @@ pub fn from_table(
             replicates,
             reference,
             profiles: true,
+            trace_front,
+            mc_errors: true,
         },
     })
 }

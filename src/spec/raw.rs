@@ -27,6 +27,8 @@ pub struct RawSpec {
 pub struct RawSimulation {
     pub draws: Option<toml::Value>,
     pub seed: Option<toml::Value>,
+    pub points: Option<String>,
+    pub precision: Option<toml::Value>,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -85,4 +87,5 @@ pub struct RawFit {
     pub tie_break: Option<toml::Value>,
     pub reference: Option<toml::Table>,
     pub replicates: Option<toml::Value>,
+    pub trace_front: Option<toml::Value>,
 }

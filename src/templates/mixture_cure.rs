@@ -551,10 +551,10 @@ impl Model for MixtureCure {
         })
     }
 
-    fn draw_base(&self, n: usize, seed: u64, block: u64) -> BaseDraws {
+    fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws {
         BaseDraws {
             n,
-            cols: self.priors.draw_base(n, seed, block),
+            cols: self.priors.draw_base(n, plan),
             extra: None,
         }
     }

@@ -151,8 +151,8 @@ pub trait Model: Send + Sync {
     fn hypers(&self) -> &[Hyper];
     /// Validate a belief's quantity and its options (horizon, profile …).
     fn request(&self, ctx: &Ctx, path: &[Seg], quantity: &str, raw: &RawBelief) -> Result<Request>;
-    /// Base variates for `n` draws from `seed`, stream block `block`.
-    fn draw_base(&self, n: usize, seed: u64, block: u64) -> BaseDraws;
+    /// Base variates for `n` draws from the streams (and points) of `plan`.
+    fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws;
     /// Draws of each requested quantity at hyperparameters `h` (full vector).
     /// `out[r]` has length `base.n` on return.
     fn simulate(

@@ -121,13 +121,13 @@ impl PriorSet {
     }
 
     /// One base column per prior, of the family's base kind.
-    pub fn draw_base(&self, n: usize, seed: u64, block: u64) -> Vec<Vec<f64>> {
+    pub fn draw_base(&self, n: usize, plan: &rng::Plan) -> Vec<Vec<f64>> {
         self.priors
             .iter()
             .enumerate()
             .map(|(k, p)| match p.family.base {
-                Base::Normal => rng::normals(seed, block + k as u64, n),
-                Base::Uniform => rng::uniforms(seed, block + k as u64, n),
+                Base::Normal => plan.normals(k as u64, n),
+                Base::Uniform => plan.uniforms(k as u64, n),
             })
             .collect()
     }

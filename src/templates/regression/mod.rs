@@ -138,11 +138,11 @@ pub struct Regression {
     sigma: Option<(usize, bool)>,
     pub coef: CoefPrior,
     needs: Mutex<Needs>,
-    /// The last regularised-horseshoe table, keyed by (seed, block): a later set of
+    /// The last regularised-horseshoe table, keyed by the draw plan: a later set of
     /// base draws with the same streams and no more draws uses its first rows
     /// (draw i depends only on its own streams), so the coarse and refit bases of a
     /// fit share the full base's set-up.
-    tables: Mutex<Option<(u64, u64, Arc<table::Table>)>>,
+    tables: Mutex<Option<(rng::Plan, Arc<table::Table>)>>,
 }
 
 /// λ-free work cached per set of base draws.
@@ -245,15 +245,14 @@ impl Regression {
         cols: &[Vec<f64>],
         z: &[f64],
         loc: &[f64],
-        seed: u64,
-        block: u64,
+        plan: &rng::Plan,
     ) -> Option<Arc<table::Table>> {
         let c = &self.coef;
         let hy = &self.priors.hypers;
         let n = cols[cols.len() - 3].len();
         if let Ok(g) = self.tables.lock() {
-            if let Some((s, b, t)) = g.as_ref() {
-                if *s == seed && *b == block && t.draws >= n {
+            if let Some((p, t)) = g.as_ref() {
+                if p == plan && t.draws >= n {
                     return Some(t.clone());
                 }
             }
@@ -282,7 +281,7 @@ impl Regression {
         }
         let t = Arc::new(table::Table::build(&self.design, &a, z, loc, ulo, uhi)?);
         if let Ok(mut g) = self.tables.lock() {
-            *g = Some((seed, block, t.clone()));
+            *g = Some((*plan, t.clone()));
         }
         Some(t)
     }
@@ -543,11 +542,12 @@ impl Model for Regression {
         })
     }
 
-    fn draw_base(&self, n: usize, seed: u64, block: u64) -> BaseDraws {
-        let mut cols = self.priors.draw_base(n, seed, block);
-        cols.push(rng::uniforms(seed, block + coef::GLOBAL_STREAM, n));
-        cols.push(rng::uniforms(seed, block + coef::SLAB_STREAM, n));
-        cols.push(rng::uniforms(seed, block + coef::R2_STREAM, n));
+    fn draw_base(&self, n: usize, plan: &rng::Plan) -> BaseDraws {
+        let (seed, block) = (plan.seed, plan.block);
+        let mut cols = self.priors.draw_base(n, plan);
+        cols.push(plan.uniforms(coef::GLOBAL_STREAM, n));
+        cols.push(plan.uniforms(coef::SLAB_STREAM, n));
+        cols.push(plan.uniforms(coef::R2_STREAM, n));
         let needs = self.needs.lock().map(|g| g.clone()).unwrap_or_default();
         let sparse: Vec<Vec<(usize, f64)>> = needs.forms.iter().map(|f| f.1.clone()).collect();
         let p = self.design.cols();
@@ -592,8 +592,8 @@ impl Model for Regression {
                 .for_each(|(i, (z, l))| c.base_draw(d, seed, block, i, z, l));
             // Bases on the fresh streams only judge the fitted point (one or two
             // evaluations): the exact products are cheaper there than a table.
-            if needs.q && !needs.rows && block & rng::FRESH_STREAMS == 0 {
-                ex.table = self.tabulate(&h0, &cols, &ex.z, &ex.loc, seed, block);
+            if needs.q && !needs.rows && !plan.is_fresh() {
+                ex.table = self.tabulate(&h0, &cols, &ex.z, &ex.loc, plan);
                 if ex.table.is_some() {
                     let mut unit = h0.clone();
                     unit[c.idx[1]] = 1.0;
@@ -963,7 +963,7 @@ mod tests {
     }
 
     fn draws(s: &Spec, h: &[f64], n: usize) -> Vec<Vec<f64>> {
-        let base = s.model.draw_base(n, s.seed, 0);
+        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let reqs: Vec<&Request> = s.beliefs.iter().map(|b| &b.request).collect();
         let mut out = vec![Vec::new(); reqs.len()];
         s.model.simulate(h, &base, &reqs, &mut out).unwrap();
@@ -1027,7 +1027,7 @@ distribution = { family = "beta", alpha = 2, beta = 5 }
         let s = spec(R2D2);
         let n = 20_000;
         let x = draws(&s, &h0(&s), n).remove(0);
-        let base = s.model.draw_base(n, s.seed, 0);
+        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let u = &base.cols[2 + 2];
         let b = crate::dist::beta::Beta::new(2.0, 5.0).unwrap();
         for i in (0..n).step_by(997) {
@@ -1236,7 +1236,7 @@ quantiles = { "0.1" = 0.5, "0.5" = 1, "0.9" = 2 }
         let h = h0(&s);
         let n = 300;
         let x = draws(&s, &h, n);
-        let base = s.model.draw_base(n, s.seed, 0);
+        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let z0: Vec<f64> = base.cols[0].clone();
         let alpha: Vec<f64> = z0.iter().map(|z| -1.5 + 0.8 * z).collect();
         let d = crate::design::synthetic_rows(
@@ -1379,7 +1379,7 @@ distribution = { family = "half-normal", scale = 10.0 }
 "#;
         let s = spec(text);
         let n = 400;
-        let base = s.model.draw_base(n, s.seed, 0);
+        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let ex = base
             .extra
             .as_ref()
@@ -1387,7 +1387,7 @@ distribution = { family = "half-normal", scale = 10.0 }
             .downcast_ref::<RegBase>()
             .unwrap();
         assert!(ex.table.is_some(), "the table is built");
-        let mut exact = s.model.draw_base(n, s.seed, 0);
+        let mut exact = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         exact
             .extra
             .as_mut()

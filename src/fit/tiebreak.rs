@@ -1,0 +1,291 @@
+//! The tie-break, solved directly: among priors the beliefs cannot tell apart,
+//! the widest.
+//!
+//! For every direction v the profile ([`super::profile`]) calls undetermined or
+//! borderline, the prior moves along the **valley floor** of D in the direction
+//! in which the secondary objective S falls (the wider prior; see
+//! `Objective::secondary`) until D has risen by the reference floor above its
+//! optimum: at each trial point the determined directions (eigenvectors of the
+//! Hessian at the optimum, curvature μ) are re-minimised by a Newton step
+//! a = −g/μ, so the end point lies on the curve of best fits along v, not on a
+//! straight line through wherever the optimiser happened to stop. That curve and
+//! the floor do not depend on the seed beyond Monte Carlo error, so neither does
+//! the chosen prior: a constrained solve (the widest prior on the valley floor
+//! whose discrepancy is within one reference floor of the best) with no front of
+//! κ values to trace. The edge is bracketed by doubling steps and found by the
+//! Illinois variant of regula falsi. With k > 1 flat directions they are settled
+//! one after another, each with a budget of 1/k reference floor.
+
+use super::objective::Objective;
+use super::profile::ETA_LIMIT;
+use nalgebra::{DMatrix, SymmetricEigen};
+use rayon::prelude::*;
+use serde::Serialize;
+
+/// One move of the tie-break along a flat direction.
+#[derive(Debug, Clone, Serialize)]
+pub struct Move {
+    /// Start of the move (η).
+    pub from: Vec<f64>,
+    /// End of the move (η).
+    pub to: Vec<f64>,
+    /// Unit tangent of the valley floor at the end, towards where it went.
+    pub tangent: Vec<f64>,
+    /// The flat direction (unit) the distance is measured along.
+    pub direction: Vec<f64>,
+    /// Distance moved along the flat direction, η units (0 when it stayed).
+    pub distance: f64,
+    /// The end is the edge of the range, not where D rose by the budget.
+    pub open: bool,
+    /// dD/ds along the valley floor at the end (0 when open or when it stayed).
+    pub slope: f64,
+}
+
+/// A determined eigen-direction: unit vector, curvature, difference step.
+struct Stiff {
+    u: Vec<f64>,
+    mu: f64,
+    h: f64,
+}
+
+/// Settle the flat lines of `lines` from the optimum `eta0`, with `hess` the
+/// Hessian of D over the free hyperparameters there; returns the new η and the
+/// moves made.
+pub fn widest(
+    obj: &Objective,
+    eta0: &[f64],
+    hess: &DMatrix<f64>,
+    lines: &[super::profile::Line],
+    f_ref: f64,
+) -> (Vec<f64>, Vec<Move>) {
+    let flat: Vec<&super::profile::Line> = lines.iter().filter(|l| l.call.is_flat()).collect();
+    let k = flat.len();
+    let d = eta0.len();
+    let inner: Vec<usize> = (0..d).filter(|&a| eta0[a].abs() <= ETA_LIMIT).collect();
+    let m = inner.len();
+    // Determined eigen-directions of the Hessian over the coordinates inside the range.
+    let mut stiff = Vec::new();
+    let floor = obj.floor();
+    if m > 0 {
+        let hi = DMatrix::from_fn(m, m, |a, b| hess[(inner[a], inner[b])]);
+        if hi.iter().all(|v| v.is_finite()) {
+            let eig = SymmetricEigen::new(hi);
+            for j in 0..m {
+                let mut u = vec![0.0; d];
+                for a in 0..m {
+                    u[inner[a]] = eig.eigenvectors[(a, j)];
+                }
+                let mu = eig.eigenvalues[j];
+                let along_flat = flat.iter().any(|l| {
+                    let dot: f64 = u.iter().zip(&l.direction).map(|(p, q)| p * q).sum();
+                    dot.abs() > 0.7
+                });
+                if mu > 2.0 * floor && !along_flat {
+                    let h = (8.0 * floor / mu).sqrt().clamp(1e-3, super::diagnostics::STEP);
+                    stiff.push(Stiff { u, mu, h });
+                }
+            }
+        }
+    }
+    let mut x = eta0.to_vec();
+    let mut moves = Vec::new();
+    for l in flat {
+        let mut v = l.direction.clone();
+        // Newton leaves flat directions alone, so the optimum may sit anywhere
+        // in the flat interval: first find the lowest point of the valley floor
+        // along v, so that "within one floor of the best" is measured from the
+        // best, not from wherever the optimiser stopped.
+        x = valley_min(obj, &x, &v, &stiff, -l.minus.distance, l.plus.distance);
+        // Which way is wider?
+        let probe = |s: f64| {
+            let y: Vec<f64> = x.iter().zip(&v).map(|(a, c)| a + s * c).collect();
+            obj.secondary(&obj.full(&y))
+        };
+        if probe(0.02) > probe(-0.02) {
+            v.iter_mut().for_each(|c| *c = -*c);
+        }
+        let mv = valley_edge(obj, &x, &v, &stiff, f_ref / k as f64);
+        if obj.secondary(&obj.full(&mv.to)) < obj.secondary(&obj.full(&x)) {
+            x = mv.to.clone();
+            moves.push(mv);
+        } else {
+            moves.push(Move {
+                from: x.clone(),
+                to: x.clone(),
+                tangent: v.clone(),
+                direction: v,
+                distance: 0.0,
+                open: false,
+                slope: 0.0,
+            });
+        }
+    }
+    (x, moves)
+}
+
+/// The lowest point of the valley floor through `x` along `v`, over
+/// s ∈ [lo, hi] (Brent's method on the corrected D, to 0.02 η units).
+fn valley_min(obj: &Objective, x: &[f64], v: &[f64], stiff: &[Stiff], lo: f64, hi: f64) -> Vec<f64> {
+    if hi - lo < 1e-6 {
+        return x.to_vec();
+    }
+    let at = |s: f64| -> Vec<f64> { x.iter().zip(v).map(|(a, c)| a + s * c).collect() };
+    let f = |s: f64| correct(obj, &at(s), stiff).1;
+    let (s, fs) = super::simplex::brent_min(&f, lo, hi, 0.02, 40);
+    if fs < obj.d_at(x) {
+        correct(obj, &at(s), stiff).0
+    } else {
+        x.to_vec()
+    }
+}
+
+/// Re-minimise D over the determined directions from `y` by one Newton step
+/// (differences in parallel); keeps `y` when the step does not lower D.
+fn correct(obj: &Objective, y: &[f64], stiff: &[Stiff]) -> (Vec<f64>, f64) {
+    let fy = obj.d_at(y);
+    if stiff.is_empty() {
+        return (y.to_vec(), fy);
+    }
+    let at = |u: &[f64], s: f64| -> Vec<f64> { y.iter().zip(u).map(|(a, c)| a + s * c).collect() };
+    let steps: Vec<f64> = stiff
+        .par_iter()
+        .map(|st| {
+            let g = (obj.d_at(&at(&st.u, st.h)) - obj.d_at(&at(&st.u, -st.h))) / (2.0 * st.h);
+            (-g / st.mu).clamp(-0.5, 0.5)
+        })
+        .collect();
+    let mut z = y.to_vec();
+    for (st, a) in stiff.iter().zip(&steps) {
+        for (zi, ui) in z.iter_mut().zip(&st.u) {
+            *zi += a * ui;
+        }
+    }
+    if z.iter().any(|e| e.abs() > ETA_LIMIT) {
+        return (y.to_vec(), fy);
+    }
+    let fz = obj.d_at(&z);
+    if fz < fy {
+        (z, fz)
+    } else {
+        (y.to_vec(), fy)
+    }
+}
+
+/// Follow the valley floor from `x0` along `v` until D rises by `budget` above
+/// D(x0), or to the edge of the range.
+fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: f64) -> Move {
+    let d0 = obj.d_at(x0);
+    let limit = v
+        .iter()
+        .zip(x0)
+        .filter(|(c, _)| c.abs() > 1e-12)
+        .map(|(c, e)| {
+            if *c > 0.0 {
+                (ETA_LIMIT - e) / c
+            } else {
+                (-ETA_LIMIT - e) / c
+            }
+        })
+        .fold(f64::INFINITY, f64::min)
+        .max(0.0);
+    // A probe at distance s, starting from the corrected point `base` at `s_base`.
+    let probe = |base: &[f64], s_base: f64, s: f64| -> (Vec<f64>, f64) {
+        let y: Vec<f64> = base.iter().zip(v).map(|(a, c)| a + (s - s_base) * c).collect();
+        let (z, fz) = correct(obj, &y, stiff);
+        (z, fz - d0 - budget)
+    };
+    let stay = Move {
+        from: x0.to_vec(),
+        to: x0.to_vec(),
+        tangent: v.to_vec(),
+        direction: v.to_vec(),
+        distance: 0.0,
+        open: false,
+        slope: 0.0,
+    };
+    if limit <= 1e-9 {
+        return stay;
+    }
+    // Bracket: doubling steps along the floor.
+    let (mut s_lo, mut p_lo, mut r_lo) = (0.0, x0.to_vec(), -budget);
+    let mut s = 0.1f64.min(limit);
+    let (mut s_hi, mut p_hi, mut r_hi);
+    loop {
+        let (p, r) = probe(&p_lo, s_lo, s);
+        if r > 0.0 {
+            (s_hi, p_hi, r_hi) = (s, p, r);
+            break;
+        }
+        (s_lo, p_lo, r_lo) = (s, p, r);
+        if s >= limit {
+            let tangent = unit_between(x0, &p_lo, v);
+            return Move {
+                from: x0.to_vec(),
+                to: p_lo,
+                tangent,
+                direction: v.to_vec(),
+                distance: s,
+                open: true,
+                slope: 0.0,
+            };
+        }
+        s = (2.0 * s).min(limit);
+    }
+    // Illinois regula falsi on r(s) = rise − budget.
+    let mut side = 0i8;
+    for _ in 0..30 {
+        if s_hi - s_lo <= 2e-3 * s_hi {
+            break;
+        }
+        let t = (s_lo - r_lo * (s_hi - s_lo) / (r_hi - r_lo)).clamp(
+            s_lo + 0.05 * (s_hi - s_lo),
+            s_hi - 0.05 * (s_hi - s_lo),
+        );
+        let (p, r) = probe(&p_lo, s_lo, t);
+        if r > 0.0 {
+            (s_hi, p_hi, r_hi) = (t, p, r);
+            if side == 1 {
+                r_lo *= 0.5;
+            }
+            side = 1;
+        } else {
+            (s_lo, p_lo, r_lo) = (t, p, r);
+            if side == -1 {
+                r_hi *= 0.5;
+            }
+            side = -1;
+        }
+        if r.abs() < 1e-3 * budget {
+            break;
+        }
+    }
+    // The end: the last point within budget; the slope over a tenth of the way.
+    let (s_e, p_e) = if r_lo.abs() <= r_hi.abs() || side == 0 {
+        (s_lo, p_lo)
+    } else {
+        (s_hi, p_hi)
+    };
+    let back = (0.1 * s_e).max(0.01);
+    let (p_b, r_b) = probe(&p_e, s_e, s_e - back);
+    let r_e = obj.d_at(&p_e) - d0 - budget;
+    Move {
+        from: x0.to_vec(),
+        tangent: unit_between(&p_b, &p_e, v),
+        direction: v.to_vec(),
+        to: p_e,
+        distance: s_e,
+        open: false,
+        slope: ((r_e - r_b) / back).max(0.0),
+    }
+}
+
+/// Unit vector from `a` to `b` (or `fallback` when they coincide).
+fn unit_between(a: &[f64], b: &[f64], fallback: &[f64]) -> Vec<f64> {
+    let diff: Vec<f64> = b.iter().zip(a).map(|(p, q)| p - q).collect();
+    let norm = diff.iter().map(|x| x * x).sum::<f64>().sqrt();
+    if norm > 1e-12 {
+        diff.iter().map(|x| x / norm).collect()
+    } else {
+        fallback.to_vec()
+    }
+}
