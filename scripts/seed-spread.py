@@ -55,6 +55,18 @@ def main():
             if name in ident.get("at_bound", []): c = "A"
             calls.append(c)
         print(f"{name:<22} {min(v):>10.4g} {max(v):>10.4g} {100*(max(v)-min(v))/abs(med):>9.2f}% {max(e)-min(e):>10.4f}  {''.join(calls)}")
+    if "mc_error" in fits[0]:
+        n = len(fits)
+        print(f"{'hyperparameter':<22} {'observed sd':>12} {'reported sd':>12} {'ratio':>7}  set by")
+        for name in free:
+            v = [f["hyperparameters"][name] for f in fits]
+            m = sum(v) / n
+            sd = (sum((x - m) ** 2 for x in v) / (n - 1)) ** 0.5
+            rep = [f["mc_error"][name] for f in fits]
+            rep = [r for r in rep if r is not None]
+            rsd = (sum(r * r for r in rep) / len(rep)) ** 0.5 if rep else float("nan")
+            sb = sorted(set(f["set_by"][name] for f in fits))
+            print(f"{name:<22} {sd:>12.4g} {rsd:>12.4g} {sd / rsd if rsd else float('nan'):>7.2f}  {','.join(sb)}")
     print("tie-break per seed:", " ".join(str(f.get("tie_break")) for f in fits))
     print("draws per seed:", " ".join(str(f.get("draws")) for f in fits))
 
