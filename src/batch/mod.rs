@@ -385,6 +385,11 @@ fn run_row(
         Err(reason) => err_record(r, "input", reason, started.elapsed().as_secs_f64()),
         Ok(mut spec) => {
             spec.fit.profiles = files == ModelFiles::Full;
+            // Batches fit at a fixed number of draws (the base file's, or 8,192
+            // scrambled Sobol points): precision mode would multiply the cost of
+            // a row. Lean folders skip the Monte Carlo errors as well.
+            spec.precision = None;
+            spec.fit.mc_errors = files == ModelFiles::Full;
             let fitted = fit::fit(&spec, None);
             match fitted {
                 Err(e) => err_record(

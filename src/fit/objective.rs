@@ -98,6 +98,8 @@ pub fn lambda_per_eta(h: &Hyper, eta: f64) -> f64 {
 pub struct Objective<'a> {
     pub spec: &'a Spec,
     pub base: BaseDraws,
+    /// Where the base draws came from.
+    pub plan: crate::rng::Plan,
     pub free: Vec<usize>,
     pub full0: Vec<f64>,
     reqs: Vec<&'a Request>,
@@ -168,6 +170,7 @@ impl<'a> Objective<'a> {
         Objective {
             spec,
             base: spec.model.draw_base(n, plan),
+            plan: *plan,
             free: spec.free(),
             full0: hypers.iter().map(Hyper::default_value).collect(),
             reqs: spec.beliefs.iter().map(|b| &b.request).collect(),

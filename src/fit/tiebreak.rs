@@ -53,6 +53,7 @@ struct Stiff {
 /// moves made.
 pub fn widest(
     obj: &Objective,
+    coarse: &Objective,
     eta0: &[f64],
     hess: &DMatrix<f64>,
     lines: &[super::profile::Line],
@@ -95,7 +96,7 @@ pub fn widest(
         // in the flat interval: first find the lowest point of the valley floor
         // along v, so that "within one floor of the best" is measured from the
         // best, not from wherever the optimiser stopped.
-        x = valley_min(obj, &x, &v, &stiff, -l.minus.distance, l.plus.distance);
+        x = valley_min(obj, coarse, &x, &v, &stiff, -l.minus.distance, l.plus.distance);
         // Which way is wider?
         let probe = |s: f64| {
             let y: Vec<f64> = x.iter().zip(&v).map(|(a, c)| a + s * c).collect();
@@ -124,35 +125,47 @@ pub fn widest(
 }
 
 /// The lowest point of the valley floor through `x` along `v`, over
-/// s ∈ [lo, hi] (Brent's method on the corrected D, to 0.02 η units).
-fn valley_min(obj: &Objective, x: &[f64], v: &[f64], stiff: &[Stiff], lo: f64, hi: f64) -> Vec<f64> {
+/// s ∈ [lo, hi]: Brent's method on the corrected D of the `coarse` objective (the
+/// first quarter of the draws: only D's minimum value matters, and it is
+/// insensitive to the location), to 0.05 η units, then corrected on the full
+/// draws.
+fn valley_min(
+    obj: &Objective,
+    coarse: &Objective,
+    x: &[f64],
+    v: &[f64],
+    stiff: &[Stiff],
+    lo: f64,
+    hi: f64,
+) -> Vec<f64> {
     if hi - lo < 1e-6 {
         return x.to_vec();
     }
     let at = |s: f64| -> Vec<f64> { x.iter().zip(v).map(|(a, c)| a + s * c).collect() };
-    let f = |s: f64| correct(obj, &at(s), stiff).1;
-    let (s, fs) = super::simplex::brent_min(&f, lo, hi, 0.02, 40);
+    let f = |s: f64| correct(coarse, &at(s), stiff, CORRECTIONS).1;
+    let (s, fs) = super::simplex::brent_min(&f, lo, hi, 0.05, 30);
     if fs < obj.d_at(x) {
-        correct(obj, &at(s), stiff).0
+        correct(obj, &at(s), stiff, FINAL_CORRECTIONS).0
     } else {
         x.to_vec()
     }
 }
 
-/// Newton iterations of [`correct`].
-const CORRECTIONS: usize = 2;
+/// Newton iterations of [`correct`] while searching, and at the chosen end.
+const CORRECTIONS: usize = 1;
+const FINAL_CORRECTIONS: usize = 2;
 
 /// Re-minimise D over the determined directions from `y`: Newton steps a = −g/μ
 /// on differenced gradients (in parallel), solving ∇D = 0 there as the fit's
 /// polish does (a decrease test would stall on the empirical objective's small
 /// kinks); keeps `y` when the result is worse by more than a tenth of a floor.
-fn correct(obj: &Objective, y: &[f64], stiff: &[Stiff]) -> (Vec<f64>, f64) {
+fn correct(obj: &Objective, y: &[f64], stiff: &[Stiff], iterations: usize) -> (Vec<f64>, f64) {
     let fy = obj.d_at(y);
     if stiff.is_empty() {
         return (y.to_vec(), fy);
     }
     let mut z = y.to_vec();
-    for _ in 0..CORRECTIONS {
+    for _ in 0..iterations {
         let at = |u: &[f64], s: f64| -> Vec<f64> { z.iter().zip(u).map(|(a, c)| a + s * c).collect() };
         let steps: Vec<f64> = stiff
             .par_iter()
@@ -198,7 +211,7 @@ fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: 
     // A probe at distance s, starting from the corrected point `base` at `s_base`.
     let probe = |base: &[f64], s_base: f64, s: f64| -> (Vec<f64>, f64) {
         let y: Vec<f64> = base.iter().zip(v).map(|(a, c)| a + (s - s_base) * c).collect();
-        let (z, fz) = correct(obj, &y, stiff);
+        let (z, fz) = correct(obj, &y, stiff, CORRECTIONS);
         (z, fz - d0 - budget)
     };
     let stay = Move {
@@ -241,7 +254,7 @@ fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: 
     // Illinois regula falsi on r(s) = rise − budget.
     let mut side = 0i8;
     for _ in 0..30 {
-        if s_hi - s_lo <= 2e-3 * s_hi {
+        if s_hi - s_lo <= 5e-3 * s_hi {
             break;
         }
         let t = (s_lo - r_lo * (s_hi - s_lo) / (r_hi - r_lo)).clamp(
@@ -272,6 +285,9 @@ fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: 
     } else {
         (s_hi, p_hi)
     };
+    // A last correction: the end lies on the valley floor as exactly as the
+    // optimum does.
+    let p_e = correct(obj, &p_e, stiff, FINAL_CORRECTIONS - CORRECTIONS).0;
     let back = (0.1 * s_e).max(0.01);
     let (p_b, r_b) = probe(&p_e, s_e, s_e - back);
     let r_e = obj.d_at(&p_e) - d0 - budget;
