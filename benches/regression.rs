@@ -66,8 +66,14 @@ fn bench(c: &mut Criterion) {
             let mut h: Vec<f64> = s.hypers().iter().map(Hyper::default_value).collect();
             let mut k = 0u32;
             g.bench_function(format!("{name}/{p}"), |b| {
-                let obj =
-                    obj.get_or_insert_with(|| Objective::new(&s, 4000, &priorsmith::rng::Plan::fit(1, s.points), Kind::CramerVonMises));
+                let obj = obj.get_or_insert_with(|| {
+                    Objective::new(
+                        &s,
+                        4000,
+                        &priorsmith::rng::Plan::fit(1, s.points),
+                        Kind::CramerVonMises,
+                    )
+                });
                 b.iter(|| {
                     // A new scale each time, as the optimiser would propose.
                     k += 1;

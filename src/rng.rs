@@ -127,9 +127,10 @@ impl Plan {
         let mut low = stream(self.seed, self.block + (1 << 24) + s);
         let mut out = Vec::with_capacity(n);
         for chunk in 0..n.div_ceil(SOBOL_CHUNK) {
-            let scramble =
-                child_seed(child_seed(self.seed, self.block ^ 0x534f_424f_4c00), chunk as u64)
-                    ^ (s / SOBOL_DIMS).wrapping_mul(0x9E37_79B9_7F4A_7C15);
+            let scramble = child_seed(
+                child_seed(self.seed, self.block ^ 0x534f_424f_4c00),
+                chunk as u64,
+            ) ^ (s / SOBOL_DIMS).wrapping_mul(0x9E37_79B9_7F4A_7C15);
             let seed32 = (scramble ^ (scramble >> 32)) as u32;
             let len = SOBOL_CHUNK.min(n - chunk * SOBOL_CHUNK);
             for i in 0..len {

@@ -127,7 +127,12 @@ fn objective_is_never_nan_at_extreme_hyperparameters() {
                 Err(e) => prop_assert!(false, "{name}: per_belief failed at h = {h:?}: {e}"),
             }
             // The tie-breaking term must not bring NaN in either.
-            let mut o2 = Objective::new(o.spec, 200, &priorsmith::rng::Plan::fit(3, o.spec.points), o.kind);
+            let mut o2 = Objective::new(
+                o.spec,
+                200,
+                &priorsmith::rng::Plan::fit(3, o.spec.points),
+                o.kind,
+            );
             o2.kappa = if tie { 0.05 } else { 0.0 };
             for c in [o.cost(eta), o2.cost(eta)] {
                 prop_assert!(

@@ -208,6 +208,27 @@ pub fn analyse(
             fd_hessian(&f, eta, &inner, &steps_for(&diag, floor), f0).0
         }
     };
+    // The same Hessian over every free hyperparameter (zero rows at a bound).
+    let d = eta.len();
+    let hfull = DMatrix::from_fn(d, d, |a, b| {
+        match (
+            inner.iter().position(|&k| k == a),
+            inner.iter().position(|&k| k == b),
+        ) {
+            (Some(i), Some(j)) => h[(i, j)],
+            _ => 0.0,
+        }
+    });
+    let hfull = &hfull;
+    // Profiles run on the first quarter of the draws (a whole net of the
+    // scrambled sequence when N is a power of two): the calls are measured in
+    // the fixed reference floor, which that many scrambled points resolve.
+    let quarter = Objective::new(
+        obj.spec,
+        (obj.n() / 4).max(1000).min(obj.n()),
+        &obj.plan,
+        obj.kind,
+    );
     let mut directions = Vec::new();
     let mut undetermined: Vec<String> = Vec::new();
     let mut borderline: Vec<String> = Vec::new();
@@ -257,7 +278,8 @@ pub fn analyse(
                 for a in 0..m {
                     dir[inner[a]] = sign * v[a];
                 }
-                let mut l = super::profile::line(obj, eta, dir, d0, f_ref);
+                let stiff = super::tiebreak::stiff_directions(obj, eta, hfull, &[&dir]);
+                let mut l = super::profile::line(&quarter, eta, dir, &stiff, f_ref);
                 l.description = description.clone();
                 let out = (l.call, Some(l.width));
                 lines.push(l);
@@ -295,7 +317,11 @@ pub fn analyse(
     let mut pushed = Vec::new();
     for &k in &at_bound {
         let mut l = super::profile::bound_line(obj, eta, k, d0, f_ref);
-        l.description = format!("{} at its {} bound", names[k], if eta[k] > 0.0 { "upper" } else { "lower" });
+        l.description = format!(
+            "{} at its {} bound",
+            names[k],
+            if eta[k] > 0.0 { "upper" } else { "lower" }
+        );
         match l.call {
             super::profile::Call::PushedToBound => pushed.push(names[k].clone()),
             super::profile::Call::Undetermined => undetermined.push(names[k].clone()),
@@ -307,10 +333,8 @@ pub fn analyse(
     let mut held = BTreeMap::new();
     if profiles {
         use rayon::prelude::*;
-        // On the first quarter of the draws (a whole net of the scrambled
-        // sequence when N is a power of two): the profiles are a picture of D
-        // across the range, and cost 25 evaluations per hyperparameter.
-        let quarter = Objective::new(obj.spec, (obj.n() / 4).max(1000).min(obj.n()), &obj.plan, obj.kind);
+        // On the quarter of the draws: the profiles are a picture of D across
+        // the range, and cost 25 evaluations per hyperparameter.
         let f = |x: &[f64]| quarter.d_at(x);
         let traced: Vec<(String, Vec<(f64, f64)>)> = obj
             .free

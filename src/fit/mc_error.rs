@@ -114,7 +114,12 @@ pub fn errors(
         let vr = rises.iter().map(|e| (e - mean).powi(2)).sum::<f64>() / (r - 1.0);
         // δs along the flat direction moves the end along the valley's tangent
         // by δs / (v·t).
-        let along: f64 = mv.direction.iter().zip(&mv.tangent).map(|(p, q)| p * q).sum();
+        let along: f64 = mv
+            .direction
+            .iter()
+            .zip(&mv.tangent)
+            .map(|(p, q)| p * q)
+            .sum();
         if mv.slope > 0.0 && along.abs() > 1e-3 {
             let vs = vr / (mv.slope * mv.slope * along * along);
             for (a, c) in mv.tangent.iter().enumerate() {
@@ -122,7 +127,5 @@ pub fn errors(
             }
         }
     }
-    (0..d)
-        .map(|a| known[a].then(|| var[a].sqrt()))
-        .collect()
+    (0..d).map(|a| known[a].then(|| var[a].sqrt())).collect()
 }

@@ -26,6 +26,7 @@
 //! the seed or on the number of draws.
 
 use super::objective::Objective;
+use super::tiebreak::Stiff;
 use crate::numerics::logistic;
 use serde::Serialize;
 
@@ -92,6 +93,10 @@ pub struct Line {
     pub call: Call,
     /// For a hyperparameter at a bound: its index among the free ones.
     pub at_bound: Option<usize>,
+    /// The lowest point of the valley floor along the direction (η), from which
+    /// the edges were measured.
+    #[serde(skip)]
+    pub valley_min: Vec<f64>,
 }
 
 fn moved(eta: &[f64], v: &[f64], s: f64) -> Vec<f64> {
@@ -178,20 +183,39 @@ pub fn call_for(w: f64, bound: bool) -> Call {
     }
 }
 
-/// Profile a direction `v` through `eta` (both sides) and call it.
-pub fn line(obj: &Objective, eta: &[f64], v: Vec<f64>, d0: f64, f_ref: f64) -> Line {
+/// Profile a direction `v` through `eta` along the valley floor (the other,
+/// determined directions `stiff` re-minimised at every point, so that a curved
+/// valley — two hyperparameters trading off along a curve — is followed, not
+/// cut): from the floor's lowest point out to where D has risen by `f_ref` on
+/// each side, and call it.
+pub fn line(obj: &Objective, eta: &[f64], v: Vec<f64>, stiff: &[Stiff], f_ref: f64) -> Line {
+    use super::tiebreak::{limit, valley_edge, valley_min, MIN_SEARCH};
     let minus_v: Vec<f64> = v.iter().map(|c| -c).collect();
-    let plus = edge(obj, eta, &v, d0, f_ref);
-    let minus = edge(obj, eta, &minus_v, d0, f_ref);
-    let w = width(eta, &v, minus.distance, plus.distance);
+    let lo = limit(eta, &minus_v).min(MIN_SEARCH);
+    let hi = limit(eta, &v).min(MIN_SEARCH);
+    let xm = valley_min(obj, obj, eta, &v, stiff, -lo, hi);
+    let p = valley_edge(obj, &xm, &v, stiff, f_ref);
+    let m = valley_edge(obj, &xm, &minus_v, stiff, f_ref);
+    let w =
+        p.to.iter()
+            .zip(&m.to)
+            .map(|(a, b)| (logistic(*a) - logistic(*b)).powi(2))
+            .sum::<f64>()
+            .sqrt();
+    let as_edge = |mv: &super::tiebreak::Move| Edge {
+        distance: mv.distance,
+        open: mv.open,
+        slope: mv.slope,
+    };
     Line {
         direction: v,
         description: String::new(),
-        minus,
-        plus,
+        minus: as_edge(&m),
+        plus: as_edge(&p),
         width: w,
         call: call_for(w, false),
         at_bound: None,
+        valley_min: xm,
     }
 }
 
@@ -214,6 +238,7 @@ pub fn bound_line(obj: &Objective, eta: &[f64], k: usize, d0: f64, f_ref: f64) -
         width: w,
         call: call_for(w, true),
         at_bound: Some(k),
+        valley_min: eta.to_vec(),
     }
 }
 

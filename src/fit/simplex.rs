@@ -138,7 +138,13 @@ impl<F: Fn(f64) -> f64> CostFunction for Scalar<'_, F> {
 /// Minimise `f` on [lo, hi] with Brent's method (argmin 0.11 `BrentOpt`:
 /// parabolic interpolation with golden-section safeguards), to an absolute
 /// tolerance `tol` in x; returns (x, f(x)), or the better end when it fails.
-pub fn brent_min(f: &impl Fn(f64) -> f64, lo: f64, hi: f64, tol: f64, max_iters: u64) -> (f64, f64) {
+pub fn brent_min(
+    f: &impl Fn(f64) -> f64,
+    lo: f64,
+    hi: f64,
+    tol: f64,
+    max_iters: u64,
+) -> (f64, f64) {
     use argmin::solver::brent::BrentOpt;
     let solver = BrentOpt::new(lo, hi).set_tolerance(1e-8, tol);
     let run = Executor::new(Scalar(f), solver)

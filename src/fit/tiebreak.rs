@@ -42,10 +42,50 @@ pub struct Move {
 }
 
 /// A determined eigen-direction: unit vector, curvature, difference step.
-struct Stiff {
+pub struct Stiff {
     u: Vec<f64>,
     mu: f64,
     h: f64,
+}
+
+/// The determined eigen-directions of the Hessian `hess` (over the free
+/// hyperparameters inside the range at `eta0`): curvature above two floors and
+/// not along any of `exclude`.
+pub fn stiff_directions(
+    obj: &Objective,
+    eta0: &[f64],
+    hess: &DMatrix<f64>,
+    exclude: &[&[f64]],
+) -> Vec<Stiff> {
+    let d = eta0.len();
+    let inner: Vec<usize> = (0..d).filter(|&a| eta0[a].abs() <= ETA_LIMIT).collect();
+    let m = inner.len();
+    let mut stiff = Vec::new();
+    let floor = obj.floor();
+    if m > 0 && hess.nrows() == d {
+        let hi = DMatrix::from_fn(m, m, |a, b| hess[(inner[a], inner[b])]);
+        if hi.iter().all(|v| v.is_finite()) {
+            let eig = SymmetricEigen::new(hi);
+            for j in 0..m {
+                let mut u = vec![0.0; d];
+                for a in 0..m {
+                    u[inner[a]] = eig.eigenvectors[(a, j)];
+                }
+                let mu = eig.eigenvalues[j];
+                let along = exclude.iter().any(|v| {
+                    let dot: f64 = u.iter().zip(v.iter()).map(|(p, q)| p * q).sum();
+                    dot.abs() > 0.7
+                });
+                if mu > 2.0 * floor && !along {
+                    let h = (8.0 * floor / mu)
+                        .sqrt()
+                        .clamp(1e-3, super::diagnostics::STEP);
+                    stiff.push(Stiff { u, mu, h });
+                }
+            }
+        }
+    }
+    stiff
 }
 
 /// Settle the flat lines of `lines` from the optimum `eta0`, with `hess` the
@@ -61,33 +101,8 @@ pub fn widest(
 ) -> (Vec<f64>, Vec<Move>) {
     let flat: Vec<&super::profile::Line> = lines.iter().filter(|l| l.call.is_flat()).collect();
     let k = flat.len();
-    let d = eta0.len();
-    let inner: Vec<usize> = (0..d).filter(|&a| eta0[a].abs() <= ETA_LIMIT).collect();
-    let m = inner.len();
-    // Determined eigen-directions of the Hessian over the coordinates inside the range.
-    let mut stiff = Vec::new();
-    let floor = obj.floor();
-    if m > 0 {
-        let hi = DMatrix::from_fn(m, m, |a, b| hess[(inner[a], inner[b])]);
-        if hi.iter().all(|v| v.is_finite()) {
-            let eig = SymmetricEigen::new(hi);
-            for j in 0..m {
-                let mut u = vec![0.0; d];
-                for a in 0..m {
-                    u[inner[a]] = eig.eigenvectors[(a, j)];
-                }
-                let mu = eig.eigenvalues[j];
-                let along_flat = flat.iter().any(|l| {
-                    let dot: f64 = u.iter().zip(&l.direction).map(|(p, q)| p * q).sum();
-                    dot.abs() > 0.7
-                });
-                if mu > 2.0 * floor && !along_flat {
-                    let h = (8.0 * floor / mu).sqrt().clamp(1e-3, super::diagnostics::STEP);
-                    stiff.push(Stiff { u, mu, h });
-                }
-            }
-        }
-    }
+    let dirs: Vec<&[f64]> = flat.iter().map(|l| &l.direction[..]).collect();
+    let stiff = stiff_directions(obj, eta0, hess, &dirs);
     let mut x = eta0.to_vec();
     let mut moves = Vec::new();
     for l in flat {
@@ -96,13 +111,51 @@ pub fn widest(
         // in the flat interval: first find the lowest point of the valley floor
         // along v, so that "within one floor of the best" is measured from the
         // best, not from wherever the optimiser stopped.
-        x = valley_min(obj, coarse, &x, &v, &stiff, -l.minus.distance, l.plus.distance);
-        // Which way is wider?
-        let probe = |s: f64| {
+        x = if k == 1 {
+            correct(obj, &l.valley_min, &stiff, FINAL_CORRECTIONS).0
+        } else {
+            let lim = |w: &[f64]| limit(&x, w).min(MIN_SEARCH);
+            let neg: Vec<f64> = v.iter().map(|c| -c).collect();
+            valley_min(obj, coarse, &x, &v, &stiff, -lim(&neg), lim(&v))
+        };
+        // Where in the flat interval is S least? S needs no simulation, so it
+        // is minimised along the straight line over the interval the profile
+        // found (measured from the valley's lowest point); when the minimum is
+        // at an end (the usual case: a wider prior), that end is located on the
+        // full draws along the valley floor; inside (the pull towards the
+        // reference wins), the prior moves there.
+        let sec = |s: f64| {
             let y: Vec<f64> = x.iter().zip(&v).map(|(a, c)| a + s * c).collect();
             obj.secondary(&obj.full(&y))
         };
-        if probe(0.02) > probe(-0.02) {
+        let (lo, hi) = if k == 1 {
+            (-l.minus.distance, l.plus.distance)
+        } else {
+            let neg: Vec<f64> = v.iter().map(|c| -c).collect();
+            (
+                -limit(&x, &neg).min(MIN_SEARCH),
+                limit(&x, &v).min(MIN_SEARCH),
+            )
+        };
+        let (s_star, _) = super::simplex::brent_min(&sec, lo, hi, 2e-3, 40);
+        let near_end = |e: f64| e.abs() > 0.0 && (s_star - e).abs() <= 0.02 * e.abs();
+        if !near_end(hi) && !near_end(lo) {
+            let y: Vec<f64> = x.iter().zip(&v).map(|(a, c)| a + s_star * c).collect();
+            let to = correct(obj, &y, &stiff, FINAL_CORRECTIONS).0;
+            moves.push(Move {
+                from: x.clone(),
+                to: to.clone(),
+                tangent: v.clone(),
+                direction: v,
+                distance: s_star.abs(),
+                // Set by the secondary objective, not by an edge: no edge error.
+                open: true,
+                slope: 0.0,
+            });
+            x = to;
+            continue;
+        }
+        if near_end(lo) {
             v.iter_mut().for_each(|c| *c = -*c);
         }
         let mv = valley_edge(obj, &x, &v, &stiff, f_ref / k as f64);
@@ -129,7 +182,7 @@ pub fn widest(
 /// first quarter of the draws: only D's minimum value matters, and it is
 /// insensitive to the location), to 0.05 η units, then corrected on the full
 /// draws.
-fn valley_min(
+pub fn valley_min(
     obj: &Objective,
     coarse: &Objective,
     x: &[f64],
@@ -166,7 +219,8 @@ fn correct(obj: &Objective, y: &[f64], stiff: &[Stiff], iterations: usize) -> (V
     }
     let mut z = y.to_vec();
     for _ in 0..iterations {
-        let at = |u: &[f64], s: f64| -> Vec<f64> { z.iter().zip(u).map(|(a, c)| a + s * c).collect() };
+        let at =
+            |u: &[f64], s: f64| -> Vec<f64> { z.iter().zip(u).map(|(a, c)| a + s * c).collect() };
         let steps: Vec<f64> = stiff
             .par_iter()
             .map(|st| {
@@ -193,24 +247,16 @@ fn correct(obj: &Objective, y: &[f64], stiff: &[Stiff], iterations: usize) -> (V
 
 /// Follow the valley floor from `x0` along `v` until D rises by `budget` above
 /// D(x0), or to the edge of the range.
-fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: f64) -> Move {
+pub fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: f64) -> Move {
     let d0 = obj.d_at(x0);
-    let limit = v
-        .iter()
-        .zip(x0)
-        .filter(|(c, _)| c.abs() > 1e-12)
-        .map(|(c, e)| {
-            if *c > 0.0 {
-                (ETA_LIMIT - e) / c
-            } else {
-                (-ETA_LIMIT - e) / c
-            }
-        })
-        .fold(f64::INFINITY, f64::min)
-        .max(0.0);
+    let limit = limit(x0, v);
     // A probe at distance s, starting from the corrected point `base` at `s_base`.
     let probe = |base: &[f64], s_base: f64, s: f64| -> (Vec<f64>, f64) {
-        let y: Vec<f64> = base.iter().zip(v).map(|(a, c)| a + (s - s_base) * c).collect();
+        let y: Vec<f64> = base
+            .iter()
+            .zip(v)
+            .map(|(a, c)| a + (s - s_base) * c)
+            .collect();
         let (z, fz) = correct(obj, &y, stiff, CORRECTIONS);
         (z, fz - d0 - budget)
     };
@@ -257,10 +303,8 @@ fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: 
         if s_hi - s_lo <= 5e-3 * s_hi {
             break;
         }
-        let t = (s_lo - r_lo * (s_hi - s_lo) / (r_hi - r_lo)).clamp(
-            s_lo + 0.05 * (s_hi - s_lo),
-            s_hi - 0.05 * (s_hi - s_lo),
-        );
+        let t = (s_lo - r_lo * (s_hi - s_lo) / (r_hi - r_lo))
+            .clamp(s_lo + 0.05 * (s_hi - s_lo), s_hi - 0.05 * (s_hi - s_lo));
         let (p, r) = probe(&p_lo, s_lo, t);
         if r > 0.0 {
             (s_hi, p_hi, r_hi) = (t, p, r);
@@ -300,6 +344,25 @@ fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budget: 
         open: false,
         slope: ((r_e - r_b) / back).max(0.0),
     }
+}
+
+/// Half-width (η units) of the search for the valley's lowest point.
+pub const MIN_SEARCH: f64 = 3.0;
+
+/// Largest s ≥ 0 keeping x + s·v inside ±[`ETA_LIMIT`].
+pub fn limit(x: &[f64], v: &[f64]) -> f64 {
+    v.iter()
+        .zip(x)
+        .filter(|(c, _)| c.abs() > 1e-12)
+        .map(|(c, e)| {
+            if *c > 0.0 {
+                (ETA_LIMIT - e) / c
+            } else {
+                (-ETA_LIMIT - e) / c
+            }
+        })
+        .fold(f64::INFINITY, f64::min)
+        .max(0.0)
 }
 
 /// Unit vector from `a` to `b` (or `fallback` when they coincide).

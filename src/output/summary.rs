@@ -9,36 +9,65 @@ pub const CAUTION: &str = "Caution: a fitted prior is a proposal, not a decision
 statistician must review it, check it for prior–data conflict and sensitivity, and use it within \
 the applicable regulatory guidance and local practice.";
 
+/// How the draws were chosen, in words.
+fn draws_note(r: &FitResult) -> String {
+    let d = &r.draws_chosen;
+    match d.target {
+        Some(t) => format!(
+            "precision mode: target {}% of each determined value{}",
+            fmt_num(100.0 * t),
+            if d.reached {
+                ""
+            } else {
+                ", NOT reached within the cap"
+            }
+        ),
+        None => "draws fixed".to_string(),
+    }
+}
+
 pub fn render(r: &FitResult) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "priorsmith {} — {}", r.tool_version, r.title);
     let _ = writeln!(
         s,
-        "template {}, {} draws, seed {}, discrepancy {}, spec sha256 {}",
+        "template {}, {} draws ({}, {}), seed {}, discrepancy {}, spec sha256 {}",
         r.template,
         r.draws,
+        r.draws_chosen.points,
+        draws_note(r),
         r.seed,
         r.discrepancy.name(),
         &r.spec_digest[..12.min(r.spec_digest.len())]
     );
     let _ = writeln!(s);
-    let _ = writeln!(s, "Hyperparameters");
+    let _ = writeln!(
+        s,
+        "Hyperparameters (MC error: Monte Carlo standard error of the fitted value)"
+    );
     let w = r.order.iter().map(String::len).max().unwrap_or(10).max(14);
+    let _ = writeln!(
+        s,
+        "  {:<w$}  {:>12}  {:>10}  {:<12}  range",
+        "hyperparameter", "value", "MC error", "set by"
+    );
     for name in &r.order {
         let v = r.hyperparameters[name];
-        let note = match r.bounds.get(name) {
-            Some((lo, hi)) => {
-                let near = (v - lo).abs() < 1e-3 * (hi - lo) || (hi - v).abs() < 1e-3 * (hi - lo);
-                format!(
-                    "fitted in [{}, {}]{}",
-                    fmt_num(*lo),
-                    fmt_num(*hi),
-                    if near { "  ← at a bound" } else { "" }
-                )
-            }
-            None => "fixed".to_string(),
+        let set_by = r.set_by.get(name).map_or("", |x| x.words());
+        let mc = match r.mc_error.get(name) {
+            Some(Some(e)) => fmt_num(*e),
+            Some(None) => "—".to_string(),
+            None => String::new(),
         };
-        let _ = writeln!(s, "  {name:<w$}  {:>12}  {note}", fmt_num(v));
+        let range = match r.bounds.get(name) {
+            Some((lo, hi)) => format!("[{}, {}]", fmt_num(*lo), fmt_num(*hi)),
+            None => String::new(),
+        };
+        let _ = writeln!(
+            s,
+            "  {name:<w$}  {:>12}  {mc:>10}  {set_by:<12}  {range}",
+            fmt_num(v)
+        );
     }
     let _ = writeln!(s);
     let _ = writeln!(
@@ -158,35 +187,51 @@ pub fn render(r: &FitResult) -> String {
     let _ = writeln!(s);
     // Identifiability.
     let id = &r.identifiability;
-    let _ = writeln!(s, "What the beliefs determine (curvature at the optimum; δ* = distance on the optimiser's scale");
     let _ = writeln!(
         s,
-        "over which the discrepancy rises by one noise floor; above 0.25 counts as undetermined)"
+        "What the beliefs determine: along each direction, the share of the allowed range over which the"
     );
-    if id.directions.is_empty() && id.at_bound.is_empty() {
+    let _ = writeln!(
+        s,
+        "discrepancy stays within one reference floor ({}) of the best; 0.15 or more is undetermined,",
+        fmt_num(id.reference_floor)
+    );
+    let _ = writeln!(
+        s,
+        "0.10 or less determined, between them borderline (δ*: the local half-width on the optimiser's scale)"
+    );
+    if id.directions.is_empty() && id.lines.is_empty() {
         let _ = writeln!(s, "  no free hyperparameters");
     }
     for d in &id.directions {
+        let width = d
+            .width
+            .map_or("< 0.10 (steep)".to_string(), |w| format!("{w:.3}"));
         let _ = writeln!(
             s,
-            "  {:<12}  δ* = {:>9.3e}  {}",
-            if d.undetermined {
-                "UNDETERMINED"
-            } else {
-                "determined"
-            },
-            d.indistinguishable_halfwidth,
+            "  {:<12}  flat share {:>14}  δ* = {:>9}  {}",
+            d.call.words(),
+            width,
+            fmt_num(d.indistinguishable_halfwidth),
             d.description
         );
     }
-    for b in &id.at_bound {
+    for l in id.lines.iter().filter(|l| l.at_bound.is_some()) {
         let _ = writeln!(
             s,
-            "  at a bound: {b} (the beliefs push it to the edge of its range)"
+            "  {:<12}  flat share {:>14}  {}{}",
+            l.call.words(),
+            format!("{:.3}", l.width),
+            l.description,
+            if l.call == crate::fit::profile::Call::PushedToBound {
+                " (the beliefs push it there)"
+            } else {
+                ""
+            }
         );
     }
     match (&r.pareto, r.tie_break.as_str()) {
-        (Some(f), _) => {
+        (Some(f), "knee") => {
             let p = &f.points[f.chosen];
             let _ = writeln!(
                 s,
@@ -198,7 +243,13 @@ pub fn render(r: &FitResult) -> String {
                 -p.secondary
             );
         }
-        (None, t) => {
+        (_, "widest") => {
+            let _ = writeln!(
+                s,
+                "  tie-break: widest prior within one reference floor of the best along the undetermined and borderline directions"
+            );
+        }
+        (_, t) => {
             let _ = writeln!(s, "  tie-break: {t}");
         }
     }

@@ -505,7 +505,10 @@ pub fn from_table(
     let precision = match sim.and_then(|s| s.precision.as_ref()) {
         Some(_) if explicit => {
             return Err(ctx
-                .err(&sp("precision"), "`precision` chooses the draws itself: give it or `draws`, not both")
+                .err(
+                    &sp("precision"),
+                    "`precision` chooses the draws itself: give it or `draws`, not both",
+                )
                 .with_hint("remove `draws` (and --draws) to let precision mode choose them"))
         }
         Some(v) => {

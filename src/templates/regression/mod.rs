@@ -963,7 +963,9 @@ mod tests {
     }
 
     fn draws(s: &Spec, h: &[f64], n: usize) -> Vec<Vec<f64>> {
-        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
+        let base = s
+            .model
+            .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let reqs: Vec<&Request> = s.beliefs.iter().map(|b| &b.request).collect();
         let mut out = vec![Vec::new(); reqs.len()];
         s.model.simulate(h, &base, &reqs, &mut out).unwrap();
@@ -1027,7 +1029,9 @@ distribution = { family = "beta", alpha = 2, beta = 5 }
         let s = spec(R2D2);
         let n = 20_000;
         let x = draws(&s, &h0(&s), n).remove(0);
-        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
+        let base = s
+            .model
+            .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let u = &base.cols[2 + 2];
         let b = crate::dist::beta::Beta::new(2.0, 5.0).unwrap();
         for i in (0..n).step_by(997) {
@@ -1236,7 +1240,9 @@ quantiles = { "0.1" = 0.5, "0.5" = 1, "0.9" = 2 }
         let h = h0(&s);
         let n = 300;
         let x = draws(&s, &h, n);
-        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
+        let base = s
+            .model
+            .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let z0: Vec<f64> = base.cols[0].clone();
         let alpha: Vec<f64> = z0.iter().map(|z| -1.5 + 0.8 * z).collect();
         let d = crate::design::synthetic_rows(
@@ -1379,7 +1385,9 @@ distribution = { family = "half-normal", scale = 10.0 }
 "#;
         let s = spec(text);
         let n = 400;
-        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
+        let base = s
+            .model
+            .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         let ex = base
             .extra
             .as_ref()
@@ -1387,7 +1395,9 @@ distribution = { family = "half-normal", scale = 10.0 }
             .downcast_ref::<RegBase>()
             .unwrap();
         assert!(ex.table.is_some(), "the table is built");
-        let mut exact = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
+        let mut exact = s
+            .model
+            .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
         exact
             .extra
             .as_mut()
