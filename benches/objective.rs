@@ -48,6 +48,13 @@ fn whole_fits(c: &mut Criterion) {
             b.iter(|| black_box(priorsmith::fit::fit(&spec, None).expect("fit runs")))
         });
     }
+    // Six free hyperparameters, three beliefs, one flat direction settled by the
+    // tie-break, precision mode (the seed-proof fixture).
+    let six = include_str!("../tests/fixtures/six-free-cure.toml");
+    let spec = parse(six, None, &Overrides::default()).expect("fixture parses");
+    g.bench_function("six-free-cure", |b| {
+        b.iter(|| black_box(priorsmith::fit::fit(&spec, None).expect("fit runs")))
+    });
     g.finish();
 }
 

@@ -36,16 +36,22 @@ fn agree(text: &str) {
         let v: Vec<f64> = r.iter().map(|f| f.hyperparameters[name]).collect();
         let set: Vec<SetBy> = r.iter().map(|f| f.set_by[name]).collect();
         assert!(set.iter().all(|x| *x == set[0]), "{name}: set by {set:?}");
-        let (lo, hi) = v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
-            (a.min(*x), b.max(*x))
-        });
-        let positive = matches!(h.value, priorsmith::templates::HyperValue::Free { lo, .. } if lo > 0.0);
+        let (lo, hi) = v
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+                (a.min(*x), b.max(*x))
+            });
+        let positive =
+            matches!(h.value, priorsmith::templates::HyperValue::Free { lo, .. } if lo > 0.0);
         match set[0] {
             SetBy::Beliefs if !positive => {
                 let e: Vec<f64> = v.iter().map(|x| objective::to_eta(h, *x)).collect();
                 let range = e.iter().cloned().fold(f64::NEG_INFINITY, f64::max)
                     - e.iter().cloned().fold(f64::INFINITY, f64::min);
-                assert!(range <= 0.01, "{name}: optimiser-scale range {range} ({v:?})");
+                assert!(
+                    range <= 0.01,
+                    "{name}: optimiser-scale range {range} ({v:?})"
+                );
             }
             SetBy::Beliefs => {
                 let rel = (hi - lo) / lo.abs();
@@ -60,10 +66,18 @@ fn agree(text: &str) {
     }
     let calls = |f: &FitResult| {
         let id = &f.identifiability;
-        (id.undetermined.clone(), id.borderline.clone(), id.at_bound.clone())
+        (
+            id.undetermined.clone(),
+            id.borderline.clone(),
+            id.at_bound.clone(),
+        )
     };
     for f in &r {
-        assert_eq!(calls(f), calls(&r[0]), "identifiability calls differ between seeds");
+        assert_eq!(
+            calls(f),
+            calls(&r[0]),
+            "identifiability calls differ between seeds"
+        );
     }
 }
 
@@ -78,7 +92,10 @@ fn six_free_cure_with_a_flat_direction_agrees_across_seeds() {
     agree(text);
     // The flat direction is the shape's spread, settled by the tie-break.
     let f = fit::fit(&spec(text, 3), None).unwrap();
-    assert_eq!(f.identifiability.undetermined, vec!["shape.sdlog".to_string()]);
+    assert_eq!(
+        f.identifiability.undetermined,
+        vec!["shape.sdlog".to_string()]
+    );
     assert_eq!(f.set_by["shape.sdlog"], SetBy::TieBreak);
 }
 
@@ -99,7 +116,11 @@ fn capped_near_a_bound_is_not_undetermined() {
     for seed in [1, 2, 3] {
         let f = fit::fit(&spec(&text, seed), None).unwrap();
         let id = &f.identifiability;
-        assert!(!id.undetermined.contains(&"shape.sdlog".to_string()), "seed {seed}: {:?}", id.undetermined);
+        assert!(
+            !id.undetermined.contains(&"shape.sdlog".to_string()),
+            "seed {seed}: {:?}",
+            id.undetermined
+        );
         assert_eq!(id.at_bound, vec!["shape.sdlog".to_string()], "seed {seed}");
         assert_eq!(f.set_by["shape.sdlog"], SetBy::Bound);
     }
@@ -138,7 +159,10 @@ distribution = { family = "logit-normal", mu = -1.0, sigma = 0.5 }
             f.verdict == fit::Verdict::MetWithinNoise
         })
         .count();
-    assert!((178..=200).contains(&met), "met within noise on {met} of 200 seeds");
+    assert!(
+        (178..=200).contains(&met),
+        "met within noise on {met} of 200 seeds"
+    );
 }
 
 /// The reported Monte Carlo errors against the seed-to-seed spread over 40 seeds

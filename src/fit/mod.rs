@@ -338,6 +338,11 @@ fn same_basin(obj: &Objective, a: &simplex::Local, b: &simplex::Local) -> bool {
 /// rule, not the draws, set the spread.
 const NEWTON_TOL: f64 = 1e-4;
 
+/// Nelder–Mead stages inside the refinement (rescue, polish, fallback) stop
+/// when the simplex's values differ by this many floors: they find the basin,
+/// and `polish` after them solves ∇D = 0.
+const SIMPLEX_TOL: f64 = 0.01;
+
 /// Length (η units) of a descent step along a direction without positive
 /// curvature in `newton`.
 const FLAT_STEP: f64 = 0.25;
@@ -405,7 +410,13 @@ fn refine(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
         if fx > ROUGH * coarse.floor() {
             let f = |y: &[f64]| coarse.cost(y);
             let dd = d as u64;
-            let p = simplex::restarted(&f, &x, (0.2, 150 * dd + 100), (0.02, 100 * dd + 50), tol_c);
+            let p = simplex::restarted(
+                &f,
+                &x,
+                (0.2, 150 * dd + 100),
+                (0.02, 100 * dd + 50),
+                SIMPLEX_TOL * coarse.floor(),
+            );
             if p.f < fx {
                 let c = newton(coarse, coarse, &p.x, tol_c, d);
                 x = if c.f < p.f { c.x } else { p.x };
@@ -428,7 +439,13 @@ fn refine(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
     let f = |x: &[f64]| obj.cost(x);
     // A wide simplex (reaches optima at a bound), then a narrow restart.
     let d = d as u64;
-    let p = simplex::restarted(&f, &r.x, (0.2, 150 * d + 100), (0.02, 100 * d + 50), tol);
+    let p = simplex::restarted(
+        &f,
+        &r.x,
+        (0.2, 150 * d + 100),
+        (0.02, 100 * d + 50),
+        SIMPLEX_TOL * obj.floor(),
+    );
     if p.f < r.f - tol {
         Refined {
             x: p.x,
@@ -553,7 +570,13 @@ fn newton(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
     }
     // Fallback: Nelder–Mead from the best point, then a restart of the simplex.
     let d = d as u64;
-    let r = simplex::restarted(&f, &x, (0.2, 150 * d + 100), (0.05, 100 * d + 50), tol);
+    let r = simplex::restarted(
+        &f,
+        &x,
+        (0.2, 150 * d + 100),
+        (0.05, 100 * d + 50),
+        SIMPLEX_TOL * floor,
+    );
     Refined {
         x: r.x,
         f: r.f,

@@ -590,9 +590,10 @@ impl Model for Regression {
                 .zip(ex.loc.par_chunks_mut(p))
                 .enumerate()
                 .for_each(|(i, (z, l))| c.base_draw(d, seed, block, i, z, l));
-            // Bases on the fresh streams only judge the fitted point (one or two
-            // evaluations): the exact products are cheaper there than a table.
-            if needs.q && !needs.rows && !plan.is_fresh() {
+            // Bases on the fresh streams only judge the fitted point, and the
+            // replicates of the Monte Carlo error take a gradient there (a few
+            // evaluations each): the exact products are cheaper than a table.
+            if needs.q && !needs.rows && plan.block == rng::FIT_STREAMS {
                 ex.table = self.tabulate(&h0, &cols, &ex.z, &ex.loc, plan);
                 if ex.table.is_some() {
                     let mut unit = h0.clone();
