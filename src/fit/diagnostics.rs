@@ -279,7 +279,14 @@ pub fn analyse(
                     dir[inner[a]] = sign * v[a];
                 }
                 let stiff = super::tiebreak::stiff_directions(obj, eta, hfull, &[&dir]);
-                let mut l = super::profile::line(&quarter, eta, dir, &stiff, f_ref);
+                let mut l = super::profile::line(
+                    &quarter,
+                    eta,
+                    dir,
+                    &stiff,
+                    f_ref,
+                    super::tiebreak::MIN_SEARCH,
+                );
                 l.description = description.clone();
                 let out = (l.call, Some(l.width));
                 lines.push(l);
@@ -317,6 +324,19 @@ pub fn analyse(
     let mut pushed = Vec::new();
     for &k in &at_bound {
         let mut l = super::profile::bound_line(obj, eta, k, d0, f_ref);
+        if l.call.is_flat() {
+            // Flat inwards: D may be lower further in, so measure the flat
+            // interval from the valley's lowest point along the axis, as for an
+            // interior direction (the whole range is searched).
+            let dir = l.direction.clone();
+            let stiff = super::tiebreak::stiff_directions(obj, eta, hfull, &[&dir]);
+            let reach = super::tiebreak::limit(eta, &dir);
+            let mut v = super::profile::line(&quarter, eta, dir, &stiff, f_ref, reach);
+            let still = v.valley_min[k].abs() > super::profile::ETA_LIMIT - 1e-9;
+            v.call = super::profile::call_for(v.width, still);
+            v.at_bound = Some(k);
+            l = v;
+        }
         l.description = format!(
             "{} at its {} bound",
             names[k],

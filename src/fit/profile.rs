@@ -188,11 +188,19 @@ pub fn call_for(w: f64, bound: bool) -> Call {
 /// valley — two hyperparameters trading off along a curve — is followed, not
 /// cut): from the floor's lowest point out to where D has risen by `f_ref` on
 /// each side, and call it.
-pub fn line(obj: &Objective, eta: &[f64], v: Vec<f64>, stiff: &[Stiff], f_ref: f64) -> Line {
-    use super::tiebreak::{limit, valley_edge, valley_min, MIN_SEARCH};
+/// The lowest point is searched within `reach` (η units) on each side.
+pub fn line(
+    obj: &Objective,
+    eta: &[f64],
+    v: Vec<f64>,
+    stiff: &[Stiff],
+    f_ref: f64,
+    reach: f64,
+) -> Line {
+    use super::tiebreak::{limit, valley_edge, valley_min};
     let minus_v: Vec<f64> = v.iter().map(|c| -c).collect();
-    let lo = limit(eta, &minus_v).min(MIN_SEARCH);
-    let hi = limit(eta, &v).min(MIN_SEARCH);
+    let lo = limit(eta, &minus_v).min(reach);
+    let hi = limit(eta, &v).min(reach);
     let xm = valley_min(obj, obj, eta, &v, stiff, -lo, hi);
     let p = valley_edge(obj, &xm, &v, stiff, f_ref);
     let m = valley_edge(obj, &xm, &minus_v, stiff, f_ref);
