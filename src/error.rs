@@ -59,6 +59,10 @@ pub enum Error {
     /// A numerical procedure failed in a way the input does not explain.
     #[error("numerical failure: {0}")]
     Numeric(String),
+    /// A fault inside priorsmith (a value that could not be serialised, a
+    /// poisoned lock): a bug to report, not something the input explains.
+    #[error("internal error: {0}")]
+    Internal(String),
 }
 
 pub type Result<T> = std::result::Result<T, Error>;

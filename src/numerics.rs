@@ -409,9 +409,13 @@ mod tests {
     }
 }
 
-/// Serde helpers writing ±∞ as the strings "inf"/"-inf" (JSON has no infinity).
+/// Serde helpers for the fit record: ±∞ written as the strings "inf"/"-inf" (JSON
+/// has no infinity) and read back; a NaN is written as `null` and read back as NaN.
+/// Use as `#[serde(with = "crate::numerics::ext::num")]` on an `f64` field and
+/// `ext::nums` on a `Vec<f64>`.
 pub mod ext {
-    use serde::Serializer;
+    use serde::{de, Deserializer, Serializer};
+    use std::fmt;
 
     fn one<S: Serializer>(x: f64, s: S) -> Result<S::Ok, S::Error> {
         if x == f64::INFINITY {
@@ -423,22 +427,78 @@ pub mod ext {
         }
     }
 
-    pub fn f64<S: Serializer>(x: &f64, s: S) -> Result<S::Ok, S::Error> {
-        one(*x, s)
+    /// Accepts a number, "inf", "-inf", "nan" or null (NaN).
+    struct Lenient;
+
+    impl<'de> de::Visitor<'de> for Lenient {
+        type Value = f64;
+        fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+            f.write_str("a number, \"inf\", \"-inf\" or null")
+        }
+        fn visit_f64<E: de::Error>(self, v: f64) -> Result<f64, E> {
+            Ok(v)
+        }
+        fn visit_i64<E: de::Error>(self, v: i64) -> Result<f64, E> {
+            Ok(v as f64)
+        }
+        fn visit_u64<E: de::Error>(self, v: u64) -> Result<f64, E> {
+            Ok(v as f64)
+        }
+        fn visit_unit<E: de::Error>(self) -> Result<f64, E> {
+            Ok(f64::NAN)
+        }
+        fn visit_none<E: de::Error>(self) -> Result<f64, E> {
+            Ok(f64::NAN)
+        }
+        fn visit_str<E: de::Error>(self, v: &str) -> Result<f64, E> {
+            match v {
+                "inf" => Ok(f64::INFINITY),
+                "-inf" => Ok(f64::NEG_INFINITY),
+                "nan" => Ok(f64::NAN),
+                _ => Err(E::invalid_value(de::Unexpected::Str(v), &self)),
+            }
+        }
     }
 
-    pub fn vec<S: Serializer>(v: &[f64], s: S) -> Result<S::Ok, S::Error> {
+    /// One `f64`.
+    pub mod num {
+        use super::*;
+        pub fn serialize<S: Serializer>(x: &f64, s: S) -> Result<S::Ok, S::Error> {
+            one(*x, s)
+        }
+        pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+            d.deserialize_any(Lenient)
+        }
+    }
+
+    /// A `Vec<f64>`.
+    pub mod nums {
+        use super::*;
         use serde::ser::SerializeSeq;
+
         struct W(f64);
         impl serde::Serialize for W {
             fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
                 one(self.0, s)
             }
         }
-        let mut seq = s.serialize_seq(Some(v.len()))?;
-        for x in v {
-            seq.serialize_element(&W(*x))?;
+        struct R(f64);
+        impl<'de> serde::Deserialize<'de> for R {
+            fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+                d.deserialize_any(Lenient).map(R)
+            }
         }
-        seq.end()
+
+        pub fn serialize<S: Serializer>(v: &[f64], s: S) -> Result<S::Ok, S::Error> {
+            let mut seq = s.serialize_seq(Some(v.len()))?;
+            for x in v {
+                seq.serialize_element(&W(*x))?;
+            }
+            seq.end()
+        }
+        pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<Vec<f64>, D::Error> {
+            let v: Vec<R> = serde::Deserialize::deserialize(d)?;
+            Ok(v.into_iter().map(|r| r.0).collect())
+        }
     }
 }

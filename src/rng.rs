@@ -41,7 +41,7 @@ const SOBOL_DIMS: u64 = sobol_burley::NUM_DIMENSIONS as u64;
 const SOBOL_CHUNK: usize = 1 << 16;
 
 /// How base columns are generated.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Points {
     /// Independent uniforms from ChaCha8 streams.

@@ -13,14 +13,14 @@ pub struct QuantitySummary {
     pub mean: Option<f64>,
     pub sd: Option<f64>,
     pub probs: Vec<f64>,
-    #[serde(serialize_with = "crate::numerics::ext::vec")]
+    #[serde(serialize_with = "crate::numerics::ext::nums::serialize")]
     pub quantiles: Vec<f64>,
     /// Mass at +∞ (e.g. a median never reached).
     pub mass_at_inf: f64,
     /// Masses at the belief's atoms, (location, implied mass).
     pub atom_masses: Vec<(f64, f64)>,
     /// Believed quantiles at the same probabilities, for comparison.
-    #[serde(serialize_with = "crate::numerics::ext::vec")]
+    #[serde(serialize_with = "crate::numerics::ext::nums::serialize")]
     pub believed: Vec<f64>,
 }
 

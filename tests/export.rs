@@ -662,18 +662,22 @@ fn fit_writes_a_self_contained_report_with_every_plot() {
 
 #[test]
 fn report_renders_optional_diagnostics_when_present() {
+    // Without a traced front the report has no Pareto section; with the knee
+    // rule the fit traces one and the report plots it.
     let (_d, out) = fit_small();
-    let p = out.join("fit.json");
-    let mut v: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(&p).unwrap()).unwrap();
-    v["pareto"] = serde_json::json!([{"kappa": 0.0, "discrepancy": 1e-4, "spread": -1.2}, {"kappa": 1.0, "discrepancy": 2e-4, "spread": -0.8}]);
-    v["identifiability"] = serde_json::json!({"note": "free text only"});
-    std::fs::write(&p, v.to_string()).unwrap();
-    ok(&["report", out.to_str().unwrap(), "-q"]);
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(!html.contains("id=\"diag-pareto\""));
+    assert!(html.contains("identifiability (as recorded in fit.json)"));
+    let d = tempfile::tempdir().unwrap();
+    let spec = d.path().join("spec.toml");
+    std::fs::write(&spec, format!("{SPEC}\n[fit]\ntie_break = \"knee\"\n")).unwrap();
+    let out = d.path().join("out");
+    let (s, o) = (spec.to_str().unwrap(), out.to_str().unwrap());
+    ok(&["fit", s, "--draws", "2000", "-q", "-o", o]);
+    ok(&["report", o, "-q"]);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(html.contains("id=\"diag-pareto\""));
     assert!(out.join("plots/diag-pareto.svg").exists());
-    assert!(html.contains("identifiability (as recorded in fit.json)"));
     assert!(!html.contains("Sensitivity sweep"));
 }
 

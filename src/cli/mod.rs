@@ -158,7 +158,7 @@ pub fn exit_code(e: &anyhow::Error) -> i32 {
                 Error::Input { .. } | Error::Dist(_) => 3,
                 Error::Io { .. } => 4,
                 Error::Limit(_) => 5,
-                Error::Numeric(_) => 1,
+                Error::Numeric(_) | Error::Internal(_) => 1,
             };
         }
     }

@@ -22,7 +22,7 @@
 
 use crate::target::Target;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Kind {
     #[serde(rename = "cramer-von-mises")]
     CramerVonMises,

@@ -7,9 +7,9 @@
 
 use super::Dist;
 
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Atom {
-    #[serde(serialize_with = "crate::numerics::ext::f64")]
+    #[serde(with = "crate::numerics::ext::num")]
     pub at: f64,
     pub mass: f64,
 }

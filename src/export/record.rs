@@ -1,13 +1,16 @@
-//! Reading `fit.json` back: the header facts every export and report carries and
-//! the prior statements as [`Item`]s. Errors name the file, the key path
-//! (`prior[2].params`) and the bad value. ±∞ is stored as the strings "inf" /
-//! "-inf" (JSON has no infinity; see `numerics::ext`).
+//! Reading `fit.json` back for the exporters and the report: the typed fit
+//! record ([`crate::fit::record`]), the header facts every export and report
+//! carries, and the prior statements validated into [`Item`]s. Errors name the
+//! file, the key path (`prior[2].params`) and the bad value.
 
 use super::{Item, Scalar, Supplied};
-use crate::error::{Error, Location, Result};
-use serde_json::Value;
+use crate::error::Result;
+use crate::fit::FitResult;
+use crate::templates::PriorStatement;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
+
+pub use crate::fit::record::bad;
 
 /// Facts for the header of an export or a report.
 #[derive(Debug, Clone)]
@@ -24,169 +27,69 @@ pub struct Header {
     pub date: String,
 }
 
-/// A parsed fit.json.
+/// A fit.json read back: the record, its header facts and its prior statements.
 #[derive(Debug, Clone)]
 pub struct FitRecord {
     pub file: PathBuf,
     pub header: Header,
     pub items: Vec<Item>,
-    /// The whole document, for readers that need more (the report).
-    pub json: Value,
+    /// The whole record, for readers that need more (the report).
+    pub fit: FitResult,
 }
 
-/// Error at key `key` of `file`.
-pub fn bad(file: &Path, key: &str, msg: impl Into<String>) -> Error {
-    Error::input(
-        Location {
-            file: Some(file.to_path_buf()),
-            line: None,
-            key: Some(key.to_string()),
-        },
-        msg,
-    )
-}
-
-/// A number, or ±inf written as a string.
-pub fn number(v: &Value) -> Option<f64> {
-    match v {
-        Value::Number(n) => n.as_f64(),
-        Value::String(s) => match s.as_str() {
-            "inf" => Some(f64::INFINITY),
-            "-inf" => Some(f64::NEG_INFINITY),
-            _ => None,
-        },
-        _ => None,
-    }
-}
-
-pub fn get<'a>(file: &Path, v: &'a Value, key: &str) -> Result<&'a Value> {
-    v.get(key).ok_or_else(|| {
-        bad(
-            file,
-            key,
-            format!("fit.json lacks `{key}` (was it written by `priorsmith fit`?)"),
-        )
-    })
-}
-
-pub fn get_str(file: &Path, v: &Value, key: &str) -> Result<String> {
-    get(file, v, key)?
-        .as_str()
-        .map(str::to_string)
-        .ok_or_else(|| {
-            bad(
-                file,
-                key,
-                format!(
-                    "expected a string, found {}",
-                    get(file, v, key).map(short).unwrap_or_default()
-                ),
-            )
-        })
-}
-
-pub fn get_num(file: &Path, v: &Value, key: &str) -> Result<f64> {
-    let x = get(file, v, key)?;
-    number(x).ok_or_else(|| bad(file, key, format!("expected a number, found {}", short(x))))
-}
-
-/// A value shortened for an error message.
-pub fn short(v: &Value) -> String {
-    let s = v.to_string();
-    if s.chars().count() > 60 {
-        format!("{}…", s.chars().take(60).collect::<String>())
-    } else {
-        s
-    }
-}
-
-fn verdict_words(code: &str) -> String {
-    match code {
-        "met_within_noise" => "met within noise".into(),
-        "met_approximately" => "met approximately".into(),
-        "not_met" => "not met".into(),
-        other => other.replace('_', " "),
-    }
-}
-
-/// Read and parse `path` (a fit.json).
+/// Read and validate `path` (a fit.json).
 pub fn read(path: &Path) -> Result<FitRecord> {
-    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-    parse(&text, path)
+    let fit = crate::fit::record::read(path)?;
+    from_fit(fit, path)
 }
 
-/// Parse fit.json text; `file` names it in errors.
-pub fn parse(text: &str, file: &Path) -> Result<FitRecord> {
-    let json: Value = serde_json::from_str(text).map_err(|e| {
-        Error::input(
-            Location {
-                file: Some(file.to_path_buf()),
-                line: Some(e.line()),
-                key: None,
-            },
-            format!("not valid JSON: {e}"),
-        )
-    })?;
-    if !json.is_object() {
-        return Err(bad(file, "", "fit.json must hold a JSON object"));
-    }
-    let seed = get_num(file, &json, "seed")?;
-    let draws = get_num(file, &json, "draws")?;
+/// Header and validated prior statements of a record; `file` names it in errors.
+pub fn from_fit(fit: FitResult, file: &Path) -> Result<FitRecord> {
     let header = Header {
-        title: get_str(file, &json, "title")?,
-        template: get_str(file, &json, "template")?,
-        tool_version: get_str(file, &json, "tool_version")?,
-        spec_digest: get_str(file, &json, "spec_digest")?,
-        seed: seed as u64,
-        draws: draws as u64,
-        verdict: verdict_words(&get_str(file, &json, "verdict")?),
+        title: fit.title.clone(),
+        template: fit.template.clone(),
+        tool_version: fit.tool_version.clone(),
+        spec_digest: fit.spec_digest.clone(),
+        seed: fit.seed,
+        draws: fit.draws as u64,
+        verdict: fit.verdict.words().to_string(),
         date: super::today(),
     };
-    let prior = get(file, &json, "prior")?
-        .as_array()
-        .ok_or_else(|| bad(file, "prior", "expected an array of prior statements"))?;
-    let mut items = Vec::new();
-    for (k, st) in prior.iter().enumerate() {
-        items.push(item(file, k, st)?);
-    }
+    let items = fit
+        .prior
+        .iter()
+        .enumerate()
+        .map(|(k, st)| item(file, k, st))
+        .collect::<Result<Vec<_>>>()?;
     Ok(FitRecord {
         file: file.to_path_buf(),
         header,
         items,
-        json,
+        fit,
     })
 }
 
-fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
+fn item(file: &Path, k: usize, st: &PriorStatement) -> Result<Item> {
     let key = |s: &str| format!("prior[{k}].{s}");
-    let parameter = st
-        .get("parameter")
-        .and_then(Value::as_str)
-        .ok_or_else(|| {
-            bad(
-                file,
-                &key("parameter"),
-                "expected the parameter's name (a string)",
-            )
-        })?
-        .to_string();
-    let about = st
-        .get("about")
-        .and_then(Value::as_str)
-        .unwrap_or_default()
-        .to_string();
-    if let Some(code) = st.get("code") {
-        return supplied(file, &key("code"), parameter, about, code);
+    let parameter = st.parameter.clone();
+    let about = st.about.clone();
+    if let Some(code) = &st.code {
+        return Ok(Item::Supplied(Supplied {
+            parameter,
+            about,
+            code: code.clone(),
+        }));
     }
-    let fam_name = st.get("family").and_then(Value::as_str).ok_or_else(|| {
-        bad(
+    let fam_name = st.family.as_str();
+    if fam_name.is_empty() {
+        return Err(bad(
             file,
             &key("family"),
             format!(
                 "prior statement for `{parameter}` has neither a family nor template-supplied code"
             ),
-        )
-    })?;
+        ));
+    }
     let Some(family) = crate::dist::family(fam_name) else {
         // A template's own structured prior (e.g. a horseshoe on regression
         // coefficients) without supplied code: readable by the report, and every
@@ -197,11 +100,7 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
             code: BTreeMap::new(),
         }));
     };
-    let pairs = st
-        .get("params")
-        .and_then(Value::as_array)
-        .ok_or_else(|| bad(file, &key("params"), "expected [[name, value], ...]"))?;
-    if pairs.len() != family.params.len() {
+    if st.params.len() != family.params.len() {
         return Err(bad(
             file,
             &key("params"),
@@ -209,32 +108,20 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
                 "{fam_name} takes {} parameters ({}), found {}",
                 family.params.len(),
                 family.params.join(", "),
-                pairs.len()
+                st.params.len()
             ),
         ));
     }
     let mut params = Vec::new();
-    for (j, (pair, want)) in pairs.iter().zip(family.params).enumerate() {
-        let pk = format!("prior[{k}].params[{j}]");
-        let name = pair.get(0).and_then(Value::as_str);
-        let value = pair.get(1).and_then(number);
-        match (name, value) {
-            (Some(n), Some(v)) if n == *want => params.push(v),
-            (Some(n), Some(_)) => {
-                return Err(bad(
-                    file,
-                    &pk,
-                    format!("{fam_name} expects `{want}` here, found `{n}`"),
-                ))
-            }
-            _ => {
-                return Err(bad(
-                    file,
-                    &pk,
-                    format!("expected [\"{want}\", number], found {}", short(pair)),
-                ))
-            }
+    for (j, ((name, value), want)) in st.params.iter().zip(family.params).enumerate() {
+        if name != want {
+            return Err(bad(
+                file,
+                &format!("prior[{k}].params[{j}]"),
+                format!("{fam_name} expects `{want}` here, found `{name}`"),
+            ));
         }
+        params.push(*value);
     }
     // Validate the values with the family itself.
     (family.build)(&params).map_err(|e| bad(file, &key("params"), e.to_string()))?;
@@ -243,38 +130,5 @@ fn item(file: &Path, k: usize, st: &Value) -> Result<Item> {
         family,
         params,
         about,
-    }))
-}
-
-fn supplied(
-    file: &Path,
-    key: &str,
-    parameter: String,
-    about: String,
-    code: &Value,
-) -> Result<Item> {
-    let err = || {
-        bad(
-            file,
-            key,
-            "expected { <language> = { <section> = [lines] } }",
-        )
-    };
-    let mut out = BTreeMap::new();
-    for (lang, sections) in code.as_object().ok_or_else(err)? {
-        let mut m = BTreeMap::new();
-        for (sec, lines) in sections.as_object().ok_or_else(err)? {
-            let v: Option<Vec<String>> = lines
-                .as_array()
-                .map(|a| a.iter().map(|l| l.as_str().map(str::to_string)).collect())
-                .unwrap_or(None);
-            m.insert(sec.clone(), v.ok_or_else(err)?);
-        }
-        out.insert(lang.clone(), m);
-    }
-    Ok(Item::Supplied(Supplied {
-        parameter,
-        about,
-        code: out,
     }))
 }

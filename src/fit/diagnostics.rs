@@ -20,17 +20,21 @@
 
 use super::objective::{from_eta, Objective};
 use nalgebra::{DMatrix, SymmetricEigen};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Direction {
+    #[serde(with = "crate::numerics::ext::num")]
     pub eigenvalue: f64,
     /// eigenvalue / largest eigenvalue
+    #[serde(with = "crate::numerics::ext::num")]
     pub ratio: f64,
     /// Change of D for one unit of η along the direction, in noise floors.
+    #[serde(with = "crate::numerics::ext::num")]
     pub floors_per_unit: f64,
     /// δ*: how far (in η units) one can move before D rises by one noise floor.
+    #[serde(with = "crate::numerics::ext::num")]
     pub indistinguishable_halfwidth: f64,
     pub undetermined: bool,
     /// The call from the profile along the direction (determined without a
@@ -44,7 +48,7 @@ pub struct Direction {
     pub description: String,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Identifiability {
     pub directions: Vec<Direction>,
     pub at_bound: Vec<String>,
@@ -55,11 +59,13 @@ pub struct Identifiability {
     /// The profiles behind the calls (weak directions and hyperparameters at a bound).
     pub lines: Vec<super::profile::Line>,
     /// The floor the calls are measured in (see [`super::profile`]).
+    #[serde(with = "crate::numerics::ext::num")]
     pub reference_floor: f64,
     /// D along each free hyperparameter, others held at the optimum: (value, D).
     pub profiles: BTreeMap<String, Vec<(f64, f64)>>,
-    pub profile_rule: &'static str,
+    pub profile_rule: String,
     /// The largest finite-difference step (η units); steep coordinates use shorter ones.
+    #[serde(with = "crate::numerics::ext::num")]
     pub step: f64,
 }
 
@@ -387,7 +393,8 @@ pub fn analyse(
             "other hyperparameters held at the optimum; a quarter of the draws"
         } else {
             "not traced (batch model folder; `fit` on the row's spec.toml traces them)"
-        },
+        }
+        .to_string(),
         step: STEP,
     }
 }

@@ -15,6 +15,7 @@ pub mod mc_error;
 pub mod objective;
 pub mod pareto;
 pub mod profile;
+pub mod record;
 pub mod replicate;
 pub mod simplex;
 pub mod tiebreak;
@@ -26,30 +27,51 @@ use crate::rng;
 use crate::spec::Spec;
 use objective::Objective;
 use rayon::prelude::*;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::time::Instant;
 
 pub use verdict::{BeliefReport, Verdict};
 
 /// One local search, for the record.
-#[derive(Debug, Clone, Serialize)]
+/// A stage of the optimiser, for the record.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Stage {
+    /// Nelder–Mead on the coarse draws.
+    #[serde(rename = "coarse")]
+    Coarse,
+    /// Newton's method at full draws.
+    #[serde(rename = "newton")]
+    Newton,
+    /// Newton, then Nelder–Mead at full draws.
+    #[serde(rename = "newton+simplex")]
+    NewtonSimplex,
+    /// Nelder–Mead at full draws (warm starts).
+    #[serde(rename = "full")]
+    Full,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SearchRecord {
-    pub stage: &'static str,
+    pub stage: Stage,
     pub start: usize,
+    #[serde(with = "crate::numerics::ext::num")]
     pub cost: f64,
     pub iterations: u64,
     pub stop: simplex::Stop,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Totals {
+    #[serde(with = "crate::numerics::ext::num")]
     pub in_sample: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub fresh: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub noise_floor: f64,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct OptimiserRecord {
     pub evaluations: u64,
     pub starts: usize,
@@ -57,9 +79,38 @@ pub struct OptimiserRecord {
     pub searches: Vec<SearchRecord>,
 }
 
-/// The outcome of a fit: what the writers need, and nothing of the spec's raw form.
-#[derive(Debug, Clone, Serialize)]
+/// The tie-break a fit applied.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum TieBreakUsed {
+    /// None: no direction was flat, or `tie_break = "off"`.
+    Off,
+    /// The widest prior within one reference floor of the best.
+    Widest,
+    /// The knee of the Pareto front.
+    Knee,
+    /// A fixed weight κ on the secondary objective (noise floors).
+    Kappa(f64),
+}
+
+impl TieBreakUsed {
+    pub fn words(&self) -> String {
+        match self {
+            TieBreakUsed::Off => "off".into(),
+            TieBreakUsed::Widest => "widest".into(),
+            TieBreakUsed::Knee => "knee".into(),
+            TieBreakUsed::Kappa(k) => format!("kappa {k}"),
+        }
+    }
+}
+
+/// The outcome of a fit: what the writers need, and nothing of the spec's raw
+/// form. It is the fit record: `fit.json` is this struct, written and read only
+/// through [`record`] (versioned by [`record::SCHEMA_VERSION`]).
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct FitResult {
+    /// Version of the fit.json layout ([`record::SCHEMA_VERSION`]).
+    pub schema_version: u32,
     pub title: String,
     pub template: String,
     pub spec_digest: String,
@@ -76,13 +127,14 @@ pub struct FitResult {
     pub total: Totals,
     pub verdict: Verdict,
     pub optimiser: OptimiserRecord,
+    #[serde(with = "crate::numerics::ext::num")]
     pub wall_time_s: f64,
     pub prior: Vec<crate::templates::PriorStatement>,
     pub tool_version: String,
     /// Curvature analysis at the optimum: which hyperparameters the beliefs leave undetermined.
     pub identifiability: diagnostics::Identifiability,
-    /// What the tie-break did: "off", "kappa", "widest" or "knee".
-    pub tie_break: String,
+    /// What the tie-break did.
+    pub tie_break: TieBreakUsed,
     /// The Pareto front between discrepancy and spread, when traced.
     pub pareto: Option<pareto::Front>,
     /// Spread of the fitted hyperparameters across independent seeds, when asked.
@@ -104,12 +156,11 @@ pub struct FitResult {
 /// How the number of draws was chosen: fixed by the file or the command line, or
 /// raised by precision mode until every determined hyperparameter's Monte Carlo
 /// error met its target.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct DrawsRecord {
-    /// "fixed" or "precision".
-    pub mode: &'static str,
-    /// The fitting draws' points ("scrambled-sobol" or "independent").
-    pub points: &'static str,
+    pub mode: DrawsMode,
+    /// The fitting draws' points.
+    pub points: rng::Points,
     /// Precision mode's relative target (its location target is
     /// min(0.1·δ*, 0.005) on the optimiser's scale).
     pub target: Option<f64>,
@@ -117,6 +168,16 @@ pub struct DrawsRecord {
     pub steps: Vec<(usize, f64)>,
     /// Whether the last fit met the target (always true in fixed mode).
     pub reached: bool,
+}
+
+/// How the number of draws was set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum DrawsMode {
+    /// By `draws` in the file or on the command line.
+    Fixed,
+    /// Raised by precision mode.
+    Precision,
 }
 
 /// Progress callback: (done, total) local searches.
@@ -252,7 +313,7 @@ pub fn optimise(
     let mut searches: Vec<SearchRecord> = locals
         .iter()
         .map(|(i, r)| SearchRecord {
-            stage: "coarse",
+            stage: Stage::Coarse,
             start: *i,
             cost: r.f,
             iterations: r.iterations,
@@ -374,7 +435,7 @@ struct Refined {
     f: f64,
     hessian: Option<(nalgebra::DMatrix<f64>, Vec<f64>)>,
     iterations: u64,
-    stage: &'static str,
+    stage: Stage,
     stop: simplex::Stop,
 }
 
@@ -433,7 +494,7 @@ fn refine(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
     };
     let x0 = &x0[..];
     let r = newton(obj, coarse, x0, tol, d);
-    if r.stage != "newton" || r.f <= ROUGH * obj.floor() {
+    if r.stage != Stage::Newton || r.f <= ROUGH * obj.floor() {
         return r;
     }
     let f = |x: &[f64]| obj.cost(x);
@@ -452,7 +513,7 @@ fn refine(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
             f: p.f,
             hessian: None,
             iterations: r.iterations + p.iterations,
-            stage: "newton+simplex",
+            stage: Stage::NewtonSimplex,
             stop: p.stop,
         }
     } else {
@@ -526,7 +587,7 @@ fn newton(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
             f: fx,
             hessian: Some((h, steps)),
             iterations,
-            stage: "newton",
+            stage: Stage::Newton,
             stop: simplex::Stop::Converged,
         };
         if predicted < tol {
@@ -582,13 +643,13 @@ fn newton(obj: &Objective, coarse: &Objective, x0: &[f64], tol: f64, d: usize) -
         f: r.f,
         hessian: None,
         iterations: iterations + r.iterations,
-        stage: "full",
+        stage: Stage::Full,
         stop: r.stop,
     }
 }
 
 /// What set a hyperparameter's value.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum SetBy {
     /// The beliefs determine it (the optimum).
@@ -623,7 +684,7 @@ pub struct Point {
     pub opt: OptimiserRecord,
     pub ident: diagnostics::Identifiability,
     pub front: Option<pareto::Front>,
-    pub tie_break: String,
+    pub tie_break: TieBreakUsed,
     /// Per free hyperparameter: what set it, and its Monte Carlo standard error
     /// on the optimiser's scale (None: not determined, or not estimated).
     pub set_by: Vec<SetBy>,
@@ -769,8 +830,8 @@ fn settle(spec: &Spec, o: Optimum) -> Result<Point> {
     let mut moves = Vec::new();
     let any_flat = ident.lines.iter().any(|l| l.call.is_flat());
     let (eta, front, how) = match spec.fit.tie_break {
-        TieBreak::Off => (eta0.clone(), None, "off".to_string()),
-        TieBreak::Auto | TieBreak::Widest if !any_flat => (eta0.clone(), None, "off".to_string()),
+        TieBreak::Off => (eta0.clone(), None, TieBreakUsed::Off),
+        TieBreak::Auto | TieBreak::Widest if !any_flat => (eta0.clone(), None, TieBreakUsed::Off),
         TieBreak::Auto | TieBreak::Widest => {
             let quarter = Objective::new(
                 spec,
@@ -784,7 +845,7 @@ fn settle(spec: &Spec, o: Optimum) -> Result<Point> {
                 .fit
                 .trace_front
                 .then(|| pareto::trace(&mut obj, &eta0, "widest"));
-            (x, front, "widest".to_string())
+            (x, front, TieBreakUsed::Widest)
         }
         TieBreak::Kappa(k) => {
             obj.kappa = k * obj.floor();
@@ -797,19 +858,19 @@ fn settle(spec: &Spec, o: Optimum) -> Result<Point> {
                 1e-3 * obj.floor(),
             );
             obj.kappa = 0.0;
-            (r.x, None, format!("kappa {k}"))
+            (r.x, None, TieBreakUsed::Kappa(k))
         }
         TieBreak::Knee => {
             let f = pareto::trace(&mut obj, &eta0, "knee");
             let x = obj.eta(&f.points[f.chosen].hyperparameters);
-            (x, Some(f), "knee".to_string())
+            (x, Some(f), TieBreakUsed::Knee)
         }
     };
     opt.evaluations += obj.evaluations();
     // What set each free hyperparameter.
     let hy = spec.hypers();
     let names: Vec<&str> = obj.free.iter().map(|&i| hy[i].name.as_str()).collect();
-    let tie_ran = how != "off";
+    let tie_ran = how != TieBreakUsed::Off;
     let set_by: Vec<SetBy> = (0..d)
         .map(|k| {
             let flat = ident
@@ -842,14 +903,14 @@ fn settle(spec: &Spec, o: Optimum) -> Result<Point> {
         .map(|l| l.direction.clone())
         .collect();
     let mc_eta = if spec.fit.mc_errors && d > 0 {
-        let mv: &[tiebreak::Move] = if how == "widest" { &moves } else { &[] };
+        let mv: &[tiebreak::Move] = if how == TieBreakUsed::Widest { &moves } else { &[] };
         let mut e = mc_error::errors(
             spec, spec.draws, &eta, &hess, &steps, &inner, &flat_dirs, mv,
         );
         for (k, s) in set_by.iter().enumerate() {
             if *s == SetBy::Bound {
                 e[k] = Some(0.0);
-            } else if *s == SetBy::TieBreak && how != "widest" {
+            } else if *s == SetBy::TieBreak && how != TieBreakUsed::Widest {
                 e[k] = None;
             }
         }
@@ -951,6 +1012,7 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
     };
     let hy = spec.hypers();
     Ok(FitResult {
+        schema_version: record::SCHEMA_VERSION,
         title: spec.title.clone(),
         template: spec.model.template().to_string(),
         spec_digest: spec.digest.clone(),
@@ -1006,11 +1068,11 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
             .collect(),
         draws_chosen: DrawsRecord {
             mode: if spec.precision.is_some() {
-                "precision"
+                DrawsMode::Precision
             } else {
-                "fixed"
+                DrawsMode::Fixed
             },
-            points: spec.points.name(),
+            points: spec.points,
             target: spec.precision.map(|p| p.relative),
             steps: vec![(n, worst)],
             reached: spec.precision.is_none() || worst <= 1.0,
@@ -1063,10 +1125,10 @@ pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
         }
     }
     let spec = raised.as_ref().unwrap_or(spec);
-    let applied = match (point.tie_break.as_str(), spec.fit.tie_break) {
+    let applied = match (point.tie_break, spec.fit.tie_break) {
         (_, TieBreak::Kappa(k)) => TieBreak::Kappa(k),
-        ("knee", _) => TieBreak::Knee,
-        ("widest", _) => TieBreak::Widest,
+        (TieBreakUsed::Knee, _) => TieBreak::Knee,
+        (TieBreakUsed::Widest, _) => TieBreak::Widest,
         _ => TieBreak::Off,
     };
     let mut r = assemble(spec, point, started)?;

@@ -21,22 +21,27 @@ pub const KAPPAS: [f64; 11] = [
     0.0, 0.03, 0.1, 0.3, 1.0, 3.0, 10.0, 30.0, 100.0, 300.0, 1000.0,
 ];
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, serde::Deserialize)]
 pub struct FrontPoint {
+    #[serde(with = "crate::numerics::ext::num")]
     pub kappa: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub discrepancy: f64,
     /// S = −mean ln sd + pull to the reference (smaller is wider).
+    #[serde(with = "crate::numerics::ext::num")]
     pub secondary: f64,
+    #[serde(with = "crate::numerics::ext::nums")]
     pub hyperparameters: Vec<f64>,
     pub dominated: bool,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, serde::Deserialize)]
 pub struct Front {
     pub points: Vec<FrontPoint>,
     /// Index into `points` of the chosen prior.
     pub chosen: usize,
     pub rule: String,
+    #[serde(with = "crate::numerics::ext::num")]
     pub noise_floor: f64,
     pub names: Vec<String>,
 }

@@ -28,7 +28,6 @@
 use super::objective::Objective;
 use super::tiebreak::Stiff;
 use crate::numerics::logistic;
-use serde::Serialize;
 
 /// Width of the flat interval (fraction of the range, t scale) that separates
 /// determined from undetermined.
@@ -44,7 +43,7 @@ pub const CANDIDATE: f64 = 0.1;
 /// First step of the outward search, η units.
 const FIRST_STEP: f64 = 0.05;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Call {
     Determined,
@@ -70,25 +69,29 @@ impl Call {
 }
 
 /// Where D first rises above the reference floor on one side.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, serde::Serialize, serde::Deserialize)]
 pub struct Edge {
     /// Distance from η* along the direction, η units.
+    #[serde(with = "crate::numerics::ext::num")]
     pub distance: f64,
     /// The search reached the edge of the range without D rising by a floor.
     pub open: bool,
     /// dD/ds at the edge (0 when open).
+    #[serde(with = "crate::numerics::ext::num")]
     pub slope: f64,
 }
 
 /// The profile of one direction and its call.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, serde::Serialize, serde::Deserialize)]
 pub struct Line {
     /// Unit vector over the free hyperparameters (η scale).
+    #[serde(with = "crate::numerics::ext::nums")]
     pub direction: Vec<f64>,
     pub description: String,
     pub minus: Edge,
     pub plus: Edge,
     /// Width of the flat interval on the t scale.
+    #[serde(with = "crate::numerics::ext::num")]
     pub width: f64,
     pub call: Call,
     /// For a hyperparameter at a bound: its index among the free ones.

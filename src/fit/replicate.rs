@@ -10,17 +10,22 @@ use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, serde::Deserialize)]
 pub struct Spread {
+    #[serde(with = "crate::numerics::ext::nums")]
     pub values: Vec<f64>,
+    #[serde(with = "crate::numerics::ext::num")]
     pub mean: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub sd: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub cv: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub relative_range: f64,
     pub flagged: bool,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, serde::Deserialize)]
 pub struct Replicates {
     pub seeds: Vec<u64>,
     pub per_hyperparameter: BTreeMap<String, Spread>,

@@ -17,7 +17,7 @@ impl<F: Fn(&[f64]) -> f64> CostFunction for Closure<'_, F> {
 }
 
 /// Why a local search stopped.
-#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Stop {
     Converged,
     MaxIterations,

@@ -15,11 +15,11 @@
 use crate::discrepancy::{discrepancy, Kind};
 use crate::spec::Belief;
 use crate::target::quantiles::Scale;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 pub const PROBS: [f64; 7] = [0.05, 0.1, 0.25, 0.5, 0.75, 0.9, 0.95];
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, PartialOrd, Ord)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, PartialOrd, Ord)]
 #[serde(rename_all = "snake_case")]
 pub enum Verdict {
     MetWithinNoise,
@@ -37,39 +37,49 @@ impl Verdict {
     }
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct AtomCheck {
-    #[serde(serialize_with = "crate::numerics::ext::f64")]
+    #[serde(with = "crate::numerics::ext::num")]
     pub at: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub believed: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub implied: f64,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct BeliefReport {
     pub label: String,
     pub quantity: String,
     pub stated_as: String,
     pub unit: Option<String>,
+    #[serde(with = "crate::numerics::ext::num")]
     pub weight: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub in_sample: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub fresh: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub noise_floor: f64,
     /// fresh / noise_floor
+    #[serde(with = "crate::numerics::ext::num")]
     pub ratio: f64,
+    #[serde(with = "crate::numerics::ext::num")]
     pub rms_cdf_gap: f64,
     pub verdict: Verdict,
     /// Plain-words description of a miss (empty when met within noise).
     pub how: Vec<String>,
+    #[serde(with = "crate::numerics::ext::nums")]
     pub probs: Vec<f64>,
-    #[serde(serialize_with = "crate::numerics::ext::vec")]
+    #[serde(with = "crate::numerics::ext::nums")]
     pub believed_quantiles: Vec<f64>,
-    #[serde(serialize_with = "crate::numerics::ext::vec")]
+    #[serde(with = "crate::numerics::ext::nums")]
     pub implied_quantiles: Vec<f64>,
     pub atoms: Vec<AtomCheck>,
     pub implied_mean: Option<f64>,
     pub implied_sd: Option<f64>,
     /// Mass of the implied distribution at +∞ (e.g. median never reached).
+    #[serde(with = "crate::numerics::ext::num")]
     pub implied_mass_at_inf: f64,
     /// The believed distribution as a curve, for plots (reports read it back).
     pub believed_curve: BelievedCurve,
@@ -86,10 +96,13 @@ pub struct BeliefReport {
 /// with the atoms listed separately. `cdf` is right-continuous: at an atom `a`
 /// it includes the atom's mass; the left limit is `cdf − mass`. `pdf` is the
 /// continuous part's density times its mass (so it integrates to 1 − Σ atoms).
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct BelievedCurve {
+    #[serde(with = "crate::numerics::ext::nums")]
     pub x: Vec<f64>,
+    #[serde(with = "crate::numerics::ext::nums")]
     pub cdf: Vec<f64>,
+    #[serde(with = "crate::numerics::ext::nums")]
     pub pdf: Vec<f64>,
     pub atoms: Vec<crate::dist::Atom>,
 }

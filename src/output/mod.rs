@@ -26,16 +26,9 @@ pub fn ensure_dir(dir: &Path) -> Result<()> {
     Ok(())
 }
 
-/// `fit.json`: the result with documented keys (see README, "Outputs").
+/// `fit.json`: the fit record (see README, "Outputs", and [`crate::fit::record`]).
 pub fn fit_json(r: &FitResult) -> Result<String> {
-    let mut v = serde_json::to_value(r).map_err(|e| Error::Numeric(e.to_string()))?;
-    if let Some(o) = v.as_object_mut() {
-        o.insert(
-            "tool".into(),
-            serde_json::json!({ "name": "priorsmith", "version": r.tool_version }),
-        );
-    }
-    serde_json::to_string_pretty(&v).map_err(|e| Error::Numeric(e.to_string()))
+    crate::fit::record::to_json(r)
 }
 
 /// `draws.csv`: one row per fresh draw, one column per belief's quantity.

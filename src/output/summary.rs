@@ -34,7 +34,7 @@ pub fn render(r: &FitResult) -> String {
         "template {}, {} draws ({}, {}), seed {}, discrepancy {}, spec sha256 {}",
         r.template,
         r.draws,
-        r.draws_chosen.points,
+        r.draws_chosen.points.name(),
         draws_note(r),
         r.seed,
         r.discrepancy.name(),
@@ -230,8 +230,8 @@ pub fn render(r: &FitResult) -> String {
             }
         );
     }
-    match (&r.pareto, r.tie_break.as_str()) {
-        (Some(f), "knee") => {
+    match (&r.pareto, r.tie_break) {
+        (Some(f), crate::fit::TieBreakUsed::Knee) => {
             let p = &f.points[f.chosen];
             let _ = writeln!(
                 s,
@@ -243,14 +243,14 @@ pub fn render(r: &FitResult) -> String {
                 -p.secondary
             );
         }
-        (_, "widest") => {
+        (_, crate::fit::TieBreakUsed::Widest) => {
             let _ = writeln!(
                 s,
                 "  tie-break: widest prior within one reference floor of the best along the undetermined and borderline directions"
             );
         }
         (_, t) => {
-            let _ = writeln!(s, "  tie-break: {t}");
+            let _ = writeln!(s, "  tie-break: {}", t.words());
         }
     }
     if let Some(rep) = &r.replicates {

@@ -17,7 +17,8 @@
 pub mod svg;
 
 use crate::error::{Error, Result};
-use crate::export::record::{self, number, short};
+use crate::export::record;
+use crate::fit::{FitResult, Verdict};
 use crate::output::{self, summary::CAUTION};
 use serde_json::Value;
 use std::fmt::Write;
@@ -89,119 +90,80 @@ pub struct BeliefView {
     pub draws: Vec<f64>,
 }
 
-fn nums(file: &Path, key: &str, v: Option<&Value>) -> Result<Vec<f64>> {
+/// A record part as a JSON value, for display.
+fn as_value<T: serde::Serialize>(x: &T) -> Value {
+    serde_json::to_value(x).unwrap_or(Value::Null)
+}
+
+/// A JSON number, or ±inf written as a string (the record's convention).
+fn number(v: &Value) -> Option<f64> {
     match v {
-        None => Ok(Vec::new()),
-        Some(Value::Array(a)) => a
-            .iter()
-            .enumerate()
-            .map(|(i, x)| {
-                number(x).ok_or_else(|| {
-                    record::bad(
-                        file,
-                        &format!("{key}[{i}]"),
-                        format!("expected a number, found {}", short(x)),
-                    )
-                })
-            })
-            .collect(),
-        Some(other) => Err(record::bad(
-            file,
-            key,
-            format!("expected an array, found {}", short(other)),
-        )),
+        Value::Number(n) => n.as_f64(),
+        Value::String(s) if s == "inf" => Some(f64::INFINITY),
+        Value::String(s) if s == "-inf" => Some(f64::NEG_INFINITY),
+        _ => None,
     }
 }
 
-fn numf(v: &Value, k: &str) -> f64 {
-    v.get(k).and_then(number).unwrap_or(f64::NAN)
+/// The code of a verdict (CSS class and mark).
+fn verdict_code(v: Verdict) -> &'static str {
+    match v {
+        Verdict::MetWithinNoise => "met_within_noise",
+        Verdict::MetApproximately => "met_approximately",
+        Verdict::NotMet => "not_met",
+    }
 }
 
-fn strf(v: &Value, k: &str) -> String {
-    v.get(k)
-        .and_then(Value::as_str)
-        .unwrap_or_default()
-        .to_string()
-}
-
-/// Parse the beliefs of fit.json and attach the draws of draws.csv.
-pub fn beliefs(file: &Path, json: &Value, draws_csv: &Path) -> Result<Vec<BeliefView>> {
-    let arr = record::get(file, json, "beliefs")?
-        .as_array()
-        .ok_or_else(|| record::bad(file, "beliefs", "expected an array"))?;
-    let cols = read_draws(draws_csv, arr.len())?;
+/// The beliefs of a fit record with the draws of draws.csv attached; `file`
+/// (the fit.json) names the record in errors.
+pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<BeliefView>> {
+    let cols = read_draws(draws_csv, fit.beliefs.len())?;
     let mut out = Vec::new();
-    for (k, (b, mut draws)) in arr.iter().zip(cols).enumerate() {
-        let key = |s: &str| format!("beliefs[{k}].{s}");
-        let label = strf(b, "label");
-        let curve = match b.get("believed_curve") {
-            None => None,
-            Some(c) => Some(Curve {
-                x: nums(file, &key("believed_curve.x"), c.get("x"))?,
-                cdf: nums(file, &key("believed_curve.cdf"), c.get("cdf"))?,
-                pdf: nums(file, &key("believed_curve.pdf"), c.get("pdf"))?,
-                atoms: c
-                    .get("atoms")
-                    .and_then(Value::as_array)
-                    .map(|a| a.iter().map(|x| (numf(x, "at"), numf(x, "mass"))).collect())
-                    .unwrap_or_default(),
-            }),
-        };
-        if let Some(c) = &curve {
-            if c.x.len() != c.cdf.len() || c.x.len() != c.pdf.len() {
-                return Err(record::bad(
-                    file,
-                    &key("believed_curve"),
-                    "x, cdf and pdf differ in length",
-                ));
-            }
+    for (k, (b, mut draws)) in fit.beliefs.iter().zip(cols).enumerate() {
+        let c = &b.believed_curve;
+        if c.x.len() != c.cdf.len() || c.x.len() != c.pdf.len() {
+            return Err(record::bad(
+                file,
+                &format!("beliefs[{k}].believed_curve"),
+                "x, cdf and pdf differ in length",
+            ));
         }
+        let curve = Some(Curve {
+            x: c.x.clone(),
+            cdf: c.cdf.clone(),
+            pdf: c.pdf.clone(),
+            atoms: c.atoms.iter().map(|a| (a.at, a.mass)).collect(),
+        });
         draws.sort_by(f64::total_cmp);
         out.push(BeliefView {
-            quantity: strf(b, "quantity"),
-            unit: b.get("unit").and_then(Value::as_str).map(str::to_string),
-            stated_as: strf(b, "stated_as"),
-            verdict: strf(b, "verdict"),
-            how: b
-                .get("how")
-                .and_then(Value::as_array)
-                .map(|a| {
-                    a.iter()
-                        .filter_map(|h| h.as_str().map(str::to_string))
-                        .collect()
-                })
-                .unwrap_or_default(),
-            ess: b.get("ess").and_then(Value::as_f64),
-            believed_ess: b.get("believed_ess").and_then(Value::as_f64),
-            fresh: numf(b, "fresh"),
-            noise_floor: numf(b, "noise_floor"),
-            ratio: numf(b, "ratio"),
-            rms: numf(b, "rms_cdf_gap"),
-            weight: numf(b, "weight"),
-            probs: nums(file, &key("probs"), b.get("probs"))?,
-            believed_q: nums(
-                file,
-                &key("believed_quantiles"),
-                b.get("believed_quantiles"),
-            )?,
-            implied_q: nums(file, &key("implied_quantiles"), b.get("implied_quantiles"))?,
+            label: b.label.clone(),
+            quantity: b.quantity.clone(),
+            unit: b.unit.clone(),
+            stated_as: b.stated_as.clone(),
+            verdict: verdict_code(b.verdict).to_string(),
+            how: b.how.clone(),
+            ess: b.ess,
+            believed_ess: b.believed_ess,
+            fresh: b.fresh,
+            noise_floor: b.noise_floor,
+            ratio: b.ratio,
+            rms: b.rms_cdf_gap,
+            weight: b.weight,
+            probs: b.probs.clone(),
+            believed_q: b.believed_quantiles.clone(),
+            implied_q: b.implied_quantiles.clone(),
             atoms: b
-                .get("atoms")
-                .and_then(Value::as_array)
-                .map(|a| {
-                    a.iter()
-                        .map(|x| AtomView {
-                            at: numf(x, "at"),
-                            believed: numf(x, "believed"),
-                            implied: numf(x, "implied"),
-                        })
-                        .collect()
+                .atoms
+                .iter()
+                .map(|a| AtomView {
+                    at: a.at,
+                    believed: a.believed,
+                    implied: a.implied,
                 })
-                .unwrap_or_default(),
-            implied_inf: numf(b, "implied_mass_at_inf"),
+                .collect(),
+            implied_inf: b.implied_mass_at_inf,
             curve,
             draws,
-            label,
         });
     }
     Ok(out)
@@ -602,18 +564,11 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
 }
 
 /// Free hyperparameters within their fitting bounds, one track each.
-pub fn hyper_plot(id: &str, json: &Value) -> Option<String> {
-    let free: Vec<String> = json
-        .get("free")?
-        .as_array()?
-        .iter()
-        .filter_map(|v| v.as_str().map(str::to_string))
-        .collect();
+pub fn hyper_plot(id: &str, fit: &FitResult) -> Option<String> {
+    let free = &fit.free;
     if free.is_empty() {
         return None;
     }
-    let hv = json.get("hyperparameters")?;
-    let bounds = json.get("bounds")?;
     let row = 40.0;
     let h = 40.0 + row * free.len() as f64;
     let (x0, x1) = (200.0, svg::W - 60.0);
@@ -627,14 +582,9 @@ pub fn hyper_plot(id: &str, json: &Value) -> Option<String> {
     let _ = writeln!(b, "<text class=\"note\" x=\"10\" y=\"18\">fitted value (dot) within the bounds it was fitted in; log scale where the bounds span ≥ 100×</text>");
     for (k, name) in free.iter().enumerate() {
         let y = 44.0 + row * k as f64;
-        let v = hv.get(name).and_then(number).unwrap_or(f64::NAN);
-        let bd = bounds.get(name).and_then(Value::as_array);
-        let (lo, hi) = match bd {
-            Some(a) if a.len() == 2 => (
-                a[0].as_f64().unwrap_or(f64::NAN),
-                a[1].as_f64().unwrap_or(f64::NAN),
-            ),
-            _ => continue,
+        let v = fit.hyperparameters.get(name).copied().unwrap_or(f64::NAN);
+        let Some(&(lo, hi)) = fit.bounds.get(name) else {
+            continue;
         };
         let log = lo > 0.0 && hi / lo >= 100.0;
         let t = if log {
@@ -758,9 +708,8 @@ fn diagnostic_plot(id: &str, key: &str, v: &Value) -> Option<String> {
 /// Everything the report writes: (relative path, bytes).
 pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     let rec = record::read(&dir.join("fit.json"))?;
-    let file = rec.file.clone();
-    let json = &rec.json;
-    let bs = beliefs(&file, json, &dir.join("draws.csv"))?;
+    let fit = &rec.fit;
+    let bs = beliefs(&rec.file, fit, &dir.join("draws.csv"))?;
     let h = &rec.header;
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let mut svgs = |name: &str, inline: &str| {
@@ -778,21 +727,24 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         ));
     };
     let mut html = String::new();
-    let discrepancy = strf(json, "discrepancy");
+    let discrepancy = match fit.discrepancy {
+        crate::discrepancy::Kind::CramerVonMises => "cramer-von-mises",
+        crate::discrepancy::Kind::AndersonDarling => "anderson-darling",
+    };
     let _ = writeln!(html, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<meta name=\"generator\" content=\"priorsmith {ver}\">\n<title>Prior report — {title}</title>\n<style>{CSS}</style>\n</head>\n<body>\n<main>\n<header>\n<p class=\"kicker\">priorsmith prior report</p>\n<h1>{title}</h1>\n<p class=\"meta\">template <b>{tpl}</b> · {draws} prior draws · seed {seed} · discrepancy {disc} · priorsmith {ver} · spec sha256 <code title=\"{dig}\">{dshort}</code> · report written {date}</p>",
         ver = esc(&h.tool_version),
         title = esc(&h.title),
         tpl = esc(&h.template),
         draws = h.draws,
         seed = h.seed,
-        disc = esc(&discrepancy),
+        disc = esc(discrepancy),
         dig = esc(&h.spec_digest),
         dshort = esc(&h.spec_digest[..12.min(h.spec_digest.len())]),
         date = esc(&h.date),
     );
-    let overall = strf(json, "verdict");
+    let overall = verdict_code(fit.verdict);
     let _ = writeln!(html, "<p class=\"verdict {overall}\"><span class=\"mark\">{}</span> Overall: beliefs {}</p>\n<aside class=\"caution\" role=\"note\"><b>Caution.</b> {}</aside>\n</header>",
-        mark(&overall),
+        mark(overall),
         esc(&h.verdict),
         esc(CAUTION.trim_start_matches("Caution: "))
     );
@@ -878,64 +830,31 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     }
     // The prior.
     html.push_str("<section id=\"prior\">\n<h2>The fitted prior</h2>\n<table class=\"prior\"><thead><tr><th>parameter</th><th>meaning</th><th>family</th><th>parameters</th></tr></thead><tbody>\n");
-    for st in json
-        .get("prior")
-        .and_then(Value::as_array)
-        .into_iter()
-        .flatten()
-    {
-        let params = st
-            .get("params")
-            .and_then(Value::as_array)
-            .map(|a| {
-                a.iter()
-                    .map(|p| {
-                        format!(
-                            "{} = {}",
-                            p.get(0).and_then(Value::as_str).unwrap_or("?"),
-                            p.get(1).and_then(number).map_or("?".into(), fnum)
-                        )
-                    })
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            })
-            .unwrap_or_else(|| "(supplied by the template)".into());
+    for st in &fit.prior {
+        let params = if st.code.is_some() || st.params.is_empty() {
+            "(supplied by the template)".to_string()
+        } else {
+            st.params
+                .iter()
+                .map(|(n, v)| format!("{n} = {}", fnum(*v)))
+                .collect::<Vec<_>>()
+                .join(", ")
+        };
         let _ = writeln!(
             html,
             "<tr><td><code>{}</code></td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            esc(&strf(st, "parameter")),
-            esc(&strf(st, "about")),
-            esc(&strf(st, "family")),
+            esc(&st.parameter),
+            esc(&st.about),
+            esc(&st.family),
             esc(&params)
         );
     }
     html.push_str("</tbody></table>\n<p class=\"help\"><code>priorsmith export DIR --to stan|pymc|brms|json</code> writes this prior as code.</p>\n");
     html.push_str("<h3>Hyperparameters</h3>\n<table class=\"hyper\"><thead><tr><th>hyperparameter</th><th>value</th><th>how set</th></tr></thead><tbody>\n");
-    let order: Vec<String> = json
-        .get("order")
-        .and_then(Value::as_array)
-        .map(|a| {
-            a.iter()
-                .filter_map(|v| v.as_str().map(str::to_string))
-                .collect()
-        })
-        .unwrap_or_default();
-    for name in &order {
-        let v = json
-            .get("hyperparameters")
-            .and_then(|m| m.get(name))
-            .and_then(number)
-            .unwrap_or(f64::NAN);
-        let how = match json
-            .get("bounds")
-            .and_then(|m| m.get(name))
-            .and_then(Value::as_array)
-        {
-            Some(a) if a.len() == 2 => {
-                let (lo, hi) = (
-                    a[0].as_f64().unwrap_or(f64::NAN),
-                    a[1].as_f64().unwrap_or(f64::NAN),
-                );
+    for name in &fit.order {
+        let v = fit.hyperparameters.get(name).copied().unwrap_or(f64::NAN);
+        let how = match fit.bounds.get(name) {
+            Some(&(lo, hi)) => {
                 let near = (v - lo).abs() < 1e-3 * (hi - lo) || (hi - v).abs() < 1e-3 * (hi - lo);
                 format!(
                     "fitted in [{}, {}]{}",
@@ -955,32 +874,35 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         );
     }
     html.push_str("</tbody></table>\n");
-    if let Some(hp) = hyper_plot("hyperparameters", json) {
+    if let Some(hp) = hyper_plot("hyperparameters", fit) {
         svgs("hyperparameters", &hp);
         let _ = writeln!(html, "<figure class=\"wide\">{hp}<figcaption>Each free hyperparameter's fitted value (dot) within the bounds it was fitted in; orange marks a value at a bound, where the bounds rather than the beliefs decided.</figcaption></figure>");
     }
     html.push_str("</section>\n");
     // Optional diagnostics, present when other parts of the program wrote them.
-    let diag: Vec<(&str, &str, &Value)> = [
-        (
-            "identifiability",
-            "Directions the beliefs leave undetermined",
-        ),
-        ("pareto", "Pareto front: faithfulness against spread"),
-        ("sweep", "Sensitivity sweep"),
-    ]
-    .iter()
-    .filter_map(|(k, t)| json.get(*k).map(|v| (*k, *t, v)))
-    .collect();
+    // The record's diagnostics as JSON values: shown as recorded, and plotted
+    // when they hold a numeric table.
+    let mut diag: Vec<(&str, &str, Value)> = vec![(
+        "identifiability",
+        "Directions the beliefs leave undetermined",
+        as_value(&fit.identifiability),
+    )];
+    if let Some(front) = &fit.pareto {
+        diag.push((
+            "pareto",
+            "Pareto front: faithfulness against spread",
+            as_value(front),
+        ));
+    }
     if !diag.is_empty() {
         html.push_str("<section id=\"diagnostics\">\n<h2>Diagnostics</h2>\n");
         for (key, title, v) in diag {
             let _ = writeln!(html, "<h3>{}</h3>", esc(title));
-            if let Some(p) = diagnostic_plot(&format!("diag-{key}"), key, v) {
+            if let Some(p) = diagnostic_plot(&format!("diag-{key}"), key, &v) {
                 svgs(&format!("diag-{key}"), &p);
                 let _ = writeln!(html, "<figure>{p}<figcaption>From the <code>{key}</code> entry of fit.json.</figcaption></figure>");
             }
-            let pretty = serde_json::to_string_pretty(v).unwrap_or_default();
+            let pretty = serde_json::to_string_pretty(&v).unwrap_or_default();
             let _ = writeln!(html, "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>", esc(&pretty));
         }
         html.push_str("</section>\n");

@@ -134,13 +134,17 @@ pub type Code = std::collections::BTreeMap<String, std::collections::BTreeMap<St
 
 /// A prior statement for reports and code export: parameter, family, values, and
 /// optionally the template's own code for it (vector priors, transformed scales).
-#[derive(Debug, Clone, serde::Serialize)]
+#[derive(Debug, Clone, serde::Serialize, serde::Deserialize)]
 pub struct PriorStatement {
     pub parameter: String,
+    /// Empty when the template supplies its own code.
+    #[serde(default)]
     pub family: String,
+    #[serde(default)]
     pub params: Vec<(String, f64)>,
+    #[serde(default)]
     pub about: String,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub code: Option<Code>,
 }
 
