@@ -5,10 +5,10 @@
 //! template's [`templates::Model`] and tabulated beliefs ([`target`]) → the
 //! deterministic objective on common random numbers ([`fit::objective`]) →
 //! optimiser ([`fit`]) → [`fit::FitResult`] → writers ([`output`]). The command
-//! line ([`cli`]) uses only what this library exposes.
+//! line is the binary's own module (`src/cli/`) and uses only what this library
+//! exposes.
 
 pub mod batch;
-pub mod cli;
 pub mod demo;
 pub mod design;
 pub mod discrepancy;

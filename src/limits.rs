@@ -11,10 +11,9 @@
 //!   in proportion when the budget is raised (each row holds a copy of the base
 //!   file's parsed table until it runs).
 //!
-//! The budget is a setting of the process (like the rayon thread count), not of a
-//! belief file: the same file gives the same numbers whatever the budget.
-
-use std::sync::atomic::{AtomicU64, Ordering};
+//! The budget is passed as a value (`spec::Overrides::max_memory_mb`), not kept
+//! in a global; it is not part of a belief file: the same file gives the same
+//! numbers whatever the budget.
 
 /// Default working-memory budget, MB (10⁶ bytes).
 pub const DEFAULT_MAX_MEMORY_MB: u64 = 4_096;
@@ -22,27 +21,19 @@ pub const DEFAULT_MAX_MEMORY_MB: u64 = 4_096;
 /// Batch rows allowed at the default budget.
 pub const MAX_BATCH_ROWS: usize = 100_000;
 
-static MAX_MEMORY_MB: AtomicU64 = AtomicU64::new(DEFAULT_MAX_MEMORY_MB);
-
-/// Set the working-memory budget in MB (at least 1).
-pub fn set_max_memory_mb(mb: u64) {
-    MAX_MEMORY_MB.store(mb.max(1), Ordering::Relaxed);
+/// The budget in MB: the one given (at least 1), or the default.
+pub fn budget_mb(given: Option<u64>) -> u64 {
+    given.map_or(DEFAULT_MAX_MEMORY_MB, |mb| mb.max(1))
 }
 
-/// The working-memory budget in MB.
-pub fn max_memory_mb() -> u64 {
-    MAX_MEMORY_MB.load(Ordering::Relaxed)
+/// A budget of `mb` MB in bytes.
+pub fn bytes(mb: u64) -> u64 {
+    mb.saturating_mul(1_000_000)
 }
 
-/// The working-memory budget in bytes.
-pub fn max_memory_bytes() -> u64 {
-    max_memory_mb().saturating_mul(1_000_000)
-}
-
-/// Rows a batch table may have under the current budget.
-pub fn max_batch_rows() -> usize {
-    let scaled =
-        (MAX_BATCH_ROWS as u128 * max_memory_mb() as u128 / DEFAULT_MAX_MEMORY_MB as u128).max(1);
+/// Rows a batch table may have under a budget of `mb` MB.
+pub fn max_batch_rows(mb: u64) -> usize {
+    let scaled = (MAX_BATCH_ROWS as u128 * mb as u128 / DEFAULT_MAX_MEMORY_MB as u128).max(1);
     usize::try_from(scaled).unwrap_or(usize::MAX)
 }
 
@@ -51,11 +42,10 @@ pub fn mb(bytes: u64) -> u64 {
     bytes.div_ceil(1_000_000)
 }
 
-/// The hint every memory-limit message ends with.
-pub fn hint() -> String {
+/// The hint every memory-limit message ends with, for a budget of `mb` MB.
+pub fn hint(mb: u64) -> String {
     format!(
-        "the limit is {} MB (default {DEFAULT_MAX_MEMORY_MB} MB); raise it deliberately with \
-         --max-memory MB if the machine has the memory",
-        max_memory_mb()
+        "the limit is {mb} MB (default {DEFAULT_MAX_MEMORY_MB} MB); raise it deliberately with \
+         --max-memory MB if the machine has the memory"
     )
 }

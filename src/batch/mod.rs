@@ -157,7 +157,8 @@ pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan>
     let base_text = std::fs::read_to_string(base_path).map_err(|e| Error::io(base_path, e))?;
     let base = spec::parse_table(&base_text, Some(base_path))?;
     let t = table::read(table_path)?;
-    let cap = crate::limits::max_batch_rows();
+    let budget = crate::limits::budget_mb(ov.max_memory_mb);
+    let cap = crate::limits::max_batch_rows(budget);
     if t.rows.len() > cap {
         // Each planned row holds a parsed copy of the base file until it runs:
         // about 16 bytes per byte of its text (TOML nodes, keys, strings), at least 4 kB.
@@ -169,7 +170,7 @@ pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan>
             t.rows.len(),
             crate::limits::mb(per_row.saturating_mul(t.rows.len() as u64)),
             base_path.display(),
-            crate::limits::hint()
+            crate::limits::hint(budget)
         )));
     }
     let mut seen: BTreeMap<String, usize> = BTreeMap::new();
@@ -604,8 +605,9 @@ pub fn assemble(
 /// Merge the row records of batch folders into `out` (results.csv, errors.csv,
 /// timings.csv). The folders must come from the same batch (same base file,
 /// table and overrides, read from their batch.json); the tables are re-read
-/// so that only records matching the current rows count.
-pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<RunReport> {
+/// so that only records matching the current rows count. `max_memory_mb`: the
+/// working-memory budget (it caps the rows a table may have).
+pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result<RunReport> {
     let mut man: Option<Manifest> = None;
     for d in dirs {
         let p = d.join("batch.json");
@@ -649,6 +651,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<RunReport> {
         seed: None,
         draws: man.draws,
         max_draws: man.max_draws,
+        max_memory_mb,
     };
     let plan = plan(&man.base, &man.table, &ov)?;
     let mut recs: BTreeMap<usize, RowRecord> = BTreeMap::new();

@@ -1,11 +1,11 @@
 //! `priorsmith batch` and `priorsmith merge`: many models from one base belief
-//! file and a table of changes (see [`crate::batch`] and docs/sweep-and-batch.md).
+//! file and a table of changes (see [`priorsmith::batch`] and docs/sweep-and-batch.md).
 
 use super::progress_bar;
-use crate::batch::{self, ModelFiles, RunOptions};
-use crate::error::Error;
-use crate::output;
-use crate::spec::Overrides;
+use priorsmith::batch::{self, ModelFiles, RunOptions};
+use priorsmith::error::Error;
+use priorsmith::output;
+use priorsmith::spec::Overrides;
 use anyhow::{anyhow, Result};
 use std::path::PathBuf;
 
@@ -32,6 +32,9 @@ pub struct BatchArgs {
     /// summary.txt, spec.toml) or full (also draws.csv and the profiles, for `report`)
     #[arg(long, value_parser = ModelFiles::NAMES, default_value = "lean")]
     pub model_files: String,
+    /// The global --max-memory, filled in before the command runs.
+    #[arg(skip)]
+    pub max_memory: Option<u64>,
 }
 
 #[derive(clap::Args, Debug, Clone)]
@@ -42,6 +45,9 @@ pub struct MergeArgs {
     /// Where to write results.csv, errors.csv, timings.csv (default: the first folder).
     #[arg(long, short)]
     pub out: Option<PathBuf>,
+    /// The global --max-memory, filled in before the command runs.
+    #[arg(skip)]
+    pub max_memory: Option<u64>,
 }
 
 pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
@@ -53,6 +59,7 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         seed: None,
         draws: a.draws,
         max_draws: a.max_draws,
+        max_memory_mb: a.max_memory,
     };
     let model_files = ModelFiles::parse(&a.model_files).ok_or_else(|| {
         anyhow!(
@@ -90,7 +97,7 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
     }
     if rep.failed > 0 {
         return Err(Error::input(
-            crate::error::Location {
+            priorsmith::error::Location {
                 file: Some(a.table.clone()),
                 ..Default::default()
             },
@@ -109,7 +116,7 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
 
 pub fn cmd_merge(a: &MergeArgs, quiet: bool) -> Result<()> {
     let out = a.out.clone().unwrap_or_else(|| a.dirs[0].clone());
-    let rep = batch::merge(&a.dirs, &out)?;
+    let rep = batch::merge(&a.dirs, &out, a.max_memory)?;
     if !quiet {
         println!(
             "merged {} rows from {} folder(s) ({} failed): wrote {}/{}",

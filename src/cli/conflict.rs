@@ -2,7 +2,7 @@
 //! surprising under a fitted prior? The check is `history::conflict::check_fit`;
 //! this file reads the options and prints.
 
-use crate::history::conflict;
+use priorsmith::history::conflict;
 use anyhow::Result;
 use std::path::PathBuf;
 
@@ -29,7 +29,7 @@ pub struct ConflictArgs {
     pub json: bool,
 }
 
-pub fn run(a: &ConflictArgs) -> Result<()> {
+pub fn run(a: &ConflictArgs, ov: &priorsmith::spec::Overrides) -> Result<()> {
     let spec_path = a.spec.clone().unwrap_or_else(|| a.dir.join("spec.toml"));
     let r = conflict::check_fit(
         &a.dir.join("fit.json"),
@@ -38,6 +38,7 @@ pub fn run(a: &ConflictArgs) -> Result<()> {
         a.arm.as_deref(),
         a.horizon,
         a.level,
+        ov,
     )?;
     let c = &r.conflict;
     if a.json {
@@ -54,7 +55,7 @@ pub fn run(a: &ConflictArgs) -> Result<()> {
             r.draws, r.seed
         );
         println!("{}", c.words);
-        println!("{}", crate::output::summary::CAUTION);
+        println!("{}", priorsmith::output::summary::CAUTION);
     }
     Ok(())
 }

@@ -1,8 +1,8 @@
 //! `priorsmith export DIR --to LANG [--out FILE]`: the fitted prior of DIR/fit.json
-//! as ready-to-paste code (see `crate::export`).
+//! as ready-to-paste code (see `priorsmith::export`).
 
-use crate::export::{self, Lang};
-use crate::output;
+use priorsmith::export::{self, Lang};
+use priorsmith::output;
 use anyhow::Result;
 use std::path::Path;
 

@@ -1,7 +1,7 @@
 //! `priorsmith history`: historical survival data (or events/total) → a
 //! discounted `[[belief]]` block to paste into a belief file (see `history::belief`).
 
-use crate::history::{belief, km::KaplanMeier, read_csv};
+use priorsmith::history::{belief, km::KaplanMeier, read_csv};
 use anyhow::{bail, Result};
 use std::path::PathBuf;
 
@@ -43,7 +43,7 @@ pub fn run(a: &HistoryArgs) -> Result<()> {
                 anyhow::anyhow!(
                     "--summary {}: {}",
                     a.summary,
-                    crate::error::choice_hint(&a.summary, &belief::SUMMARIES)
+                    priorsmith::error::choice_hint(&a.summary, &belief::SUMMARIES)
                 )
             })?;
             let obs = read_csv(path, a.arm.as_deref())?;

@@ -5,10 +5,10 @@
 //! 3 invalid input (belief file, table, design); 4 a file could not be read or
 //! written; 5 a resource limit would be exceeded.
 
-use crate::error::Error;
-use crate::fit::verdict::fmt_num;
-use crate::spec::{self, Overrides, Spec};
-use crate::{demo, fit, output, simulate, templates};
+use priorsmith::error::Error;
+use priorsmith::fit::verdict::fmt_num;
+use priorsmith::spec::{self, Overrides, Spec};
+use priorsmith::{demo, fit, output, simulate, templates};
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
@@ -54,6 +54,9 @@ pub struct SpecArgs {
     /// Raise the cap on draws deliberately.
     #[arg(long)]
     pub max_draws: Option<usize>,
+    /// The global --max-memory, filled in before the command runs.
+    #[arg(skip)]
+    pub max_memory: Option<u64>,
 }
 
 impl SpecArgs {
@@ -62,6 +65,7 @@ impl SpecArgs {
             seed: self.seed,
             draws: self.draws,
             max_draws: self.max_draws,
+            max_memory_mb: self.max_memory,
         }
     }
 }
@@ -110,7 +114,7 @@ pub enum Command {
         dir: PathBuf,
         /// Target language.
         #[arg(long, value_enum)]
-        to: crate::export::Lang,
+        to: priorsmith::export::Lang,
         /// Write to FILE (atomically) instead of standard output.
         #[arg(long, short)]
         out: Option<PathBuf>,
@@ -192,28 +196,39 @@ pub fn run(cli: Cli) -> Result<()> {
             .build_global()
             .context("could not set up the thread pool")?;
     }
-    if let Some(mb) = cli.max_memory {
-        if mb == 0 {
-            anyhow::bail!("--max-memory 0: give the budget in MB, e.g. --max-memory 8192");
-        }
-        crate::limits::set_max_memory_mb(mb);
+    let mem = cli.max_memory;
+    if mem == Some(0) {
+        anyhow::bail!("--max-memory 0: give the budget in MB, e.g. --max-memory 8192");
     }
     let quiet = cli.quiet;
-    match cli.command {
+    let mut command = cli.command;
+    match &mut command {
+        Command::Fit { spec, .. } | Command::Simulate { spec, .. } | Command::Sweep { spec, .. } => {
+            spec.max_memory = mem
+        }
+        Command::Batch(a) => a.max_memory = mem,
+        Command::Merge(a) => a.max_memory = mem,
+        _ => {}
+    }
+    let mem_only = Overrides {
+        max_memory_mb: mem,
+        ..Overrides::default()
+    };
+    match command {
         Command::Fit {
             spec,
             out,
             replicates,
         } => cmd_fit(&spec, &out, replicates, quiet),
         Command::Simulate { spec, set, json } => cmd_simulate(&spec, &set, json),
-        Command::Check { spec } => cmd_check(&spec, quiet),
+        Command::Check { spec } => cmd_check(&spec, quiet, &mem_only),
         Command::Templates { name } => cmd_templates(name.as_deref()),
         Command::New {
             template,
             out,
             force,
         } => cmd_new(&template, out.as_deref(), force, quiet),
-        Command::Demo { out } => cmd_demo(&out, quiet),
+        Command::Demo { out } => cmd_demo(&out, quiet, &mem_only),
         Command::Export { dir, to, out } => export::run(&dir, to, out.as_deref(), quiet),
         Command::Report { dir } => report::run(&dir, quiet),
         Command::Sweep {
@@ -225,7 +240,7 @@ pub fn run(cli: Cli) -> Result<()> {
         Command::Batch(a) => batch::cmd_batch(&a, quiet),
         Command::Merge(a) => batch::cmd_merge(&a, quiet),
         Command::History(a) => history::run(&a),
-        Command::Conflict(a) => conflict::run(&a),
+        Command::Conflict(a) => conflict::run(&a, &mem_only),
     }
 }
 
@@ -264,7 +279,7 @@ pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitRes
         pb.finish_and_clear();
     }
     output::write_fit(out, &r)?;
-    crate::report::write(out)?;
+    priorsmith::report::write(out)?;
     Ok(r)
 }
 
@@ -287,8 +302,8 @@ fn cmd_fit(a: &SpecArgs, out: &Path, replicates: Option<usize>, quiet: bool) -> 
     Ok(())
 }
 
-fn cmd_check(path: &Path, quiet: bool) -> Result<()> {
-    let spec = spec::load(path, &Overrides::default())?;
+fn cmd_check(path: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
+    let spec = spec::load(path, ov)?;
     if !quiet {
         println!(
             "{}: valid — template {}, {} hyperparameters ({} free), {} beliefs, {} draws, seed {}",
@@ -318,7 +333,7 @@ fn cmd_simulate(a: &SpecArgs, set: &[String], json: bool) -> Result<()> {
         let i = names.iter().position(|n| *n == k.trim()).ok_or_else(|| {
             anyhow::anyhow!(
                 "--set {s}: unknown hyperparameter `{k}`; {}",
-                crate::error::choice_hint(k, &names)
+                priorsmith::error::choice_hint(k, &names)
             )
         })?;
         let x: f64 = v
@@ -390,12 +405,12 @@ fn cmd_templates(name: Option<&str>) -> Result<()> {
                 println!("{:<16} {}", t.name, t.about);
             }
             println!("\n`priorsmith templates NAME` for parameters and quantities; `priorsmith new NAME` for a starter file.");
-            println!("Families: {}", crate::dist::family_names().join(", "));
+            println!("Families: {}", priorsmith::dist::family_names().join(", "));
         }
         Some(n) => {
             let t = templates::find(n).ok_or_else(|| {
                 Error::input(Default::default(), format!("unknown template \"{n}\""))
-                    .with_hint(crate::error::choice_hint(n, &templates::names()))
+                    .with_hint(priorsmith::error::choice_hint(n, &templates::names()))
             })?;
             println!("{} — {}\n\n[model] keys:", t.name, t.about);
             for (k, v) in t.options {
@@ -420,7 +435,7 @@ fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Resu
             Default::default(),
             format!("unknown template \"{template}\""),
         )
-        .with_hint(crate::error::choice_hint(template, &templates::names()))
+        .with_hint(priorsmith::error::choice_hint(template, &templates::names()))
     })?;
     let default = PathBuf::from(format!("{}.toml", t.name));
     let path = out.unwrap_or(&default);
@@ -449,7 +464,7 @@ fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Resu
     Ok(())
 }
 
-fn cmd_demo(out: &Path, quiet: bool) -> Result<()> {
+fn cmd_demo(out: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
     output::ensure_dir(out)?;
     let mut rows = Vec::new();
     for s in demo::SCENARIOS {
@@ -457,7 +472,7 @@ fn cmd_demo(out: &Path, quiet: bool) -> Result<()> {
         let spec_path = dir.join("spec.toml");
         output::ensure_dir(&dir)?;
         output::write_atomic(&spec_path, s.text.as_bytes())?;
-        let spec = spec::parse(s.text, Some(&spec_path), &Overrides::default())
+        let spec = spec::parse(s.text, Some(&spec_path), ov)
             .with_context(|| format!("demo scenario {}", s.name))?;
         let r = fit_and_write(&spec, &dir, quiet)?;
         rows.push((s.name, r));

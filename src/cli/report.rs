@@ -1,11 +1,11 @@
 //! `priorsmith report DIR`: DIR/report.html and DIR/plots/*.svg from DIR/fit.json
-//! and DIR/draws.csv (see `crate::report`).
+//! and DIR/draws.csv (see `priorsmith::report`).
 
 use anyhow::Result;
 use std::path::Path;
 
 pub fn run(dir: &Path, quiet: bool) -> Result<()> {
-    let files = crate::report::write(dir)?;
+    let files = priorsmith::report::write(dir)?;
     if !quiet {
         println!(
             "wrote {} and {} plot(s) in {}",

@@ -1,10 +1,10 @@
 //! `priorsmith sweep`: refit with every belief widened or narrowed by each width
 //! factor, and write the table, the plot and one fit folder per width
-//! (see [`crate::sweep`] and docs/sweep-and-batch.md).
+//! (see [`priorsmith::sweep`] and docs/sweep-and-batch.md).
 
 use super::{load, progress_bar, SpecArgs};
-use crate::fit::verdict::fmt_num;
-use crate::{output, sweep};
+use priorsmith::fit::verdict::fmt_num;
+use priorsmith::{output, sweep};
 use anyhow::{anyhow, Result};
 use std::path::Path;
 

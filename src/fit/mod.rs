@@ -1153,7 +1153,7 @@ mod tests {
         let ov = Overrides {
             seed: Some(seed),
             draws: Some(4096),
-            max_draws: None,
+            ..Overrides::default()
         };
         parse(text, None, &ov).unwrap()
     }

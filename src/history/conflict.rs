@@ -48,7 +48,8 @@ fn bad_option(key: &str, msg: String) -> Error {
 /// Check new data (`data`, optionally one `arm`) against the prior fitted in
 /// `fit_path` from the belief file `spec_path` (their digests must agree): the
 /// Kaplan–Meier survival at `horizon` against the fitted prior's S(horizon),
-/// flagged below the two-sided tail probability `level`.
+/// flagged below the two-sided tail probability `level`. `ov`: the memory budget
+/// (its seed and draws must be left unset: the record's own are used).
 pub fn check_fit(
     fit_path: &Path,
     spec_path: &Path,
@@ -56,6 +57,7 @@ pub fn check_fit(
     arm: Option<&str>,
     horizon: f64,
     level: f64,
+    ov: &Overrides,
 ) -> Result<FitCheck> {
     if !(horizon > 0.0 && horizon.is_finite()) {
         return Err(bad_option("--horizon", format!("{horizon}: must be > 0")));
@@ -65,7 +67,7 @@ pub fn check_fit(
     }
     let fit = crate::fit::record::read(fit_path)?;
     let spec_text = std::fs::read_to_string(spec_path).map_err(|e| Error::io(spec_path, e))?;
-    let orig = spec::parse(&spec_text, Some(spec_path), &Overrides::default())?;
+    let orig = spec::parse(&spec_text, Some(spec_path), ov)?;
     if fit.spec_digest != orig.digest {
         return Err(bad_option(
             "--spec",
@@ -95,7 +97,7 @@ pub fn check_fit(
             );
         }
     }
-    let spec = spec::from_table(table, &spec_text, Some(spec_path), &Overrides::default())
+    let spec = spec::from_table(table, &spec_text, Some(spec_path), ov)
         .map_err(|e| {
             e.with_hint("the conflict check needs a template with the quantity survival_prob")
         })?;

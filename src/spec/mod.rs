@@ -159,6 +159,8 @@ pub struct Overrides {
     pub seed: Option<u64>,
     pub draws: Option<usize>,
     pub max_draws: Option<usize>,
+    /// Working-memory budget in MB (None: [`crate::limits::DEFAULT_MAX_MEMORY_MB`]).
+    pub max_memory_mb: Option<u64>,
 }
 
 /// Validation context handed to templates: error helpers that know the source.
@@ -605,21 +607,22 @@ pub fn from_table(
 
     // Working memory, now that the beliefs have told the model what to prepare.
     let (need, what) = model.working_bytes(draws);
-    if need > crate::limits::max_memory_bytes() {
+    let budget = crate::limits::budget_mb(ov.max_memory_mb);
+    if need > crate::limits::bytes(budget) {
         return Err(Error::Limit(format!(
             "{}: {what} (template {template}) need about {} MB of working memory, \
              over the limit of {} MB; lower `draws` in [simulation]\n  hint: {}",
             file.map_or("<input>".to_string(), |f| f.display().to_string()),
             crate::limits::mb(need),
-            crate::limits::max_memory_mb(),
-            crate::limits::hint()
+            budget,
+            crate::limits::hint(budget)
         )));
     }
 
     // Precision mode raises the draws only as far as the memory budget allows.
     let precision = precision.map(|mut p| {
         while p.max_draws > draws
-            && model.working_bytes(p.max_draws).0 > crate::limits::max_memory_bytes()
+            && model.working_bytes(p.max_draws).0 > crate::limits::bytes(budget)
         {
             p.max_draws = (p.max_draws / 2).max(draws);
         }
