@@ -70,6 +70,27 @@ impl SpecArgs {
     }
 }
 
+/// The export languages as command-line values.
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum LangArg {
+    Stan,
+    Pymc,
+    Brms,
+    Json,
+}
+
+impl From<LangArg> for priorsmith::export::Lang {
+    fn from(l: LangArg) -> Self {
+        use priorsmith::export::Lang;
+        match l {
+            LangArg::Stan => Lang::Stan,
+            LangArg::Pymc => Lang::Pymc,
+            LangArg::Brms => Lang::Brms,
+            LangArg::Json => Lang::Json,
+        }
+    }
+}
+
 #[derive(Subcommand, Debug)]
 pub enum Command {
     /// Fit the free hyperparameters of a belief file and write fit.json, summary.txt, draws.csv.
@@ -114,7 +135,7 @@ pub enum Command {
         dir: PathBuf,
         /// Target language.
         #[arg(long, value_enum)]
-        to: priorsmith::export::Lang,
+        to: LangArg,
         /// Write to FILE (atomically) instead of standard output.
         #[arg(long, short)]
         out: Option<PathBuf>,
@@ -229,7 +250,7 @@ pub fn run(cli: Cli) -> Result<()> {
             force,
         } => cmd_new(&template, out.as_deref(), force, quiet),
         Command::Demo { out } => cmd_demo(&out, quiet, &mem_only),
-        Command::Export { dir, to, out } => export::run(&dir, to, out.as_deref(), quiet),
+        Command::Export { dir, to, out } => export::run(&dir, to.into(), out.as_deref(), quiet),
         Command::Report { dir } => report::run(&dir, quiet),
         Command::Sweep {
             spec,

@@ -42,7 +42,7 @@ use std::path::Path;
 pub use record::{FitRecord, Header};
 
 /// Target languages.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Lang {
     Stan,
     Pymc,
@@ -51,6 +51,8 @@ pub enum Lang {
 }
 
 impl Lang {
+    pub const ALL: [Lang; 4] = [Lang::Stan, Lang::Pymc, Lang::Brms, Lang::Json];
+
     pub fn name(&self) -> &'static str {
         match self {
             Lang::Stan => "stan",
