@@ -198,8 +198,13 @@ fn synthetic(ctx: &Ctx, t: &toml::Table, c: &toml::Value, standardise: bool) -> 
         ));
     }
     if n.saturating_mul(p) > MAX_CELLS {
+        let at = crate::error::Location {
+            file: ctx.file.map(std::path::Path::to_path_buf),
+            line: ctx.map.line_of(&sub("rows")),
+            key: Some("design.rows".into()),
+        };
         return Err(Error::Limit(format!(
-            "design of {n} rows × {p} columns exceeds {MAX_CELLS} cells"
+            "{at}: a design of {n} rows × {p} columns exceeds the limit of {MAX_CELLS} cells"
         )));
     }
     let rho = match t.get("rho") {

@@ -63,6 +63,9 @@ pub enum Error {
     /// poisoned lock): a bug to report, not something the input explains.
     #[error("internal error: {0}")]
     Internal(String),
+    /// The work was cancelled (Ctrl-C, or a binding's interrupt).
+    #[error("cancelled")]
+    Cancelled,
 }
 
 pub type Result<T> = std::result::Result<T, Error>;

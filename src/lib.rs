@@ -9,6 +9,7 @@
 //! exposes.
 
 pub mod batch;
+pub mod cancel;
 pub mod demo;
 pub mod design;
 pub mod discrepancy;

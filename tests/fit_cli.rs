@@ -97,7 +97,7 @@ fn a_different_seed_gives_different_but_close_hyperparameters() {
     assert!((ma - mb).abs() < 0.1, "{ma} vs {mb}");
 }
 
-/// A belief the template expresses exactly is recovered (issue 2): cure fraction
+/// A belief the template expresses exactly is recovered: cure fraction
 /// logit-normal(μ = −1.2, σ = 0.4) with cure_logit ~ Normal(mean, sd) has the exact
 /// solution mean = −1.2, sd = 0.4.
 #[test]

@@ -237,12 +237,23 @@ fn the_regression_corpus_replays() {
         let p = e.unwrap().path();
         if p.extension().is_some_and(|x| x == "toml") {
             let text = std::fs::read_to_string(&p).unwrap();
-            let r = std::panic::catch_unwind(|| parse(&text, None, &Overrides::default()));
+            let r = std::panic::catch_unwind(|| parse(&text, Some(&p), &Overrides::default()));
             assert!(r.is_ok(), "{} panicked", p.display());
-            // Each corpus file is invalid on purpose: it must be refused with a message.
+            // Each corpus file is invalid on purpose: it must be refused as bad
+            // input (not as a numerical or internal failure), naming the file.
             match r.unwrap() {
                 Ok(_) => panic!("{}: accepted, expected an error", p.display()),
-                Err(e) => assert!(!e.to_string().is_empty()),
+                Err(e) => {
+                    let user_kind = matches!(
+                        e,
+                        priorsmith::Error::Input { .. }
+                            | priorsmith::Error::Dist(_)
+                            | priorsmith::Error::Limit(_)
+                    );
+                    assert!(user_kind, "{}: {e:?}", p.display());
+                    let text = e.to_string();
+                    assert!(text.contains(&p.display().to_string()), "{text}");
+                }
             }
             n += 1;
         }

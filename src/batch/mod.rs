@@ -79,6 +79,10 @@ pub struct RunOptions {
     pub shard: Option<(usize, usize)>,
     /// What each model folder holds.
     pub model_files: ModelFiles,
+    /// Test hook: abort the process (as a crash would) once this many rows
+    /// have been fitted and committed in this run. The command line sets it
+    /// from the environment variable `PRIORSMITH_TEST_ABORT_AFTER_ROWS`.
+    pub abort_after: Option<usize>,
 }
 
 /// What `models/<id>/` holds. The fitted numbers are the same either way.
@@ -393,6 +397,8 @@ fn run_row(
             spec.fit.mc_errors = files == ModelFiles::Full;
             let fitted = fit::fit(&spec, None);
             match fitted {
+                // A cancelled row leaves no record: a resumed batch refits it.
+                Err(Error::Cancelled) => return Err(Error::Cancelled),
                 Err(e) => err_record(
                     r,
                     "fit",
@@ -419,7 +425,7 @@ fn run_row(
             }
         }
     };
-    let json = serde_json::to_string_pretty(&rec).map_err(|e| Error::Numeric(e.to_string()))?;
+    let json = serde_json::to_string_pretty(&rec).map_err(|e| Error::Internal(e.to_string()))?;
     write_atomic(&record_path(dir, r.number), json.as_bytes())?;
     Ok((rec, false))
 }
@@ -456,16 +462,22 @@ pub fn run(
         max_draws: plan.overrides.max_draws,
         rows: plan.rows.len(),
     };
-    let mj = serde_json::to_string_pretty(&man).map_err(|e| Error::Numeric(e.to_string()))?;
+    let mj = serde_json::to_string_pretty(&man).map_err(|e| Error::Internal(e.to_string()))?;
     write_atomic(&dir.join("batch.json"), mj.as_bytes())?;
     let range = shard_range(plan.rows.len(), opts.shard);
     let mine = &plan.rows[range.clone()];
     let done = std::sync::atomic::AtomicUsize::new(0);
+    let fitted = std::sync::atomic::AtomicUsize::new(0);
     let out: Vec<Result<(RowRecord, bool)>> = mine
         .par_iter()
         .with_max_len(1)
         .map(|r| {
             let x = run_row(plan, r, dir, opts.model_files);
+            if let (Some(n), Ok((_, false))) = (opts.abort_after, &x) {
+                if fitted.fetch_add(1, std::sync::atomic::Ordering::SeqCst) + 1 >= n {
+                    std::process::abort();
+                }
+            }
             let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
             tick(k, mine.len());
             x
@@ -552,7 +564,7 @@ pub fn assemble(
             }
         }
     }
-    let e = |e: csv::Error| Error::Numeric(e.to_string());
+    let e = |e: csv::Error| Error::Internal(e.to_string());
     let mut res = csv::Writer::from_writer(Vec::new());
     let mut head = vec!["id".to_string(), "row".to_string()];
     head.extend(hcols.iter().cloned());
@@ -598,7 +610,7 @@ pub fn assemble(
             .map_err(e)?;
         }
     }
-    let f = |w: csv::Writer<Vec<u8>>| w.into_inner().map_err(|e| Error::Numeric(e.to_string()));
+    let f = |w: csv::Writer<Vec<u8>>| w.into_inner().map_err(|e| Error::Internal(e.to_string()));
     Ok((f(res)?, f(errs)?, f(times)?))
 }
 
@@ -652,6 +664,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result
         draws: man.draws,
         max_draws: man.max_draws,
         max_memory_mb,
+        ..Overrides::default()
     };
     let plan = plan(&man.base, &man.table, &ov)?;
     let mut recs: BTreeMap<usize, RowRecord> = BTreeMap::new();

@@ -32,9 +32,10 @@ pub struct BatchArgs {
     /// summary.txt, spec.toml) or full (also draws.csv and the profiles, for `report`)
     #[arg(long, value_parser = ModelFiles::NAMES, default_value = "lean")]
     pub model_files: String,
-    /// The global --max-memory, filled in before the command runs.
+    /// The session's settings (--max-memory, the Ctrl-C token), filled in
+    /// before the command runs.
     #[arg(skip)]
-    pub max_memory: Option<u64>,
+    pub session: Overrides,
 }
 
 #[derive(clap::Args, Debug, Clone)]
@@ -59,7 +60,7 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         seed: None,
         draws: a.draws,
         max_draws: a.max_draws,
-        max_memory_mb: a.max_memory,
+        ..a.session.clone()
     };
     let model_files = ModelFiles::parse(&a.model_files).ok_or_else(|| {
         anyhow!(
@@ -75,7 +76,16 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
             pb.set_position(done as u64);
         }
     };
-    let rep = batch::run(&plan, &a.out, &RunOptions { shard, model_files }, &tick)?;
+    // Fault injection for the crash-and-resume test (tests/batch.rs).
+    let abort_after = std::env::var("PRIORSMITH_TEST_ABORT_AFTER_ROWS")
+        .ok()
+        .and_then(|v| v.parse().ok());
+    let opts = RunOptions {
+        shard,
+        model_files,
+        abort_after,
+    };
+    let rep = batch::run(&plan, &a.out, &opts, &tick)?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }

@@ -54,9 +54,10 @@ pub struct SpecArgs {
     /// Raise the cap on draws deliberately.
     #[arg(long)]
     pub max_draws: Option<usize>,
-    /// The global --max-memory, filled in before the command runs.
+    /// The session's settings (--max-memory, the Ctrl-C token), filled in
+    /// before the command runs.
     #[arg(skip)]
-    pub max_memory: Option<u64>,
+    pub session: Overrides,
 }
 
 impl SpecArgs {
@@ -65,7 +66,7 @@ impl SpecArgs {
             seed: self.seed,
             draws: self.draws,
             max_draws: self.max_draws,
-            max_memory_mb: self.max_memory,
+            ..self.session.clone()
         }
     }
 }
@@ -184,6 +185,8 @@ pub fn exit_code(e: &anyhow::Error) -> i32 {
                 Error::Io { .. } => 4,
                 Error::Limit(_) => 5,
                 Error::Numeric(_) | Error::Internal(_) => 1,
+                // 128 + SIGINT, as shells report an interrupted command (common practice).
+                Error::Cancelled => 130,
             };
         }
     }
@@ -222,19 +225,29 @@ pub fn run(cli: Cli) -> Result<()> {
         anyhow::bail!("--max-memory 0: give the budget in MB, e.g. --max-memory 8192");
     }
     let quiet = cli.quiet;
+    // Ctrl-C asks the work to stop (see `priorsmith::cancel`): a fit stops
+    // between evaluations and writes nothing; a batch keeps its finished rows.
+    let cancel = priorsmith::cancel::Cancel::new();
+    {
+        let c = cancel.clone();
+        // Fails only when a handler is already installed (tests calling run twice).
+        let _ = ctrlc::set_handler(move || c.cancel());
+    }
+    let session = Overrides {
+        max_memory_mb: mem,
+        cancel,
+        ..Overrides::default()
+    };
     let mut command = cli.command;
     match &mut command {
         Command::Fit { spec, .. } | Command::Simulate { spec, .. } | Command::Sweep { spec, .. } => {
-            spec.max_memory = mem
+            spec.session = session.clone()
         }
-        Command::Batch(a) => a.max_memory = mem,
+        Command::Batch(a) => a.session = session.clone(),
         Command::Merge(a) => a.max_memory = mem,
         _ => {}
     }
-    let mem_only = Overrides {
-        max_memory_mb: mem,
-        ..Overrides::default()
-    };
+    let mem_only = session;
     match command {
         Command::Fit {
             spec,

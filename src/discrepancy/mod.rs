@@ -5,7 +5,8 @@
 //! is the simulated CDF seen through T: for values at continuity points of T it
 //! is the empirical CDF of u_i = T(q_i); across a jump of T (an atom a) it rises
 //! linearly from P(a−) to P(a), the randomised probability integral transform
-//! (DESIGN.md §2). So d = 0 exactly when P = T, atoms included.
+//! (Brockwell 2007, Statistics & Probability Letters 77; reference from memory).
+//! So d = 0 exactly when P = T, atoms included.
 //!
 //! G is piecewise linear in u, so each piece integrates in closed form:
 //! * CvM: ∫ₐᵇ e(u)² du = h(e_a² + e_a e_b + e_b²)/3 for linear e = G − u;

@@ -40,7 +40,7 @@ const U: [f64; 10] = [0.05, 0.18, 0.27, 0.39, 0.52, 0.61, 0.73, 0.84, 0.91, 0.97
 #[test]
 fn classical_statistics_match_scipy() {
     // scipy 1.17: cramervonmises(U, 'uniform').statistic = 0.0382333 and the
-    // Anderson–Darling A² = 0.2590724 (issue 2). Here d = W²/N and A²/N.
+    // Anderson–Darling A² = 0.2590724. Here d = W²/N and A²/N.
     let t = uniform_target();
     let n = U.len() as f64;
     let w2 = discrepancy(Kind::CramerVonMises, &t, &U) * n;

@@ -63,5 +63,5 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
     });
     serde_json::to_string_pretty(&v)
         .map(|s| s + "\n")
-        .map_err(|e| Error::Numeric(e.to_string()))
+        .map_err(|e| Error::Internal(e.to_string()))
 }

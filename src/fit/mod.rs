@@ -797,6 +797,8 @@ fn polish(
 
 /// Everything after the optimum: identifiability, tie-break, Monte Carlo errors.
 fn settle(spec: &Spec, o: Optimum) -> Result<Point> {
+    // A cancelled search ends here, before the analysis.
+    spec.fit.cancel.check()?;
     use crate::spec::TieBreak;
     let Optimum {
         eta: eta0,
@@ -960,6 +962,7 @@ pub const LOCATION_TARGET: f64 = 0.005;
 
 /// Judge hyperparameters `h` on fresh draws and assemble the result.
 pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
+    spec.fit.cancel.check()?;
     let Point {
         h,
         opt,
@@ -1146,6 +1149,14 @@ pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
 mod tests {
     use super::*;
     use crate::spec::{parse, Overrides};
+
+    /// A cancelled fit returns `Error::Cancelled` (and so writes nothing).
+    #[test]
+    fn cancelled_fit_stops_with_an_error() {
+        let mut s = demo_spec(3);
+        s.fit.cancel = crate::cancel::Cancel::after(200);
+        assert!(matches!(fit(&s, None), Err(Error::Cancelled)));
+    }
 
     /// The relapse-free demo at 4,096 draws with seed `seed`.
     fn demo_spec(seed: u64) -> crate::spec::Spec {

@@ -251,6 +251,7 @@ impl<'a> Objective<'a> {
     }
 
     fn with_sorted<T>(&self, h: &[f64], f: impl FnOnce(&[Vec<f64>]) -> T) -> Result<T> {
+        self.spec.fit.cancel.check()?;
         self.evals.fetch_add(1, Ordering::Relaxed);
         WS.with(|ws| {
             let mut ws = ws.borrow_mut();

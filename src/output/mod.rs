@@ -37,15 +37,15 @@ pub fn draws_csv(r: &FitResult) -> Result<Vec<u8>> {
     let mut header = vec!["draw".to_string()];
     header.extend(r.beliefs.iter().map(|b| b.label.clone()));
     w.write_record(&header)
-        .map_err(|e| Error::Numeric(e.to_string()))?;
+        .map_err(|e| Error::Internal(e.to_string()))?;
     let n = r.draws_fresh.first().map_or(0, Vec::len);
     for i in 0..n {
         let mut row = vec![(i + 1).to_string()];
         row.extend(r.draws_fresh.iter().map(|c| fmt_csv(c[i])));
         w.write_record(&row)
-            .map_err(|e| Error::Numeric(e.to_string()))?;
+            .map_err(|e| Error::Internal(e.to_string()))?;
     }
-    w.into_inner().map_err(|e| Error::Numeric(e.to_string()))
+    w.into_inner().map_err(|e| Error::Internal(e.to_string()))
 }
 
 pub fn fmt_csv(x: f64) -> String {

@@ -11,7 +11,7 @@ pub const ORANGE: RGBColor = RGBColor(230, 159, 0);
 pub const GREY: RGBColor = RGBColor(153, 153, 153);
 
 fn perr<E: std::fmt::Display>(e: E) -> Error {
-    Error::Numeric(format!("plotting failed: {e}"))
+    Error::Internal(format!("plotting failed: {e}"))
 }
 
 /// The Pareto front: discrepancy (in noise floors) against spread (mean ln sd).

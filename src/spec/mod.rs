@@ -69,6 +69,8 @@ pub struct FitOptions {
     /// Estimate the Monte Carlo error of every hyperparameter (not a file key:
     /// lean batch folders skip it).
     pub mc_errors: bool,
+    /// Polled before every evaluation (not a file key; see [`crate::cancel`]).
+    pub cancel: crate::cancel::Cancel,
 }
 
 /// Local searches of the global stage unless `[fit] searches` says otherwise.
@@ -161,6 +163,8 @@ pub struct Overrides {
     pub max_draws: Option<usize>,
     /// Working-memory budget in MB (None: [`crate::limits::DEFAULT_MAX_MEMORY_MB`]).
     pub max_memory_mb: Option<u64>,
+    /// Cancellation token handed to the fit ([`FitOptions::cancel`]).
+    pub cancel: crate::cancel::Cancel,
 }
 
 /// Validation context handed to templates: error helpers that know the source.
@@ -761,6 +765,7 @@ pub fn from_table(
             profiles: true,
             trace_front,
             mc_errors: true,
+            cancel: ov.cancel.clone(),
         },
     })
 }

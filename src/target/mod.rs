@@ -11,7 +11,7 @@
 //! The [`Target`] evaluates the belief's CDF at *sorted* simulated values in one
 //! merge pass over a table of the continuous CDF at 4,097 quantile-spaced points
 //! (probit-spaced probabilities, linear interpolation between them): O(N + M) per
-//! evaluation with no special functions (DESIGN.md §5).
+//! evaluation with no special functions (README, "How it works").
 
 pub mod histogram;
 pub mod pool;

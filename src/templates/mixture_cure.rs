@@ -692,7 +692,8 @@ mod tests {
 
     #[test]
     fn latency_medians_and_integrals() {
-        // Weibull median λ(ln 2)^(1/k): k = 1.5, λ = 2 → 1.56644 (issue 2).
+        // Weibull median λ(ln 2)^(1/k): k = 1.5, λ = 2 → 1.56644 (closed form;
+        // Klein & Moeschberger, Survival Analysis, §2.5).
         assert!((Latency::Weibull.surv_inv(0.5, 2f64.ln(), 1.5) - 1.56644).abs() < 5e-6);
         // Log-logistic and log-normal medians equal the scale.
         assert!((Latency::LogLogistic.surv_inv(0.5, 7f64.ln(), 2.3) - 7.0).abs() < 1e-12);

@@ -169,7 +169,7 @@ pub trait Model: Send + Sync {
     /// The prior at hyperparameters `h`, one statement per parameter.
     fn priors(&self, h: &[f64]) -> Vec<PriorStatement>;
     /// Mean log standard deviation of the prior's components at `h` (the spread
-    /// the tie-breaking objective rewards; DESIGN.md §4).
+    /// the tie-breaking objective rewards; see `fit::pareto`).
     fn spread(&self, h: &[f64]) -> f64;
     /// Estimated bytes [`Model::draw_base`] and one simulation allocate for `n`
     /// draws, and what they scale with (checked against [`crate::limits`] before a
