@@ -10,6 +10,7 @@
 
 pub mod batch;
 pub mod cancel;
+pub mod conflict;
 pub mod demo;
 pub mod design;
 pub mod discrepancy;

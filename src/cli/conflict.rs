@@ -1,8 +1,8 @@
 //! `priorsmith conflict`: is new data's Kaplan–Meier survival at a horizon
-//! surprising under a fitted prior? The check is `history::conflict::check_fit`;
+//! surprising under a fitted prior? The check is `priorsmith::conflict::check_fit`;
 //! this file reads the options and prints.
 
-use priorsmith::history::conflict;
+use priorsmith::conflict;
 use anyhow::Result;
 use std::path::PathBuf;
 

@@ -150,19 +150,7 @@ pub fn export_dir(dir: &Path, lang: Lang) -> Result<String> {
     render(&rec, lang)
 }
 
-/// A number for code: 6 significant digits, shortest form ("0.25", "-1.1014", "2e-07").
-pub fn num(x: f64) -> String {
-    if x == 0.0 {
-        return "0".into();
-    }
-    let r: f64 = format!("{x:.5e}").parse().unwrap_or(x);
-    let a = r.abs();
-    if (1e-4..1e15).contains(&a) {
-        format!("{r}")
-    } else {
-        format!("{r:e}")
-    }
-}
+pub use crate::numerics::format::code as num;
 
 /// The header lines (without comment markers).
 pub fn header_lines(h: &Header, lang: &str) -> Vec<String> {

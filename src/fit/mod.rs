@@ -17,7 +17,7 @@ pub mod pareto;
 pub mod profile;
 pub mod record;
 pub mod replicate;
-pub mod simplex;
+pub use crate::numerics::simplex;
 pub mod tiebreak;
 pub mod verdict;
 

@@ -84,7 +84,7 @@ pub struct BeliefReport {
     /// The believed distribution as a curve, for plots (reports read it back).
     pub believed_curve: BelievedCurve,
     /// Prior effective sample size of a probability-type quantity: the
-    /// moment-matched Beta's a + b from the implied draws (see `history::ess`).
+    /// moment-matched Beta's a + b from the implied draws (see `target::ess`).
     pub ess: Option<f64>,
     /// The same for the stated belief, from its exact moments.
     pub believed_ess: Option<f64>,
@@ -142,12 +142,7 @@ pub fn believed_curve(d: &crate::dist::Mixed) -> BelievedCurve {
     }
 }
 
-/// The p-quantile of sorted draws (type-1 empirical quantile).
-pub fn empirical_quantile(sorted: &[f64], p: f64) -> f64 {
-    let n = sorted.len();
-    let k = ((p * n as f64).ceil() as usize).clamp(1, n) - 1;
-    sorted[k]
-}
+pub use crate::numerics::empirical_quantile;
 
 #[allow(clippy::too_many_arguments)]
 pub fn judge(
@@ -235,10 +230,10 @@ pub fn judge(
         implied_mass_at_inf: inf_mass,
         believed_curve: believed_curve(&b.target.dist),
         ess: (b.request.support == crate::dist::Support::Unit)
-            .then(|| crate::history::ess::from_draws(sorted_fresh))
+            .then(|| crate::target::ess::from_draws(sorted_fresh))
             .flatten(),
         believed_ess: (b.request.support == crate::dist::Support::Unit)
-            .then(|| crate::history::ess::of_belief(&b.target.dist))
+            .then(|| crate::target::ess::of_belief(&b.target.dist))
             .flatten(),
     }
 }
@@ -350,19 +345,7 @@ pub fn describe(
     out
 }
 
-pub fn fmt_num(x: f64) -> String {
-    if x.is_infinite() {
-        return if x > 0.0 { "inf".into() } else { "-inf".into() };
-    }
-    let a = x.abs();
-    if a != 0.0 && !(1e-3..1e5).contains(&a) {
-        format!("{x:.3e}")
-    } else if a >= 100.0 {
-        format!("{x:.1}")
-    } else {
-        format!("{x:.4}")
-    }
-}
+pub use crate::numerics::format::display as fmt_num;
 
 /// The worst verdict over beliefs.
 pub fn overall(beliefs: &[BeliefReport]) -> Verdict {

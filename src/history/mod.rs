@@ -16,7 +16,7 @@
 
 pub mod belief;
 pub mod conflict;
-pub mod ess;
+pub use crate::target::ess;
 pub mod km;
 
 use crate::error::{Error, Location, Result};

@@ -48,15 +48,7 @@ pub fn draws_csv(r: &FitResult) -> Result<Vec<u8>> {
     w.into_inner().map_err(|e| Error::Internal(e.to_string()))
 }
 
-pub fn fmt_csv(x: f64) -> String {
-    if x == f64::INFINITY {
-        "inf".into()
-    } else if x == f64::NEG_INFINITY {
-        "-inf".into()
-    } else {
-        format!("{x}")
-    }
-}
+pub use crate::numerics::format::csv as fmt_csv;
 
 /// Write a set of files into place all together: every file goes to a temporary
 /// sibling first; only when all are complete are they renamed. On any failure the

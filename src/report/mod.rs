@@ -239,19 +239,7 @@ fn pct(x: f64) -> String {
     }
 }
 
-fn fnum(x: f64) -> String {
-    if x.is_nan() {
-        "—".into()
-    } else if x.is_infinite() {
-        if x > 0.0 {
-            "∞".into()
-        } else {
-            "−∞".into()
-        }
-    } else {
-        crate::fit::verdict::fmt_num(x)
-    }
-}
+use crate::numerics::format::html as fnum;
 
 /// The x range shown for a belief: 1–99 % of the finite parts of both
 /// distributions, plus the finite atoms, padded by 4 %.

@@ -13,6 +13,7 @@
 //! (probit-spaced probabilities, linear interpolation between them): O(N + M) per
 //! evaluation with no special functions (README, "How it works").
 
+pub mod ess;
 pub mod histogram;
 pub mod pool;
 pub mod quantiles;

@@ -46,7 +46,7 @@
 use super::coef::{CoefPrior, Kind};
 use super::Link;
 use crate::design::Design;
-use crate::export::num;
+use crate::numerics::format::code as num;
 use crate::templates::Code;
 use std::collections::BTreeMap;
 

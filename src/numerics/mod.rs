@@ -13,6 +13,9 @@
 // The AS 241 coefficients are printed to the precision Wichura published.
 #![allow(clippy::excessive_precision)]
 
+pub mod format;
+pub mod simplex;
+
 use special::Error as _;
 
 pub const SQRT_2: f64 = std::f64::consts::SQRT_2;
@@ -407,6 +410,13 @@ mod tests {
         let r = brent_root(|x| x * x - 2.0, 0.0, 2.0, 1e-14).unwrap();
         assert!((r - SQRT_2).abs() < 1e-12);
     }
+}
+
+/// The p-quantile of sorted draws (type-1 empirical quantile, Hyndman & Fan 1996).
+pub fn empirical_quantile(sorted: &[f64], p: f64) -> f64 {
+    let n = sorted.len();
+    let k = ((p * n as f64).ceil() as usize).clamp(1, n) - 1;
+    sorted[k]
 }
 
 /// Serde helpers for the fit record: ±∞ written as the strings "inf"/"-inf" (JSON

@@ -1,0 +1,83 @@
+//! Every way priorsmith writes a number, in one place.
+//!
+//! * [`code`]: for modelling-language code, 6 significant digits in the shortest
+//!   form ("0.25", "-1.1014", "2e-07");
+//! * [`display`]: for the terminal and summary.txt (4 decimals, 1 above 100,
+//!   scientific outside [0.001, 100 000); "inf" / "-inf");
+//! * [`html`]: as `display`, with "∞", "−∞" and "—" (not a number) for the report;
+//! * [`csv`]: every digit (shortest round-trip form), "inf" / "-inf", for tables
+//!   that are read back.
+
+/// A number for code: 6 significant digits, shortest form.
+pub fn code(x: f64) -> String {
+    if x == 0.0 {
+        return "0".into();
+    }
+    let r: f64 = format!("{x:.5e}").parse().unwrap_or(x);
+    let a = r.abs();
+    if (1e-4..1e15).contains(&a) {
+        format!("{r}")
+    } else {
+        format!("{r:e}")
+    }
+}
+
+/// A number for the terminal and summary.txt.
+pub fn display(x: f64) -> String {
+    if x.is_infinite() {
+        return if x > 0.0 { "inf".into() } else { "-inf".into() };
+    }
+    let a = x.abs();
+    if a != 0.0 && !(1e-3..1e5).contains(&a) {
+        format!("{x:.3e}")
+    } else if a >= 100.0 {
+        format!("{x:.1}")
+    } else {
+        format!("{x:.4}")
+    }
+}
+
+/// A number for the HTML report.
+pub fn html(x: f64) -> String {
+    if x.is_nan() {
+        "—".into()
+    } else if x.is_infinite() {
+        if x > 0.0 {
+            "∞".into()
+        } else {
+            "−∞".into()
+        }
+    } else {
+        display(x)
+    }
+}
+
+/// A number for a CSV table: exact (shortest round-trip form).
+pub fn csv(x: f64) -> String {
+    if x == f64::INFINITY {
+        "inf".into()
+    } else if x == f64::NEG_INFINITY {
+        "-inf".into()
+    } else {
+        format!("{x}")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn each_form() {
+        assert_eq!(code(0.25), "0.25");
+        assert_eq!(code(-1.101449), "-1.10145");
+        assert_eq!(code(2e-7), "2e-7");
+        assert_eq!(display(0.123456), "0.1235");
+        assert_eq!(display(123.456), "123.5");
+        assert_eq!(display(1e-5), "1.000e-5");
+        assert_eq!(html(f64::NAN), "—");
+        assert_eq!(html(f64::NEG_INFINITY), "−∞");
+        assert_eq!(csv(0.1 + 0.2), "0.30000000000000004");
+        assert_eq!(csv(f64::INFINITY), "inf");
+    }
+}
