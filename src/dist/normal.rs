@@ -1,5 +1,9 @@
 //! Normal(mean, sd). Base: standard normal, θ = mean + sd·z.
 
+use super::forms::{Args, Form, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
 use crate::numerics::{norm_cdf, norm_pdf, norm_quantile};
 
@@ -18,13 +22,53 @@ impl Normal {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::real("mean", Start::Middle),
+    Param::positive("sd", Start::HalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "normal",
-    params: &["mean", "sd"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Normal,
     support: Support::Real,
+    roles: &[],
     about: "normal with mean and standard deviation sd",
     build: |p| Ok(Box::new(Normal::new(p[0], p[1])?)),
+    stan: Form::Written(stan),
+    pymc: Form::Written(pymc),
+    brms: Form::Written(stan),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference): normal(mu, sigma), sigma an sd. brms prior strings use the same call.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("normal", vec![a.v(0), a.v(1)])
+}
+
+/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Normal(mu, sigma).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Normal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
+}
+
+/// Reference values for the registry test.
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.norm(loc=1, scale=2)",
+    params: &[1.0, 2.0],
+    points: &[
+        (-2.0, 0.06680720126885807, 0.06475879783294587),
+        (1.5, 0.5987063256829237, 0.19333405840142465),
+        (4.0, 0.9331927987311419, 0.06475879783294587),
+    ],
+    quantiles: &[
+        (0.05, -2.2897072539029457),
+        (0.5, 1.0),
+        (0.95, 4.289707253902945),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for Normal {
