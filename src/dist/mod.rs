@@ -15,31 +15,17 @@
 //! declares its parameters (domain and start hint, [`params`]), support, base,
 //! the roles templates may offer it for ([`Role`]), its constructor, and its
 //! forms in Stan, PyMC and brms ([`forms`]). Adding a family is that file plus
-//! one `mod` line and one line in [`FAMILIES`]; the exporters, the templates'
-//! lists of allowed families and quantile fitting ask the registry.
+//! one line in the `registry!` list below (it declares the module and lists the
+//! family in [`FAMILIES`]); the exporters, the templates' lists of allowed
+//! families and quantile fitting ask the registry.
 
 use std::fmt;
 use std::sync::Arc;
 
-pub mod beta;
-pub mod exponential;
 pub mod forms;
-pub mod gamma;
-pub mod half_cauchy;
-pub mod half_normal;
-pub mod half_student_t;
-pub mod inverse_gamma;
-pub mod laplace;
-pub mod logit_normal;
-pub mod loglogistic;
-pub mod lognormal;
 pub mod mixed;
 pub mod mixture;
-pub mod normal;
 pub mod params;
-pub mod student_t;
-pub mod uniform;
-pub mod weibull;
 
 #[cfg(test)]
 pub(crate) mod invariants;
@@ -194,24 +180,34 @@ impl fmt::Debug for FamilyInfo {
     }
 }
 
-/// All families, by name. Adding a family adds one line here.
-pub static FAMILIES: &[&FamilyInfo] = &[
-    &normal::INFO,
-    &lognormal::INFO,
-    &gamma::INFO,
-    &inverse_gamma::INFO,
-    &beta::INFO,
-    &logit_normal::INFO,
-    &student_t::INFO,
-    &half_normal::INFO,
-    &half_student_t::INFO,
-    &half_cauchy::INFO,
-    &exponential::INFO,
-    &uniform::INFO,
-    &weibull::INFO,
-    &laplace::INFO,
-    &loglogistic::INFO,
-];
+/// Declares each family's module (`src/dist/<name>.rs`) and lists its `INFO`
+/// in [`FAMILIES`], in the order given.
+macro_rules! registry {
+    ($($family:ident),* $(,)?) => {
+        $(pub mod $family;)*
+        /// All families, in registry order (the order of [`family_names`]).
+        pub static FAMILIES: &[&FamilyInfo] = &[$(&$family::INFO),*];
+    };
+}
+
+// The registry: adding a family adds one line here.
+registry! {
+    normal,
+    lognormal,
+    gamma,
+    inverse_gamma,
+    beta,
+    logit_normal,
+    student_t,
+    half_normal,
+    half_student_t,
+    half_cauchy,
+    exponential,
+    uniform,
+    weibull,
+    laplace,
+    loglogistic,
+}
 
 /// Look a family up by name.
 pub fn family(name: &str) -> Option<&'static FamilyInfo> {
