@@ -207,6 +207,7 @@ registry! {
     weibull,
     laplace,
     loglogistic,
+    gumbel,
 }
 
 /// Look a family up by name.
