@@ -1,7 +1,7 @@
 //! Beta(alpha, beta) on (0, 1). Mean alpha/(alpha + beta). CDF and quantile from
 //! statrs 0.19 (regularised incomplete beta and its inverse). Base: uniform.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -43,24 +43,22 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "beta on (0, 1) with shapes alpha and beta",
     build: |p| Ok(Box::new(Beta::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): beta(alpha, beta) on a <lower=0, upper=1> parameter. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): beta(alpha, beta) on a
+/// <lower=0, upper=1> parameter.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("beta", vec![a.v(0), a.v(1)]).bounded(Some(0.0), Some(1.0))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Beta(alpha, beta).
+/// PyMC 5 (`pymc.distributions.continuous`): Beta(alpha, beta).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Beta", vec![("alpha", a.v(0)), ("beta", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.beta(a=2, b=3)",

@@ -1,7 +1,7 @@
 //! Exponential(rate): CDF 1 − e^(−rate·x), mean 1/rate. Base: uniform,
 //! θ = −ln(1 − u)/rate.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -31,26 +31,23 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::NoiseSd, Role::LatencyShape],
     about: "exponential with rate (mean 1/rate)",
     build: |p| Ok(Box::new(Exponential::new(p[0])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): exponential(beta), beta a rate. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): exponential(beta), beta a rate.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("exponential", vec![a.v(0)])
         .positive()
         .noted("exponential(rate)")
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Exponential(lam), lam a rate.
+/// PyMC 5 (`pymc.distributions.continuous`): Exponential(lam), lam a rate.
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Exponential", vec![("lam", a.v(0))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.expon(scale=1/0.7)",

@@ -21,6 +21,26 @@ pub enum Form<F> {
     Absent(&'static str),
 }
 
+/// A family's forms in the three languages.
+#[derive(Clone, Copy)]
+pub struct Forms {
+    pub stan: Form<StanFn>,
+    pub pymc: Form<PymcFn>,
+    /// brms prior strings are Stan calls: usually the Stan form itself.
+    pub brms: Form<StanFn>,
+}
+
+impl Forms {
+    /// Written in all three languages, brms with the Stan form.
+    pub const fn written(stan: StanFn, pymc: PymcFn) -> Self {
+        Self {
+            stan: Form::Written(stan),
+            pymc: Form::Written(pymc),
+            brms: Form::Written(stan),
+        }
+    }
+}
+
 /// Writes a family in Stan syntax (used for Stan and for brms prior strings).
 pub type StanFn = fn(&Args) -> StanForm;
 /// Writes a family as a PyMC 5 constructor.
@@ -103,6 +123,14 @@ impl StanForm {
     pub fn noted(mut self, note: impl Into<String>) -> Self {
         self.note = Some(note.into());
         self
+    }
+
+    /// A half family: the full distribution on a `<lower=0>` parameter, whose
+    /// bound truncates it (the constant factor 2 does not matter for sampling);
+    /// `label` names the family and its values in the note.
+    pub fn truncated_at_zero(self, label: String) -> Self {
+        self.positive()
+            .noted(format!("{label}: the <lower=0> bound truncates"))
     }
 
     /// State the distribution for `<name>_<suffix>`; the parameter is

@@ -1,7 +1,7 @@
 //! Gamma(shape, rate): density ∝ x^(shape−1) e^(−rate·x). Mean shape/rate.
 //! CDF and quantile from statrs 0.19 (`Gamma::new(shape, rate)`). Base: uniform.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -43,26 +43,23 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::LatencyShape],
     about: "gamma with shape and rate (mean shape/rate)",
     build: |p| Ok(Box::new(Gamma::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): gamma(alpha, beta), beta a rate. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): gamma(alpha, beta), beta a rate.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("gamma", vec![a.v(0), a.v(1)])
         .positive()
         .noted("gamma(shape, rate)")
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Gamma(alpha, beta), beta a rate.
+/// PyMC 5 (`pymc.distributions.continuous`): Gamma(alpha, beta), beta a rate.
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Gamma", vec![("alpha", a.v(0)), ("beta", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.gamma(a=2.5, scale=1/1.5)",

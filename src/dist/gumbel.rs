@@ -4,7 +4,7 @@
 //! (Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions, vol. 2,
 //! 2nd ed., ch. 22). Base: uniform, θ = mu − beta·ln(−ln u).
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -43,9 +43,7 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "Gumbel (largest extreme value) with location mu and scale beta",
     build: |p| Ok(Box::new(Gumbel::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
@@ -61,7 +59,6 @@ fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Gumbel", vec![("mu", a.v(0)), ("beta", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.gumbel_r(loc=0.5, scale=2)",

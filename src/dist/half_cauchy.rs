@@ -1,7 +1,7 @@
 //! HalfCauchy(scale): |C|·scale, CDF (2/π)·atan(x/scale), quantile scale·tan(πp/2).
 //! Base: uniform. No mean.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -32,29 +32,26 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "half-Cauchy with scale (no mean)",
     build: |p| Ok(Box::new(HalfCauchy::new(p[0])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): cauchy(0, sigma) on a <lower=0> parameter (the bound truncates). brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): cauchy(0, sigma) on a <lower=0>
+/// parameter (the bound truncates).
 fn stan(a: &Args) -> StanForm {
     StanForm::new("cauchy", vec![0.0, a.v(0)])
-        .positive()
-        .noted(format!(
-            "half-cauchy({}): the <lower=0> bound truncates",
+        .truncated_at_zero(format!(
+            "half-cauchy({})",
             a.n(0)
         ))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): HalfCauchy(beta), beta the scale.
+/// PyMC 5 (`pymc.distributions.continuous`): HalfCauchy(beta), beta the scale.
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("HalfCauchy", vec![("beta", a.v(0))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.halfcauchy(scale=0.3)",

@@ -1,7 +1,7 @@
 //! HalfNormal(scale): |Z|·scale. Base: standard normal, θ = scale·|z|.
 //! Mean scale·√(2/π).
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -33,29 +33,26 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::NoiseSd, Role::LatencyShape],
     about: "half-normal: |normal(0, scale)|",
     build: |p| Ok(Box::new(HalfNormal::new(p[0])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): normal(0, sigma) on a <lower=0> parameter (the bound truncates; the constant factor 2 does not matter for sampling). brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): normal(0, sigma) on a <lower=0>
+/// parameter (the bound truncates; the constant factor 2 does not matter for sampling).
 fn stan(a: &Args) -> StanForm {
     StanForm::new("normal", vec![0.0, a.v(0)])
-        .positive()
-        .noted(format!(
-            "half-normal({}): the <lower=0> bound truncates",
+        .truncated_at_zero(format!(
+            "half-normal({})",
             a.n(0)
         ))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): HalfNormal(sigma).
+/// PyMC 5 (`pymc.distributions.continuous`): HalfNormal(sigma).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("HalfNormal", vec![("sigma", a.v(0))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.halfnorm(scale=2.5)",

@@ -1,7 +1,7 @@
 //! HalfStudentT(df, scale): |T|·scale with T ~ Student t(df). Base: uniform,
 //! θ = scale·t_df⁻¹((1 + u)/2).
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -41,30 +41,27 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::NoiseSd],
     about: "half Student t: |t(df, 0, scale)|",
     build: |p| Ok(Box::new(HalfStudentT::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): student_t(nu, 0, sigma) on a <lower=0> parameter (the bound truncates). brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): student_t(nu, 0, sigma) on a
+/// <lower=0> parameter (the bound truncates).
 fn stan(a: &Args) -> StanForm {
     StanForm::new("student_t", vec![a.v(0), 0.0, a.v(1)])
-        .positive()
-        .noted(format!(
-            "half-student-t({}, {}): the <lower=0> bound truncates",
+        .truncated_at_zero(format!(
+            "half-student-t({}, {})",
             a.n(0),
             a.n(1)
         ))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): HalfStudentT(nu, sigma).
+/// PyMC 5 (`pymc.distributions.continuous`): HalfStudentT(nu, sigma).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("HalfStudentT", vec![("nu", a.v(0)), ("sigma", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: |T| with T ~ stats.t(df=3, scale=1.5): cdf 2·t.cdf − 1, pdf 2·t.pdf, quantile t.ppf((1 + p)/2)",

@@ -1,7 +1,7 @@
 //! InverseGamma(shape, scale): 1/θ ~ Gamma(shape, rate = scale). Mean scale/(shape − 1)
 //! for shape > 1. Computed through the gamma family. Base: uniform.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 use super::gamma::Gamma;
 #[cfg(test)]
 use super::invariants::Reference;
@@ -41,26 +41,23 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::NoiseSd, Role::LatencyShape],
     about: "inverse-gamma: 1/x is gamma(shape, rate = scale)",
     build: |p| Ok(Box::new(InverseGamma::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): inv_gamma(alpha, beta), beta a scale. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): inv_gamma(alpha, beta), beta a scale.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("inv_gamma", vec![a.v(0), a.v(1)])
         .positive()
         .noted("inverse-gamma(shape, scale)")
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): InverseGamma(alpha, beta), beta a scale.
+/// PyMC 5 (`pymc.distributions.continuous`): InverseGamma(alpha, beta), beta a scale.
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("InverseGamma", vec![("alpha", a.v(0)), ("beta", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.invgamma(a=3, scale=2)",

@@ -1,7 +1,7 @@
 //! Laplace(location, scale): density e^(−|x − location|/scale)/(2·scale).
 //! Base: uniform, closed-form quantile.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -36,24 +36,22 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "Laplace (double exponential) with location and scale",
     build: |p| Ok(Box::new(Laplace::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): double_exponential(mu, sigma), sigma the scale. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): double_exponential(mu, sigma),
+/// sigma the scale.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("double_exponential", vec![a.v(0), a.v(1)]).noted("laplace(location, scale)")
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Laplace(mu, b), b the scale.
+/// PyMC 5 (`pymc.distributions.continuous`): Laplace(mu, b), b the scale.
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Laplace", vec![("mu", a.v(0)), ("b", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.laplace(loc=1, scale=0.5)",

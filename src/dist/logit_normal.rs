@@ -2,7 +2,7 @@
 //! Median logistic(mu). Moments have no closed form; they are computed by
 //! Gauss–Legendre quadrature over the normal scale. Base: standard normal.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -49,14 +49,13 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "logit-normal on (0, 1): the logit is normal(mu, sigma)",
     build: |p| Ok(Box::new(LogitNormal::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): none: `<name>_logit ~ normal(mu, sigma)` and `<name> = inv_logit(<name>_logit)`. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): none: `<name>_logit ~
+/// normal(mu, sigma)` and `<name> = inv_logit(<name>_logit)`.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("normal", vec![a.v(0), a.v(1)])
         .via("logit", "inv_logit", Some(0.0), Some(1.0))
@@ -68,12 +67,11 @@ fn stan(a: &Args) -> StanForm {
         ))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): LogitNormal(mu, sigma).
+/// PyMC 5 (`pymc.distributions.continuous`): LogitNormal(mu, sigma).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("LogitNormal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: logit θ ~ stats.norm(loc=0.6, scale=0.5), pdf with the 1/(x(1 − x)) Jacobian, quantile expit(norm.ppf)",

@@ -1,7 +1,7 @@
 //! LogLogistic(shape k, scale α): S(t) = 1/(1 + (t/α)^k), median α.
 //! Base: uniform, θ = α·(u/(1 − u))^(1/k).
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -37,14 +37,15 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "log-logistic with shape k and scale (the median)",
     build: |p| Ok(Box::new(LogLogistic::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): none in every version (a native `loglogistic` exists only in recent releases): log θ ~ logistic(log scale, 1/shape), because F(t) = 1/(1 + (t/scale)^−shape) = logistic(shape·(log t − log scale)); so `<name>_log ~ logistic(…)`, `<name> = exp(<name>_log)`. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): none in every version (a native
+/// `loglogistic` exists only in recent releases): log θ ~ logistic(log scale, 1/shape),
+/// because F(t) = 1/(1 + (t/scale)^−shape) = logistic(shape·(log t − log scale)); so
+/// `<name>_log ~ logistic(…)`, `<name> = exp(<name>_log)`.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("logistic", vec![a.v(1).ln(), 1.0 / a.v(0)])
         .via("log", "exp", Some(0.0), None)
@@ -56,7 +57,8 @@ fn stan(a: &Args) -> StanForm {
         ))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): none: log θ ~ Logistic(mu = log scale, s = 1/shape) and θ = exp(log θ) as a Deterministic (the identity above).
+/// PyMC 5 (`pymc.distributions.continuous`): none: log θ ~ Logistic(mu = log scale, s =
+/// 1/shape) and θ = exp(log θ) as a Deterministic (the identity above).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Logistic", vec![("mu", a.v(1).ln()), ("s", 1.0 / a.v(0))])
         .via("log", "exp")
@@ -68,7 +70,6 @@ fn pymc(a: &Args) -> PymcForm {
         ))
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.fisk(c=2.5, scale=7)",

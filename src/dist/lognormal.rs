@@ -1,7 +1,7 @@
 //! LogNormal(meanlog, sdlog): ln θ ~ Normal(meanlog, sdlog). Base: standard normal,
 //! θ = exp(meanlog + sdlog·z). Median e^meanlog, mean e^(meanlog + sdlog²/2).
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -37,24 +37,21 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::LatencyShape],
     about: "log-normal: the log is normal(meanlog, sdlog)",
     build: |p| Ok(Box::new(LogNormal::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): lognormal(mu, sigma) of the log. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): lognormal(mu, sigma) of the log.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("lognormal", vec![a.v(0), a.v(1)]).positive()
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): LogNormal(mu, sigma).
+/// PyMC 5 (`pymc.distributions.continuous`): LogNormal(mu, sigma).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("LogNormal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.lognorm(s=0.35, scale=exp(0.4))",

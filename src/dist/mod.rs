@@ -32,7 +32,7 @@ pub(crate) mod invariants;
 #[cfg(test)]
 mod registry_tests;
 
-pub use forms::{Form, PymcFn, StanFn};
+pub use forms::{Form, Forms, PymcFn, StanFn};
 pub use mixed::{Atom, Mixed};
 pub use mixture::Mixture;
 pub use params::{Domain, Param, Start};
@@ -153,9 +153,7 @@ pub struct FamilyInfo {
     pub about: &'static str,
     pub build: Builder,
     /// The family in Stan, PyMC and brms (see [`forms`]).
-    pub stan: Form<StanFn>,
-    pub pymc: Form<PymcFn>,
-    pub brms: Form<StanFn>,
+    pub forms: Forms,
     /// Reference values with their source, checked by the registry test.
     #[cfg(test)]
     pub reference: invariants::Reference,

@@ -1,6 +1,6 @@
 //! Normal(mean, sd). Base: standard normal, θ = mean + sd·z.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -36,24 +36,21 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "normal with mean and standard deviation sd",
     build: |p| Ok(Box::new(Normal::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): normal(mu, sigma), sigma an sd. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): normal(mu, sigma), sigma an sd.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("normal", vec![a.v(0), a.v(1)])
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Normal(mu, sigma).
+/// PyMC 5 (`pymc.distributions.continuous`): Normal(mu, sigma).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Normal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.norm(loc=1, scale=2)",
@@ -115,7 +112,8 @@ mod tests {
 
     #[test]
     fn reference_values() {
-        // scipy 1.17: norm(loc=1, scale=2).cdf(2) = 0.6914624612740131, .ppf(0.1) = -1.5631031310892007
+        // scipy 1.17: norm(loc=1, scale=2).cdf(2) = 0.6914624612740131, .ppf(0.1) =
+        // -1.5631031310892007
         let d = Normal::new(1.0, 2.0).unwrap();
         assert!((d.cdf(2.0) - 0.6914624612740131).abs() < 1e-14);
         assert!((d.quantile(0.1) + 1.5631031310892007).abs() < 1e-13);

@@ -166,9 +166,9 @@ fn every_family_exports_to_every_language_or_says_it_cannot() {
         let items = [Item::Scalar(scalar.clone())];
         type Render = fn(&Header, &[Item]) -> crate::error::Result<String>;
         let langs: [(&str, Result<(), &str>, Render); 3] = [
-            ("stan", declared(&f.stan), stan::render),
-            ("pymc", declared(&f.pymc), pymc::render),
-            ("brms", declared(&f.brms), brms::render),
+            ("stan", declared(&f.forms.stan), stan::render),
+            ("pymc", declared(&f.forms.pymc), pymc::render),
+            ("brms", declared(&f.forms.brms), brms::render),
         ];
         for (lang, decl, render) in langs {
             match (decl, render(&h, &items)) {

@@ -1,7 +1,7 @@
 //! StudentT(df, location, scale). CDF and quantile from statrs 0.19
 //! (`StudentsT::new(location, scale, freedom)`). Base: uniform.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -52,19 +52,17 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[],
     about: "Student t with df degrees of freedom, location and scale",
     build: |p| Ok(Box::new(StudentT::new(p[0], p[1], p[2])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): student_t(nu, mu, sigma). brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): student_t(nu, mu, sigma).
 fn stan(a: &Args) -> StanForm {
     StanForm::new("student_t", vec![a.v(0), a.v(1), a.v(2)])
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): StudentT(nu, mu, sigma).
+/// PyMC 5 (`pymc.distributions.continuous`): StudentT(nu, mu, sigma).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new(
         "StudentT",
@@ -72,7 +70,6 @@ fn pymc(a: &Args) -> PymcForm {
     )
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.t(df=3, loc=1, scale=2)",

@@ -1,6 +1,6 @@
 //! Uniform(lower, upper). Base: uniform, θ = lower + (upper − lower)·u.
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -42,24 +42,22 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::LatencyShape],
     about: "uniform between lower and upper",
     build: |p| Ok(Box::new(Uniform::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): uniform(alpha, beta) on a <lower=alpha, upper=beta> parameter. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): uniform(alpha, beta) on a
+/// <lower=alpha, upper=beta> parameter.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("uniform", vec![a.v(0), a.v(1)]).bounded(Some(a.v(0)), Some(a.v(1)))
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Uniform(lower, upper).
+/// PyMC 5 (`pymc.distributions.continuous`): Uniform(lower, upper).
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Uniform", vec![("lower", a.v(0)), ("upper", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.uniform(loc=-1, scale=4)",

@@ -1,7 +1,7 @@
 //! Weibull(shape k, scale λ): S(t) = exp(−(t/λ)^k), median λ·(ln 2)^(1/k),
 //! mean λ·Γ(1 + 1/k). Base: uniform, θ = λ·(−ln(1 − u))^(1/k).
 
-use super::forms::{Args, Form, PymcForm, StanForm};
+use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
@@ -37,26 +37,24 @@ pub const INFO: FamilyInfo = FamilyInfo {
     roles: &[Role::LatencyShape],
     about: "Weibull with shape k and scale: S(t) = exp(-(t/scale)^k)",
     build: |p| Ok(Box::new(Weibull::new(p[0], p[1])?)),
-    stan: Form::Written(stan),
-    pymc: Form::Written(pymc),
-    brms: Form::Written(stan),
+    forms: Forms::written(stan, pymc),
     #[cfg(test)]
     reference: REFERENCE,
 };
 
-/// Stan (Stan Functions Reference): weibull(alpha, sigma), alpha the shape, sigma the scale. brms prior strings use the same call.
+/// Stan (Stan Functions Reference; brms uses the same call): weibull(alpha, sigma), alpha
+/// the shape, sigma the scale.
 fn stan(a: &Args) -> StanForm {
     StanForm::new("weibull", vec![a.v(0), a.v(1)])
         .positive()
         .noted("weibull(shape, scale)")
 }
 
-/// PyMC (PyMC 5 API reference, `pymc.distributions.continuous`): Weibull(alpha, beta), alpha the shape, beta the scale.
+/// PyMC 5 (`pymc.distributions.continuous`): Weibull(alpha, beta), alpha the shape, beta the scale.
 fn pymc(a: &Args) -> PymcForm {
     PymcForm::new("Weibull", vec![("alpha", a.v(0)), ("beta", a.v(1))])
 }
 
-/// Reference values for the registry test.
 #[cfg(test)]
 const REFERENCE: Reference = Reference {
     source: "scipy 1.17.1: stats.weibull_min(c=1.5, scale=2)",

@@ -1,7 +1,7 @@
 //! brms export: a `priors <- c(set_prior(...), ...)` specification.
 //!
 //! brms prior strings are Stan distribution calls: each family declares its brms
-//! form (`FamilyInfo::brms`, a Stan-syntax call, rendered by
+//! form (`FamilyInfo::forms.brms`, a Stan-syntax call, rendered by
 //! [`super::stan::from_family`]; a family without one is a clear error). Each
 //! of our parameters becomes a non-linear parameter (`nlpar`, class "b") of an
 //! intercept-only formula
@@ -52,7 +52,7 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
         match it {
             Item::Scalar(s) => {
                 check_ident(&s.parameter, Lang::Brms, RESERVED)?;
-                let f = from_family(s, "brms", &s.family.brms)?;
+                let f = from_family(s, "brms", &s.family.forms.brms)?;
                 let nl = nlpar_name(&f.sampled);
                 names.push(nl.clone());
                 let mut comments = Vec::new();

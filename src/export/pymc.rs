@@ -1,6 +1,6 @@
 //! PyMC export: distribution constructors inside a `with pm.Model()` context.
 //!
-//! The family decides how it is written (`FamilyInfo::pymc`, a
+//! The family decides how it is written (`FamilyInfo::forms.pymc`, a
 //! [`crate::dist::forms::PymcForm`]: the PyMC 5 class and its keyword arguments
 //! in PyMC's parameterisation, and when PyMC lacks the family a helper variable
 //! on another scale with the parameter as a `pm.Deterministic`); this file only
@@ -26,7 +26,7 @@ pub fn lines(s: &Scalar) -> Result<Vec<String>> {
 
 /// The lines for one scalar prior and the helper variable they declare, if any.
 fn statement(s: &Scalar) -> Result<(Vec<String>, Option<String>)> {
-    let write = match &s.family.pymc {
+    let write = match &s.family.forms.pymc {
         Form::Written(write) => write,
         Form::Absent(why) => return Err(no_form(s, "PyMC", why)),
     };

@@ -2,7 +2,7 @@
 //! constraints), a `transformed parameters` block where a family is written on
 //! another scale, and a `model` block with the prior statements.
 //!
-//! The family decides how it is written (`FamilyInfo::stan`, a
+//! The family decides how it is written (`FamilyInfo::forms.stan`, a
 //! [`crate::dist::forms::StanForm`]: Stan's distribution call in Stan's
 //! parameterisation, the declared bounds, and when Stan lacks the family a
 //! helper variable on another scale, e.g. `p_logit ~ normal(mu, sigma)`,
@@ -76,7 +76,7 @@ pub const RESERVED: &[&str] = &[
 
 /// The Stan form of a scalar prior, as its family declares it.
 pub fn form(s: &Scalar) -> Result<Form> {
-    from_family(s, "Stan", &s.family.stan)
+    from_family(s, "Stan", &s.family.forms.stan)
 }
 
 /// Render a family's declared Stan-syntax form for `lang` (Stan, or brms, whose

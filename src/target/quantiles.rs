@@ -307,7 +307,8 @@ mod tests {
     #[test]
     fn two_quantiles_give_lognormal() {
         // With two quantiles on the log scale the interpolant is exactly log-normal:
-        // median 10, 0.9-quantile 10·e^(1.2815516·0.5) (scipy 1.17 norm.ppf(0.9) = 1.2815515655446004).
+        // median 10, 0.9-quantile 10·e^(1.2815516·0.5) (scipy 1.17 norm.ppf(0.9) =
+        // 1.2815515655446004).
         let q90 = 10.0 * (1.2815515655446004f64 * 0.5).exp();
         let pts = validate(vec![(0.5, 10.0), (0.9, q90)], Scale::Log).unwrap();
         let s = QuantileSpline::new(&pts, Scale::Log);
