@@ -4,7 +4,7 @@
 
 use super::invariants::{check, check_reference};
 use super::params::Elicited;
-use super::{family, Base, Continuous, FamilyInfo, Form, Role, Support, FAMILIES};
+use super::{family, Base, Continuous, FamilyInfo, Form, Forms, Role, Support, FAMILIES};
 use crate::export::{brms, pymc, stan, Header, Item, Scalar};
 use crate::numerics::norm_quantile;
 
@@ -223,5 +223,41 @@ fn template_allow_lists_keep_their_families() {
         assert_eq!(f.real_valued(), real, "{name}");
         assert_eq!(f.suits(Role::NoiseSd), noise, "{name}");
         assert_eq!(f.suits(Role::LatencyShape), shape, "{name}");
+    }
+}
+
+#[test]
+fn a_declared_absence_is_a_clear_export_error() {
+    // The normal family as if PyMC and brms could not state it.
+    static NO_PYMC: FamilyInfo = FamilyInfo {
+        forms: Forms {
+            pymc: Form::Absent("PyMC has no such class"),
+            brms: Form::Absent("brms has no such prior"),
+            ..super::normal::INFO.forms
+        },
+        ..super::normal::INFO
+    };
+    let items = [Item::Scalar(Scalar {
+        parameter: "theta".into(),
+        family: &NO_PYMC,
+        params: vec![0.0, 1.0],
+        about: String::new(),
+    })];
+    assert!(stan::render(&header(), &items).is_ok());
+    for (render, lang, why) in [
+        (
+            pymc::render as fn(&Header, &[Item]) -> _,
+            "PyMC",
+            "no such class",
+        ),
+        (brms::render, "brms", "no such prior"),
+    ] {
+        let e = render(&header(), &items).unwrap_err().to_string();
+        assert!(
+            e.contains(&format!("export to {lang} does not know family \"normal\""))
+                && e.contains("`theta`")
+                && e.contains(why),
+            "{e}"
+        );
     }
 }
