@@ -87,6 +87,7 @@ fn stan_dist(name: &str, a: &[f64]) -> D {
         ("weibull", 2) => build("weibull", a), // weibull(alpha shape, sigma scale)
         ("double_exponential", 2) => build("laplace", a), // double_exponential(mu, sigma scale)
         ("logistic", 2) => logistic(a[0], a[1]), // logistic(mu, sigma scale)
+        ("gumbel", 2) => build("gumbel", a), // gumbel(mu, beta): beta a scale
         _ => panic!(
             "test parser does not know Stan distribution {name}/{}",
             a.len()
@@ -127,6 +128,7 @@ fn pymc_dist(cls: &str, k: &BTreeMap<String, f64>) -> (D, Option<f64>) {
         "Weibull" => (build("weibull", &[g("alpha"), g("beta")]), None), // beta = scale
         "Laplace" => (build("laplace", &[g("mu"), g("b")]), None),
         "Logistic" => (logistic(g("mu"), g("s")), None),
+        "Gumbel" => (build("gumbel", &[g("mu"), g("beta")]), None), // beta = scale
         _ => panic!("test parser does not know PyMC class {cls}"),
     }
 }

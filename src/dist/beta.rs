@@ -1,6 +1,10 @@
 //! Beta(alpha, beta) on (0, 1). Mean alpha/(alpha + beta). CDF and quantile from
 //! statrs 0.19 (regularised incomplete beta and its inverse). Base: uniform.
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{positive, Base, Continuous, DistError, FamilyInfo, Support};
 use statrs::distribution::{Continuous as _, ContinuousCDF};
 
@@ -25,13 +29,51 @@ impl Beta {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::positive("alpha", Start::Offset),
+    Param::positive("beta", Start::Offset),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "beta",
-    params: &["alpha", "beta"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Unit,
+    roles: &[],
     about: "beta on (0, 1) with shapes alpha and beta",
     build: |p| Ok(Box::new(Beta::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): beta(alpha, beta) on a
+/// <lower=0, upper=1> parameter.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("beta", vec![a.v(0), a.v(1)]).bounded(Some(0.0), Some(1.0))
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): Beta(alpha, beta).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Beta", vec![("alpha", a.v(0)), ("beta", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.beta(a=2, b=3)",
+    params: &[2.0, 3.0],
+    points: &[
+        (0.05, 0.014018749999999998, 0.5415),
+        (0.4, 0.5247999999999999, 1.7279999999999998),
+        (0.9, 0.9963, 0.108),
+    ],
+    quantiles: &[
+        (0.05, 0.09761146288641434),
+        (0.5, 0.3857275681323895),
+        (0.95, 0.7513953742698181),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for Beta {
@@ -81,7 +123,7 @@ mod tests {
 
     #[test]
     fn scipy_quantiles() {
-        // scipy 1.17: beta.ppf([.05, .5, .95], 2, 3) = 0.0976115, 0.3857276, 0.7513954 (issue 2).
+        // scipy 1.17.1: beta.ppf([.05, .5, .95], 2, 3) = 0.0976115, 0.3857276, 0.7513954 (rounded).
         let d = Beta::new(2.0, 3.0).unwrap();
         for (p, q) in [(0.05, 0.0976115), (0.5, 0.3857276), (0.95, 0.7513954)] {
             assert!((d.quantile(p) - q).abs() < 5e-8, "p {p}: {}", d.quantile(p));

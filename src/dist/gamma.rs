@@ -1,7 +1,11 @@
 //! Gamma(shape, rate): density ∝ x^(shape−1) e^(−rate·x). Mean shape/rate.
 //! CDF and quantile from statrs 0.19 (`Gamma::new(shape, rate)`). Base: uniform.
 
-use super::{positive, Base, Continuous, DistError, FamilyInfo, Support};
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
+use super::{positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
 use statrs::distribution::{Continuous as _, ContinuousCDF};
 
 #[derive(Debug, Clone)]
@@ -25,13 +29,52 @@ impl Gamma {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::positive("shape", Start::Offset),
+    Param::positive("rate", Start::InverseHalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "gamma",
-    params: &["shape", "rate"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Positive,
+    roles: &[Role::LatencyShape],
     about: "gamma with shape and rate (mean shape/rate)",
     build: |p| Ok(Box::new(Gamma::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): gamma(alpha, beta), beta a rate.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("gamma", vec![a.v(0), a.v(1)])
+        .positive()
+        .noted("gamma(shape, rate)")
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): Gamma(alpha, beta), beta a rate.
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Gamma", vec![("alpha", a.v(0)), ("beta", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.gamma(a=2.5, scale=1/1.5)",
+    params: &[2.5, 1.5],
+    points: &[
+        (0.3, 0.029778361590214426, 0.21719074405218725),
+        (1.5, 0.5201165618867003, 0.40138972612974916),
+        (5.0, 0.9896376620842136, 0.012818533423821173),
+    ],
+    quantiles: &[
+        (0.05, 0.3818254086872564),
+        (0.5, 1.4504867303651754),
+        (0.95, 3.6901658978387837),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for Gamma {

@@ -1,8 +1,12 @@
 //! HalfStudentT(df, scale): |T|·scale with T ~ Student t(df). Base: uniform,
 //! θ = scale·t_df⁻¹((1 + u)/2).
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::student_t::StudentT;
-use super::{positive, Base, Continuous, DistError, FamilyInfo, Support};
+use super::{positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
 
 #[derive(Debug, Clone)]
 pub struct HalfStudentT {
@@ -23,13 +27,52 @@ impl HalfStudentT {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::positive("df", Start::Offset),
+    Param::positive("scale", Start::HalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "half-student-t",
-    params: &["df", "scale"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Positive,
+    roles: &[Role::NoiseSd],
     about: "half Student t: |t(df, 0, scale)|",
     build: |p| Ok(Box::new(HalfStudentT::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): student_t(nu, 0, sigma) on a
+/// <lower=0> parameter (the bound truncates).
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("student_t", vec![a.v(0), 0.0, a.v(1)])
+        .truncated_at_zero(format!(
+            "half-student-t({}, {})",
+            a.n(0),
+            a.n(1)
+        ))
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): HalfStudentT(nu, sigma).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("HalfStudentT", vec![("nu", a.v(0)), ("sigma", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: |T| with T ~ stats.t(df=3, scale=1.5): cdf 2·t.cdf − 1, pdf 2·t.pdf, quantile t.ppf((1 + p)/2)",
+    params: &[3.0, 1.5],
+    points: &[
+        (0.1, 0.04895867538336507, 0.48862129005861527),
+        (1.5, 0.6089977810442295, 0.275664447710896),
+        (9.0, 0.9907272851077153, 0.002899823250081746),
+    ],
+    quantiles: &[(0.05, 0.10213128401440447), (0.5, 1.1473384926065167), (0.95, 4.773669457925561)],
+    tol: 1e-12,
 };
 
 impl Continuous for HalfStudentT {

@@ -32,3 +32,48 @@ pub fn check_cdf(d: &dyn Continuous) {
         assert!((d.sf(x) - (1.0 - p)).abs() < 1e-8);
     }
 }
+
+/// Reference values of a family from outside this crate: `source` names where
+/// they come from (a library and its version, or a book and formula; values
+/// recalled from memory say so).
+#[derive(Debug, Clone, Copy)]
+pub struct Reference {
+    pub source: &'static str,
+    /// Parameters in registry order.
+    pub params: &'static [f64],
+    /// (x, F(x), f(x)).
+    pub points: &'static [(f64, f64, f64)],
+    /// (p, F⁻¹(p)).
+    pub quantiles: &'static [(f64, f64)],
+    /// Largest relative error accepted (absolute below 1).
+    pub tol: f64,
+}
+
+/// Compare `d` with `r` (a failing value names the family, point and source).
+pub fn check_reference(d: &dyn Continuous, r: &Reference) {
+    let close = |got: f64, want: f64| (got - want).abs() <= r.tol * want.abs().max(1.0);
+    for &(x, cdf, pdf) in r.points {
+        let (c, f) = (d.cdf(x), d.pdf(x));
+        assert!(
+            close(c, cdf),
+            "{}: cdf({x}) = {c}, {} says {cdf}",
+            d.family(),
+            r.source
+        );
+        assert!(
+            close(f, pdf),
+            "{}: pdf({x}) = {f}, {} says {pdf}",
+            d.family(),
+            r.source
+        );
+    }
+    for &(p, x) in r.quantiles {
+        let q = d.quantile(p);
+        assert!(
+            close(q, x),
+            "{}: quantile({p}) = {q}, {} says {x}",
+            d.family(),
+            r.source
+        );
+    }
+}

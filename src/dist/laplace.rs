@@ -1,6 +1,10 @@
 //! Laplace(location, scale): density e^(−|x − location|/scale)/(2·scale).
 //! Base: uniform, closed-form quantile.
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
 
 #[derive(Debug, Clone, Copy)]
@@ -18,13 +22,51 @@ impl Laplace {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::real("location", Start::Middle),
+    Param::positive("scale", Start::HalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "laplace",
-    params: &["location", "scale"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Real,
+    roles: &[],
     about: "Laplace (double exponential) with location and scale",
     build: |p| Ok(Box::new(Laplace::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): double_exponential(mu, sigma),
+/// sigma the scale.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("double_exponential", vec![a.v(0), a.v(1)]).noted("laplace(location, scale)")
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): Laplace(mu, b), b the scale.
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Laplace", vec![("mu", a.v(0)), ("b", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.laplace(loc=1, scale=0.5)",
+    params: &[1.0, 0.5],
+    points: &[
+        (-0.5, 0.024893534183931972, 0.049787068367863944),
+        (1.2, 0.6648399769821803, 0.6703200460356393),
+        (3.0, 0.9908421805556329, 0.01831563888873418),
+    ],
+    quantiles: &[
+        (0.05, -0.15129254649702273),
+        (0.5, 1.0),
+        (0.95, 2.1512925464970225),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for Laplace {

@@ -2,6 +2,10 @@
 //! Median logistic(mu). Moments have no closed form; they are computed by
 //! Gauss–Legendre quadrature over the normal scale. Base: standard normal.
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
 use crate::numerics::{logistic, logit, norm_cdf, norm_pdf, norm_quantile};
 
@@ -31,13 +35,54 @@ impl LogitNormal {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::real("mu", Start::LogitMiddle),
+    Param::positive("sigma", Start::Offset),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "logit-normal",
-    params: &["mu", "sigma"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Normal,
     support: Support::Unit,
+    roles: &[],
     about: "logit-normal on (0, 1): the logit is normal(mu, sigma)",
     build: |p| Ok(Box::new(LogitNormal::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): none: `<name>_logit ~
+/// normal(mu, sigma)` and `<name> = inv_logit(<name>_logit)`.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("normal", vec![a.v(0), a.v(1)])
+        .via("logit", "inv_logit", Some(0.0), Some(1.0))
+        .noted(format!(
+            "{} ~ logit-normal({}, {}): Stan has none, so its logit is normal",
+            a.name,
+            a.n(0),
+            a.n(1)
+        ))
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): LogitNormal(mu, sigma).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("LogitNormal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: logit θ ~ stats.norm(loc=0.6, scale=0.5), pdf with the 1/(x(1 − x)) Jacobian, quantile expit(norm.ppf)",
+    params: &[0.6, 0.5],
+    points: &[
+        (0.3, 0.0018982356953648372, 0.05758542406432251),
+        (0.65, 0.5151874201418721, 3.5046431550015376),
+        (0.9, 0.9992995101938995, 0.05392837806596441),
+    ],
+    quantiles: &[(0.05, 0.4446214237897636), (0.5, 0.6456563062257954), (0.95, 0.8057185823097297)],
+    tol: 1e-12,
 };
 
 impl Continuous for LogitNormal {
@@ -86,9 +131,10 @@ mod tests {
     use super::*;
 
     #[test]
-    fn moments_match_issue_reference() {
-        // Issue 2's reference: μ = 0.6, σ = 0.5 → mean 0.63812, variance 0.012082,
-        // median logistic(0.6) = 0.645656 (by quadrature). Checked here against an
+    fn moments_match_quadrature() {
+        // μ = 0.6, σ = 0.5 → mean 0.63812, variance 0.012082 (scipy 1.17.1
+        // `integrate.quad` over the normal scale: 0.6381209, 0.0120817),
+        // median logistic(0.6) = 0.645656 (scipy expit). Checked here against an
         // independent quadrature: the trapezoid rule on the (0, 1) scale with the density.
         let d = LogitNormal::new(0.6, 0.5).unwrap();
         let m = d.mean().unwrap();

@@ -1,6 +1,10 @@
 //! LogLogistic(shape k, scale α): S(t) = 1/(1 + (t/α)^k), median α.
 //! Base: uniform, θ = α·(u/(1 − u))^(1/k).
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{positive, Base, Continuous, DistError, FamilyInfo, Support};
 use std::f64::consts::PI;
 
@@ -19,13 +23,68 @@ impl LogLogistic {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::positive("shape", Start::Offset),
+    Param::positive("scale", Start::HalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "loglogistic",
-    params: &["shape", "scale"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Positive,
+    roles: &[],
     about: "log-logistic with shape k and scale (the median)",
     build: |p| Ok(Box::new(LogLogistic::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): none in every version (a native
+/// `loglogistic` exists only in recent releases): log θ ~ logistic(log scale, 1/shape),
+/// because F(t) = 1/(1 + (t/scale)^−shape) = logistic(shape·(log t − log scale)); so
+/// `<name>_log ~ logistic(…)`, `<name> = exp(<name>_log)`.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("logistic", vec![a.v(1).ln(), 1.0 / a.v(0)])
+        .via("log", "exp", Some(0.0), None)
+        .noted(format!(
+            "{} ~ loglogistic(shape {}, scale {}): its log is logistic(log scale, 1/shape)",
+            a.name,
+            a.n(0),
+            a.n(1)
+        ))
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): none: log θ ~ Logistic(mu = log scale, s =
+/// 1/shape) and θ = exp(log θ) as a Deterministic (the identity above).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Logistic", vec![("mu", a.v(1).ln()), ("s", 1.0 / a.v(0))])
+        .via("log", "exp")
+        .noted(format!(
+            "{} ~ loglogistic(shape {}, scale {}): PyMC has none; its log is Logistic(log scale, 1/shape)",
+            a.name,
+            a.n(0),
+            a.n(1)
+        ))
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.fisk(c=2.5, scale=7)",
+    params: &[2.5, 7.0],
+    points: &[
+        (1.0, 0.007654517091643753, 0.01898981364934372),
+        (7.5, 0.5430139583799927, 0.08271659979482811),
+        (40.0, 0.9873506980622744, 0.0007805810686383636),
+    ],
+    quantiles: &[
+        (0.05, 2.1557410893086586),
+        (0.5, 7.0),
+        (0.95, 22.73000233794969),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for LogLogistic {
@@ -77,7 +136,7 @@ impl Continuous for LogLogistic {
 mod tests {
     #[test]
     fn median_is_scale() {
-        // Log-logistic median = scale (issue 2's outside check; Klein & Moeschberger §2.5).
+        // Log-logistic median = scale (Klein & Moeschberger, Survival Analysis, §2.5).
         let d = super::LogLogistic::new(2.5, 7.0).unwrap();
         assert!((crate::dist::Continuous::quantile(&d, 0.5) - 7.0).abs() < 1e-12);
         crate::dist::invariants::check(&d);

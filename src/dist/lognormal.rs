@@ -1,7 +1,11 @@
 //! LogNormal(meanlog, sdlog): ln θ ~ Normal(meanlog, sdlog). Base: standard normal,
 //! θ = exp(meanlog + sdlog·z). Median e^meanlog, mean e^(meanlog + sdlog²/2).
 
-use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
+use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
 use crate::numerics::{norm_cdf, norm_pdf, norm_quantile};
 
 #[derive(Debug, Clone, Copy)]
@@ -19,13 +23,50 @@ impl LogNormal {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::real("meanlog", Start::LogMiddle),
+    Param::positive("sdlog", Start::Offset),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "lognormal",
-    params: &["meanlog", "sdlog"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Normal,
     support: Support::Positive,
+    roles: &[Role::LatencyShape],
     about: "log-normal: the log is normal(meanlog, sdlog)",
     build: |p| Ok(Box::new(LogNormal::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): lognormal(mu, sigma) of the log.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("lognormal", vec![a.v(0), a.v(1)]).positive()
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): LogNormal(mu, sigma).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("LogNormal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.lognorm(s=0.35, scale=exp(0.4))",
+    params: &[0.4, 0.35],
+    points: &[
+        (0.8, 0.03750443121231214, 0.29202875589465543),
+        (1.5, 0.5062290688501575, 0.7597974270421578),
+        (3.0, 0.9770349493939805, 0.05182893066853459),
+    ],
+    quantiles: &[
+        (0.05, 0.8388706387595357),
+        (0.5, 1.4918246976412703),
+        (0.95, 2.6530204129965074),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for LogNormal {

@@ -5,40 +5,37 @@
 //! to a draw. The base variate's kind (a standard normal or a uniform on (0, 1)) is
 //! fixed by the family, not by its parameters, so a fit can draw the base variates
 //! once and map them through the family for every trial value of the
-//! hyperparameters (common random numbers; DESIGN.md §3). Location–scale families
+//! hyperparameters (common random numbers). Location–scale families
 //! use a normal base (θ = μ + σ·z), others the quantile of a uniform.
 //!
 //! Constructors validate their parameters and report the offending value.
-//! To add a family: write `src/dist/<name>.rs` with a struct implementing
-//! [`Continuous`] and a `pub const INFO: FamilyInfo`, then add one line to
-//! [`FAMILIES`].
+//!
+//! A family owns everything about itself: its file `src/dist/<name>.rs` holds the
+//! struct implementing [`Continuous`] and a `pub const INFO: FamilyInfo` that
+//! declares its parameters (domain and start hint, [`params`]), support, base,
+//! the roles templates may offer it for ([`Role`]), its constructor, and its
+//! forms in Stan, PyMC and brms ([`forms`]). Adding a family is that file plus
+//! one line in the `registry!` list below (it declares the module and lists the
+//! family in [`FAMILIES`]); the exporters, the templates' lists of allowed
+//! families and quantile fitting ask the registry.
 
 use std::fmt;
 use std::sync::Arc;
 
-pub mod beta;
-pub mod exponential;
-pub mod gamma;
-pub mod half_cauchy;
-pub mod half_normal;
-pub mod half_student_t;
-pub mod inverse_gamma;
-pub mod laplace;
-pub mod logit_normal;
-pub mod loglogistic;
-pub mod lognormal;
+pub mod forms;
 pub mod mixed;
 pub mod mixture;
-pub mod normal;
-pub mod student_t;
-pub mod uniform;
-pub mod weibull;
+pub mod params;
 
 #[cfg(test)]
 pub(crate) mod invariants;
+#[cfg(test)]
+mod registry_tests;
 
+pub use forms::{Form, Forms, PymcFn, StanFn};
 pub use mixed::{Atom, Mixed};
 pub use mixture::Mixture;
+pub use params::{Domain, Param, Start};
 
 /// A parameter value outside its family's domain.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -132,15 +129,47 @@ pub trait Continuous: Send + Sync + fmt::Debug {
 /// Builds a family from its parameters in registry order.
 pub type Builder = fn(&[f64]) -> Result<Box<dyn Continuous>, DistError>;
 
-/// Registry entry of a family.
+/// A role a template may offer a family for, beyond what the support says
+/// (the support alone decides [`FamilyInfo::real_valued`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    /// The prior of a regression's noise standard deviation (`[prior.sigma]`).
+    NoiseSd,
+    /// The prior of a survival latency's shape (mixture-cure `[prior.shape]`).
+    LatencyShape,
+}
+
+/// Registry entry of a family: everything the rest of the program asks about it.
 pub struct FamilyInfo {
     pub name: &'static str,
-    /// Parameter names in the order `build` takes them.
+    /// Parameter names in the order `build` takes them (`params::names(PARAMS)`).
     pub params: &'static [&'static str],
+    /// Each parameter's name, domain and start hint, in the same order.
+    pub specs: &'static [Param],
     pub base: Base,
     pub support: Support,
+    /// Roles templates may offer the family for (see [`Role`]).
+    pub roles: &'static [Role],
     pub about: &'static str,
     pub build: Builder,
+    /// The family in Stan, PyMC and brms (see [`forms`]).
+    pub forms: Forms,
+    /// Reference values with their source, checked by the registry test.
+    #[cfg(test)]
+    pub reference: invariants::Reference,
+}
+
+impl FamilyInfo {
+    /// Whether the family suits a parameter that may take any real value: its
+    /// support is the real line, or an interval whose ends the prior sets.
+    pub fn real_valued(&self) -> bool {
+        matches!(self.support, Support::Real | Support::Interval)
+    }
+
+    /// Whether templates may offer the family for `role`.
+    pub fn suits(&self, role: Role) -> bool {
+        self.roles.contains(&role)
+    }
 }
 
 impl fmt::Debug for FamilyInfo {
@@ -149,24 +178,35 @@ impl fmt::Debug for FamilyInfo {
     }
 }
 
-/// All families, by name. Adding a family adds one line here.
-pub static FAMILIES: &[&FamilyInfo] = &[
-    &normal::INFO,
-    &lognormal::INFO,
-    &gamma::INFO,
-    &inverse_gamma::INFO,
-    &beta::INFO,
-    &logit_normal::INFO,
-    &student_t::INFO,
-    &half_normal::INFO,
-    &half_student_t::INFO,
-    &half_cauchy::INFO,
-    &exponential::INFO,
-    &uniform::INFO,
-    &weibull::INFO,
-    &laplace::INFO,
-    &loglogistic::INFO,
-];
+/// Declares each family's module (`src/dist/<name>.rs`) and lists its `INFO`
+/// in [`FAMILIES`], in the order given.
+macro_rules! registry {
+    ($($family:ident),* $(,)?) => {
+        $(pub mod $family;)*
+        /// All families, in registry order (the order of [`family_names`]).
+        pub static FAMILIES: &[&FamilyInfo] = &[$(&$family::INFO),*];
+    };
+}
+
+// The registry: adding a family adds one line here.
+registry! {
+    normal,
+    lognormal,
+    gamma,
+    inverse_gamma,
+    beta,
+    logit_normal,
+    student_t,
+    half_normal,
+    half_student_t,
+    half_cauchy,
+    exponential,
+    uniform,
+    weibull,
+    laplace,
+    loglogistic,
+    gumbel,
+}
 
 /// Look a family up by name.
 pub fn family(name: &str) -> Option<&'static FamilyInfo> {
@@ -176,6 +216,16 @@ pub fn family(name: &str) -> Option<&'static FamilyInfo> {
 /// All family names.
 pub fn family_names() -> Vec<&'static str> {
     FAMILIES.iter().map(|f| f.name).collect()
+}
+
+/// The names of the families for which `keep` holds, in registry order (a
+/// template's allowed families, e.g. `names_where(|f| f.real_valued())`).
+pub fn names_where(keep: impl Fn(&FamilyInfo) -> bool) -> Vec<&'static str> {
+    FAMILIES
+        .iter()
+        .filter(|f| keep(f))
+        .map(|f| f.name)
+        .collect()
 }
 
 /// Build a family by name from parameters in registry order.

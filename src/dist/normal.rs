@@ -1,5 +1,9 @@
 //! Normal(mean, sd). Base: standard normal, θ = mean + sd·z.
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
 use crate::numerics::{norm_cdf, norm_pdf, norm_quantile};
 
@@ -18,13 +22,50 @@ impl Normal {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::real("mean", Start::Middle),
+    Param::positive("sd", Start::HalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "normal",
-    params: &["mean", "sd"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Normal,
     support: Support::Real,
+    roles: &[],
     about: "normal with mean and standard deviation sd",
     build: |p| Ok(Box::new(Normal::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): normal(mu, sigma), sigma an sd.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("normal", vec![a.v(0), a.v(1)])
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): Normal(mu, sigma).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Normal", vec![("mu", a.v(0)), ("sigma", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.norm(loc=1, scale=2)",
+    params: &[1.0, 2.0],
+    points: &[
+        (-2.0, 0.06680720126885807, 0.06475879783294587),
+        (1.5, 0.5987063256829237, 0.19333405840142465),
+        (4.0, 0.9331927987311419, 0.06475879783294587),
+    ],
+    quantiles: &[
+        (0.05, -2.2897072539029457),
+        (0.5, 1.0),
+        (0.95, 4.289707253902945),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for Normal {
@@ -71,7 +112,8 @@ mod tests {
 
     #[test]
     fn reference_values() {
-        // scipy 1.17: norm(loc=1, scale=2).cdf(2) = 0.6914624612740131, .ppf(0.1) = -1.5631031310892007
+        // scipy 1.17: norm(loc=1, scale=2).cdf(2) = 0.6914624612740131, .ppf(0.1) =
+        // -1.5631031310892007
         let d = Normal::new(1.0, 2.0).unwrap();
         assert!((d.cdf(2.0) - 0.6914624612740131).abs() < 1e-14);
         assert!((d.quantile(0.1) + 1.5631031310892007).abs() < 1e-13);

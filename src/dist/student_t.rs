@@ -1,6 +1,10 @@
 //! StudentT(df, location, scale). CDF and quantile from statrs 0.19
 //! (`StudentsT::new(location, scale, freedom)`). Base: uniform.
 
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
 use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
 use statrs::distribution::{Continuous as _, ContinuousCDF};
 
@@ -33,13 +37,54 @@ impl StudentT {
     }
 }
 
+const PARAMS: [Param; 3] = [
+    Param::positive("df", Start::Offset),
+    Param::real("location", Start::Middle),
+    Param::positive("scale", Start::HalfSpread),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "student-t",
-    params: &["df", "location", "scale"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Real,
+    roles: &[],
     about: "Student t with df degrees of freedom, location and scale",
     build: |p| Ok(Box::new(StudentT::new(p[0], p[1], p[2])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): student_t(nu, mu, sigma).
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("student_t", vec![a.v(0), a.v(1), a.v(2)])
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): StudentT(nu, mu, sigma).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new(
+        "StudentT",
+        vec![("nu", a.v(0)), ("mu", a.v(1)), ("sigma", a.v(2))],
+    )
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.t(df=3, loc=1, scale=2)",
+    params: &[3.0, 1.0, 2.0],
+    points: &[
+        (-5.0, 0.02883444281121865, 0.01148601865462067),
+        (1.5, 0.5906353887855852, 0.17635176663221003),
+        (8.0, 0.9802594811903587, 0.007112009400764856),
+    ],
+    quantiles: &[
+        (0.05, -3.7067268696036484),
+        (0.5, 1.0),
+        (0.95, 5.706726869603647),
+    ],
+    tol: 1e-12,
 };
 
 impl Continuous for StudentT {

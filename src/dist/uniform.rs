@@ -1,6 +1,10 @@
 //! Uniform(lower, upper). Base: uniform, θ = lower + (upper − lower)·u.
 
-use super::{finite, Base, Continuous, DistError, FamilyInfo, Support};
+use super::forms::{Args, Forms, PymcForm, StanForm};
+#[cfg(test)]
+use super::invariants::Reference;
+use super::params::{names, Param, Start};
+use super::{finite, Base, Continuous, DistError, FamilyInfo, Role, Support};
 
 #[derive(Debug, Clone, Copy)]
 pub struct Uniform {
@@ -24,13 +28,43 @@ impl Uniform {
     }
 }
 
+const PARAMS: [Param; 2] = [
+    Param::real("lower", Start::BelowLowest),
+    Param::real("upper", Start::AboveHighest),
+];
+
 pub const INFO: FamilyInfo = FamilyInfo {
     name: "uniform",
-    params: &["lower", "upper"],
+    params: &names(PARAMS),
+    specs: &PARAMS,
     base: Base::Uniform,
     support: Support::Interval,
+    roles: &[Role::LatencyShape],
     about: "uniform between lower and upper",
     build: |p| Ok(Box::new(Uniform::new(p[0], p[1])?)),
+    forms: Forms::written(stan, pymc),
+    #[cfg(test)]
+    reference: REFERENCE,
+};
+
+/// Stan (Stan Functions Reference; brms uses the same call): uniform(alpha, beta) on a
+/// <lower=alpha, upper=beta> parameter.
+fn stan(a: &Args) -> StanForm {
+    StanForm::new("uniform", vec![a.v(0), a.v(1)]).bounded(Some(a.v(0)), Some(a.v(1)))
+}
+
+/// PyMC 5 (`pymc.distributions.continuous`): Uniform(lower, upper).
+fn pymc(a: &Args) -> PymcForm {
+    PymcForm::new("Uniform", vec![("lower", a.v(0)), ("upper", a.v(1))])
+}
+
+#[cfg(test)]
+const REFERENCE: Reference = Reference {
+    source: "scipy 1.17.1: stats.uniform(loc=-1, scale=4)",
+    params: &[-1.0, 3.0],
+    points: &[(-0.5, 0.125, 0.25), (0.0, 0.25, 0.25), (2.9, 0.975, 0.25)],
+    quantiles: &[(0.05, -0.8), (0.5, 1.0), (0.95, 2.8)],
+    tol: 1e-12,
 };
 
 impl Continuous for Uniform {

@@ -1,8 +1,10 @@
 //! brms export: a `priors <- c(set_prior(...), ...)` specification.
 //!
-//! brms prior strings are Stan distribution calls, so the family mapping is
-//! Stan's ([`super::stan::form`]). Each of our parameters becomes a non-linear
-//! parameter (`nlpar`, class "b") of an intercept-only formula
+//! brms prior strings are Stan distribution calls: each family declares its brms
+//! form (`FamilyInfo::forms.brms`, a Stan-syntax call, rendered by
+//! [`super::stan::from_family`]; a family without one is a clear error). Each
+//! of our parameters becomes a non-linear parameter (`nlpar`, class "b") of an
+//! intercept-only formula
 //! (`bf(y ~ f(cureLogit, …), cureLogit ~ 1, nl = TRUE)`); bounds go to `lb` /
 //! `ub`, which brms allows for class "b" (brms documentation of `set_prior`).
 //! brms rejects non-linear parameter names containing dots or underscores
@@ -15,7 +17,7 @@
 //! and the noise sd are brms's own classes `Intercept` and `sigma`, and the
 //! coefficients class `b` (code supplied by `templates::regression::code`).
 
-use super::stan::form;
+use super::stan::from_family;
 use super::{check_ident, check_unique, header_lines, num, Header, Item, Lang};
 use crate::error::Result;
 
@@ -50,7 +52,7 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
         match it {
             Item::Scalar(s) => {
                 check_ident(&s.parameter, Lang::Brms, RESERVED)?;
-                let f = form(s)?;
+                let f = from_family(s, "brms", &s.family.forms.brms)?;
                 let nl = nlpar_name(&f.sampled);
                 names.push(nl.clone());
                 let mut comments = Vec::new();
@@ -80,7 +82,7 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                     _ => None,
                 };
                 if let Some(class) = native {
-                    if s.family.name == "uniform" {
+                    if class == "Intercept" && (f.lower.is_some() || f.upper.is_some()) {
                         comments.push(
                             "brms gives class Intercept no bounds: start the sampler inside them"
                                 .into(),

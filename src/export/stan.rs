@@ -2,29 +2,19 @@
 //! constraints), a `transformed parameters` block where a family is written on
 //! another scale, and a `model` block with the prior statements.
 //!
-//! Our family → Stan (Stan Functions Reference, "Continuous distributions"):
-//! normal(mean, sd) → normal(mu, sigma); lognormal(meanlog, sdlog) →
-//! lognormal(mu, sigma); gamma(shape, rate) → gamma(alpha, beta) (beta is a
-//! rate); inverse-gamma(shape, scale) → inv_gamma(alpha, beta) (beta is a
-//! scale); beta → beta; student-t(df, location, scale) → student_t(nu, mu,
-//! sigma); half-normal(scale), half-student-t(df, scale), half-cauchy(scale) →
-//! normal(0, scale), student_t(df, 0, scale), cauchy(0, scale) on a
-//! `<lower=0>` parameter (the bound truncates; the constant factor 2 does not
-//! matter for sampling); exponential(rate) → exponential(beta = rate);
-//! uniform(lower, upper) → uniform on a `<lower, upper>` parameter;
-//! weibull(shape, scale) → weibull(alpha = shape, sigma = scale);
-//! laplace(location, scale) → double_exponential(mu, sigma = scale).
-//! Stan has no logit-normal: `p_logit ~ normal(mu, sigma)`, `p = inv_logit(p_logit)`.
-//! Log-logistic: log θ ~ logistic(log scale, 1/shape), because
-//! F(t) = 1/(1 + (t/scale)^−shape) = logistic(shape·(log t − log scale));
-//! so `θ_log ~ logistic(…)`, `θ = exp(θ_log)`. This works in every Stan version
-//! (a native `loglogistic` exists only in recent releases).
-//! brms writes its prior strings in the same Stan syntax and reuses [`form`].
+//! The family decides how it is written (`FamilyInfo::forms.stan`, a
+//! [`crate::dist::forms::StanForm`]: Stan's distribution call in Stan's
+//! parameterisation, the declared bounds, and when Stan lacks the family a
+//! helper variable on another scale, e.g. `p_logit ~ normal(mu, sigma)`,
+//! `p = inv_logit(p_logit)`); this file only renders it. A family that declares
+//! no Stan form is a clear error. brms writes its prior strings in the same Stan
+//! syntax and reuses [`from_family`] with the family's brms form.
 
 use super::{
     check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar,
 };
-use crate::error::Result;
+use crate::dist::forms::{Args, Form as Declared, StanFn};
+use crate::error::{Error, Result};
 
 /// How one scalar prior is written in Stan syntax.
 #[derive(Debug, Clone)]
@@ -84,141 +74,47 @@ pub const RESERVED: &[&str] = &[
     "tuple",
 ];
 
+/// The Stan form of a scalar prior, as its family declares it.
 pub fn form(s: &Scalar) -> Result<Form> {
-    let p = |n: &str| num(s.get(n));
-    let name = s.parameter.clone();
-    let plain = |lower: Option<f64>, upper: Option<f64>, dist: String, note: Option<String>| Form {
-        sampled: name.clone(),
-        lower,
-        upper,
-        dist,
-        derived: None,
-        note,
+    from_family(s, "Stan", &s.family.forms.stan)
+}
+
+/// Render a family's declared Stan-syntax form for `lang` (Stan, or brms, whose
+/// prior strings are Stan calls); a family without one is a clear error.
+pub fn from_family(s: &Scalar, lang: &str, declared: &Declared<StanFn>) -> Result<Form> {
+    let write = match declared {
+        Declared::Written(write) => write,
+        Declared::Absent(why) => return Err(no_form(s, lang, why)),
     };
-    let pos = Some(0.0);
-    Ok(match s.family.name {
-        "normal" => plain(
-            None,
-            None,
-            format!("normal({}, {})", p("mean"), p("sd")),
-            None,
+    let f = write(&Args {
+        name: &s.parameter,
+        values: &s.params,
+        num,
+    });
+    let dist = f.call(num);
+    let (sampled, derived) = match f.helper {
+        None => (s.parameter.clone(), None),
+        Some(h) => (
+            format!("{}_{}", s.parameter, h.suffix),
+            Some((h.inverse, h.lower, h.upper)),
         ),
-        "lognormal" => plain(
-            pos,
-            None,
-            format!("lognormal({}, {})", p("meanlog"), p("sdlog")),
-            None,
-        ),
-        "gamma" => plain(
-            pos,
-            None,
-            format!("gamma({}, {})", p("shape"), p("rate")),
-            Some("gamma(shape, rate)".into()),
-        ),
-        "inverse-gamma" => plain(
-            pos,
-            None,
-            format!("inv_gamma({}, {})", p("shape"), p("scale")),
-            Some("inverse-gamma(shape, scale)".into()),
-        ),
-        "beta" => plain(
-            pos,
-            Some(1.0),
-            format!("beta({}, {})", p("alpha"), p("beta")),
-            None,
-        ),
-        "logit-normal" => Form {
-            sampled: format!("{name}_logit"),
-            lower: None,
-            upper: None,
-            dist: format!("normal({}, {})", p("mu"), p("sigma")),
-            derived: Some(("inv_logit", Some(0.0), Some(1.0))),
-            note: Some(format!(
-                "{name} ~ logit-normal({}, {}): Stan has none, so its logit is normal",
-                p("mu"),
-                p("sigma")
-            )),
-        },
-        "student-t" => plain(
-            None,
-            None,
-            format!("student_t({}, {}, {})", p("df"), p("location"), p("scale")),
-            None,
-        ),
-        "half-normal" => plain(
-            pos,
-            None,
-            format!("normal(0, {})", p("scale")),
-            Some(format!(
-                "half-normal({}): the <lower=0> bound truncates",
-                p("scale")
-            )),
-        ),
-        "half-student-t" => plain(
-            pos,
-            None,
-            format!("student_t({}, 0, {})", p("df"), p("scale")),
-            Some(format!(
-                "half-student-t({}, {}): the <lower=0> bound truncates",
-                p("df"),
-                p("scale")
-            )),
-        ),
-        "half-cauchy" => plain(
-            pos,
-            None,
-            format!("cauchy(0, {})", p("scale")),
-            Some(format!(
-                "half-cauchy({}): the <lower=0> bound truncates",
-                p("scale")
-            )),
-        ),
-        "exponential" => plain(
-            pos,
-            None,
-            format!("exponential({})", p("rate")),
-            Some("exponential(rate)".into()),
-        ),
-        "uniform" => plain(
-            Some(s.get("lower")),
-            Some(s.get("upper")),
-            format!("uniform({}, {})", p("lower"), p("upper")),
-            None,
-        ),
-        "weibull" => plain(
-            pos,
-            None,
-            format!("weibull({}, {})", p("shape"), p("scale")),
-            Some("weibull(shape, scale)".into()),
-        ),
-        "laplace" => plain(
-            None,
-            None,
-            format!("double_exponential({}, {})", p("location"), p("scale")),
-            Some("laplace(location, scale)".into()),
-        ),
-        "loglogistic" => Form {
-            sampled: format!("{name}_log"),
-            lower: None,
-            upper: None,
-            dist: format!(
-                "logistic({}, {})",
-                num(s.get("scale").ln()),
-                num(1.0 / s.get("shape"))
-            ),
-            derived: Some(("exp", pos, None)),
-            note: Some(format!(
-                "{name} ~ loglogistic(shape {}, scale {}): its log is logistic(log scale, 1/shape)",
-                p("shape"),
-                p("scale")
-            )),
-        },
-        other => {
-            return Err(unsupported(format!(
-                "export to Stan does not know family \"{other}\" (parameter `{name}`)"
-            )))
-        }
+    };
+    Ok(Form {
+        sampled,
+        lower: f.lower,
+        upper: f.upper,
+        dist,
+        derived,
+        note: f.note,
     })
+}
+
+/// The error for a family that declares no form in `lang`.
+pub fn no_form(s: &Scalar, lang: &str, why: &str) -> Error {
+    unsupported(format!(
+        "export to {lang} does not know family \"{}\" (parameter `{}`): {why}",
+        s.family.name, s.parameter
+    ))
 }
 
 /// `<lower=0, upper=1>` or "".

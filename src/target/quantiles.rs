@@ -8,7 +8,8 @@
 //!   has normal tails on the g-scale and never leaves the support; with two
 //!   quantiles it is exactly a normal, log-normal or logit-normal.
 //! * **A fitted family**: the family's parameters minimise Σ (F(x_i) − p_i)² (on the
-//!   log scale for positive parameters), by Nelder–Mead from a moment-style start.
+//!   log scale for positive parameters), by Nelder–Mead from starts the family
+//!   declares for each parameter (`dist::params`: domain and start hint).
 
 use crate::dist::{Continuous, Support};
 use crate::numerics::{
@@ -242,18 +243,13 @@ pub fn fit_family(
     pts: &[(f64, f64)],
 ) -> Result<(Box<dyn Continuous>, f64), String> {
     use crate::fit::simplex::minimise;
-    // Start: treat the elicited median and spread as a normal on the family's
-    // natural scale, then map to parameters by trying each parameter at 1.
-    let positive_param = |name: &str| {
-        !matches!(
-            name,
-            "mean" | "meanlog" | "mu" | "location" | "lower" | "upper"
-        )
-    };
+    // Each parameter moves on its domain's working scale (log for positive ones)
+    // and starts where the family's hint puts it, from the elicited middle and
+    // spread; the offsets give a handful of deterministic starts.
     let to_params = |v: &[f64]| -> Vec<f64> {
         v.iter()
-            .zip(info.params)
-            .map(|(x, n)| if positive_param(n) { x.exp() } else { *x })
+            .zip(info.specs)
+            .map(|(x, spec)| spec.domain.from_working(*x))
             .collect()
     };
     let loss = |v: &[f64]| -> f64 {
@@ -262,25 +258,14 @@ pub fn fit_family(
             Err(_) => f64::INFINITY,
         }
     };
-    let mid = pts[pts.len() / 2].1;
-    let spread = (pts[pts.len() - 1].1 - pts[0].1).abs().max(1e-6);
+    let elicited = crate::dist::params::Elicited::new(pts);
     let mut best: Option<(Vec<f64>, f64)> = None;
-    // A handful of deterministic starts on the working scale.
     let starts: Vec<Vec<f64>> = [0.0, 1.0, -1.0, 2.0, -2.0]
         .iter()
         .map(|s| {
-            info.params
+            info.specs
                 .iter()
-                .map(|n| match *n {
-                    "mean" | "location" => mid,
-                    "meanlog" => mid.max(1e-12).ln(),
-                    "mu" => logit(mid.clamp(1e-9, 1.0 - 1e-9)),
-                    "lower" => pts[0].1 - spread,
-                    "upper" => pts[pts.len() - 1].1 + spread,
-                    "sd" | "scale" => (spread / 2.0).ln() + s,
-                    "rate" => (2.0 / spread).ln() + s,
-                    _ => *s,
-                })
+                .map(|spec| spec.start.working(&elicited, *s))
                 .collect()
         })
         .collect();
@@ -322,7 +307,8 @@ mod tests {
     #[test]
     fn two_quantiles_give_lognormal() {
         // With two quantiles on the log scale the interpolant is exactly log-normal:
-        // median 10, 0.9-quantile 10·e^(1.2815516·0.5) (scipy 1.17 norm.ppf(0.9) = 1.2815515655446004).
+        // median 10, 0.9-quantile 10·e^(1.2815516·0.5) (scipy 1.17 norm.ppf(0.9) =
+        // 1.2815515655446004).
         let q90 = 10.0 * (1.2815515655446004f64 * 0.5).exp();
         let pts = validate(vec![(0.5, 10.0), (0.9, q90)], Scale::Log).unwrap();
         let s = QuantileSpline::new(&pts, Scale::Log);
@@ -342,7 +328,8 @@ mod tests {
 
     #[test]
     fn fitted_beta_recovers_parameters() {
-        // Quantiles of Beta(2, 3) from scipy 1.17 (issue 2): the fitted beta reproduces them.
+        // Quantiles of Beta(2, 3) from scipy 1.17.1 (`stats.beta(2, 3).ppf`, rounded
+        // to 7 decimals): the fitted beta reproduces them.
         let info = crate::dist::family("beta").unwrap();
         let pts = [(0.05, 0.0976115), (0.5, 0.3857276), (0.95, 0.7513954)];
         let (d, worst) = fit_family(info, &pts).unwrap();

@@ -282,7 +282,7 @@ fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
         }
     };
     let mut priors = PriorSet::default();
-    let real = ["normal", "student-t", "laplace", "uniform"];
+    let real = crate::dist::names_where(|f| f.real_valued());
     let cure = if with_cure {
         Some(priors.add(
             ctx,
@@ -324,15 +324,7 @@ fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
         Some(priors.add(
             ctx,
             "shape",
-            &[
-                "lognormal",
-                "gamma",
-                "half-normal",
-                "weibull",
-                "uniform",
-                "exponential",
-                "inverse-gamma",
-            ],
+            &crate::dist::names_where(|f| f.suits(crate::dist::Role::LatencyShape)),
             "family = \"lognormal\"\n  meanlog = { fit = [-1.0, 1.0] }\n  sdlog = 0.25",
         )?)
     };

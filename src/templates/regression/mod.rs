@@ -186,19 +186,14 @@ pub fn build(ctx: &Ctx, info: &'static TemplateInfo, link: Link) -> Result<Box<d
     let intercept = priors.add(
         ctx,
         "intercept",
-        &["normal", "student-t", "laplace", "uniform"],
+        &crate::dist::names_where(|f| f.real_valued()),
         "family = \"normal\"\n  mean = 0.0\n  sd = { fit = [0.1, 5.0] }",
     )?;
     let sigma = if link == Link::Identity {
         let s = priors.add(
             ctx,
             "sigma",
-            &[
-                "half-normal",
-                "half-student-t",
-                "exponential",
-                "inverse-gamma",
-            ],
+            &crate::dist::names_where(|f| f.suits(crate::dist::Role::NoiseSd)),
             "family = \"half-normal\"\n  scale = 1.0",
         )?;
         Some((s, priors.priors[s].family.name == "inverse-gamma"))
