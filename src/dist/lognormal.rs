@@ -126,7 +126,7 @@ mod tests {
 
     #[test]
     fn reference_values() {
-        // Median e^μ (a standard identity; scipy values are in tests/reference/).
+        // Median e^μ (a standard identity).
         let d = LogNormal::new(3.0, 0.4).unwrap();
         assert!((d.quantile(0.5) - 3f64.exp()).abs() < 1e-12);
         crate::dist::invariants::check(&d);

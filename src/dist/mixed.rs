@@ -3,7 +3,7 @@
 //! reached"). CDF F(x) = Σ_{a_k ≤ x} m_k + (1 − Σ m_k)·F_c(x); the left limit
 //! F(x−) counts only atoms strictly below x. The quantile is the generalised
 //! inverse inf{x : F(x) ≥ p}. Atoms are handled exactly, never by jittering
-//! (DESIGN.md §2).
+//! (see `discrepancy` for how the discrepancy treats them).
 
 use super::Dist;
 

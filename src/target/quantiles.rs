@@ -242,7 +242,7 @@ pub fn fit_family(
     info: &'static crate::dist::FamilyInfo,
     pts: &[(f64, f64)],
 ) -> Result<(Box<dyn Continuous>, f64), String> {
-    use crate::fit::simplex::minimise;
+    use crate::numerics::simplex::minimise;
     // Each parameter moves on its domain's working scale (log for positive ones)
     // and starts where the family's hint puts it, from the elicited middle and
     // spread; the offsets give a handful of deterministic starts.

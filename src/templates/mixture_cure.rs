@@ -720,7 +720,7 @@ mod tests {
     #[test]
     fn exponential_with_gamma_rate_is_lomax() {
         // Rate ~ Gamma(a, b) makes P(T > t) = (b/(b + t))^a (Lomax; e.g. Klein &
-        // Moeschberger, Survival Analysis, §2.5): a = 2, b = 3, t = 1 → 0.5625 (issue 2).
+        // Moeschberger, Survival Analysis, §2.5): a = 2, b = 3, t = 1 → 0.5625.
         use crate::dist::Continuous;
         let g = crate::dist::gamma::Gamma::new(2.0, 3.0).unwrap();
         let u = crate::rng::uniforms(8, 0, 200_000);
