@@ -51,7 +51,10 @@ pub fn check_fit(
         return Err(bad_option("--horizon", format!("{horizon}: must be > 0")));
     }
     if !(level > 0.0 && level < 1.0) {
-        return Err(bad_option("--level", format!("{level}: must lie in (0, 1)")));
+        return Err(bad_option(
+            "--level",
+            format!("{level}: must lie in (0, 1)"),
+        ));
     }
     let fit = crate::fit::record::read(fit_path)?;
     let spec_text = std::fs::read_to_string(spec_path).map_err(|e| Error::io(spec_path, e))?;
@@ -85,10 +88,9 @@ pub fn check_fit(
             );
         }
     }
-    let spec = spec::from_table(table, &spec_text, Some(spec_path), ov)
-        .map_err(|e| {
-            e.with_hint("the conflict check needs a template with the quantity survival_prob")
-        })?;
+    let spec = spec::from_table(table, &spec_text, Some(spec_path), ov).map_err(|e| {
+        e.with_hint("the conflict check needs a template with the quantity survival_prob")
+    })?;
     let mut h = Vec::new();
     for x in spec.hypers() {
         let v = fit.hyperparameters.get(&x.name).copied().ok_or_else(|| {

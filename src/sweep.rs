@@ -61,22 +61,19 @@ pub fn widened_spec(spec: &Spec, w: f64, which: &[usize]) -> Result<Spec> {
         return Ok(s);
     }
     for &i in which {
-        let b = s
-            .beliefs
-            .get_mut(i)
-            .ok_or_else(|| {
-                Error::input(
-                    crate::error::Location {
-                        key: Some("--beliefs".into()),
-                        ..Default::default()
-                    },
-                    format!(
-                        "belief {} does not exist (the file has {})",
-                        i + 1,
-                        spec.beliefs.len()
-                    ),
-                )
-            })?;
+        let b = s.beliefs.get_mut(i).ok_or_else(|| {
+            Error::input(
+                crate::error::Location {
+                    key: Some("--beliefs".into()),
+                    ..Default::default()
+                },
+                format!(
+                    "belief {} does not exist (the file has {})",
+                    i + 1,
+                    spec.beliefs.len()
+                ),
+            )
+        })?;
         let scale = Scale::for_support(b.request.support);
         let d = widen(&b.target.dist, scale, w)
             .map_err(|m| Error::Numeric(format!("widening belief {}: {m}", b.label)))?;

@@ -224,7 +224,10 @@ fn batch_equals_fits_survives_kill_and_shards_merge() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let text = String::from_utf8_lossy(&o.stdout);
     // The rerun skipped exactly the rows committed before the crash…
-    assert!(text.contains(&format!("{ok_before} already done")), "{text}");
+    assert!(
+        text.contains(&format!("{ok_before} already done")),
+        "{text}"
+    );
     // …and its table equals an uninterrupted run's.
     assert_eq!(read(&killed.join("results.csv")), results);
 

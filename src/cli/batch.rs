@@ -2,11 +2,11 @@
 //! file and a table of changes (see [`priorsmith::batch`] and docs/sweep-and-batch.md).
 
 use super::progress_bar;
+use anyhow::{anyhow, Result};
 use priorsmith::batch::{self, ModelFiles, RunOptions};
 use priorsmith::error::Error;
 use priorsmith::output;
 use priorsmith::spec::Overrides;
-use anyhow::{anyhow, Result};
 use std::path::PathBuf;
 
 #[derive(clap::Args, Debug, Clone)]

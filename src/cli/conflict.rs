@@ -2,8 +2,8 @@
 //! surprising under a fitted prior? The check is `priorsmith::conflict::check_fit`;
 //! this file reads the options and prints.
 
-use priorsmith::conflict;
 use anyhow::Result;
+use priorsmith::conflict;
 use std::path::PathBuf;
 
 #[derive(clap::Args, Debug)]

@@ -1,9 +1,9 @@
 //! `priorsmith export DIR --to LANG [--out FILE]`: the fitted prior of DIR/fit.json
 //! as ready-to-paste code (see `priorsmith::export`).
 
+use anyhow::Result;
 use priorsmith::export::{self, Lang};
 use priorsmith::output;
-use anyhow::Result;
 use std::path::Path;
 
 pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool) -> Result<()> {

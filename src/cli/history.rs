@@ -1,8 +1,8 @@
 //! `priorsmith history`: historical survival data (or events/total) → a
 //! discounted `[[belief]]` block to paste into a belief file (see `history::belief`).
 
-use priorsmith::history::{belief, km::KaplanMeier, read_csv};
 use anyhow::{bail, Result};
+use priorsmith::history::{belief, km::KaplanMeier, read_csv};
 use std::path::PathBuf;
 
 #[derive(clap::Args, Debug)]

@@ -5,13 +5,13 @@
 //! 3 invalid input (belief file, table, design); 4 a file could not be read or
 //! written; 5 a resource limit would be exceeded.
 
+use anyhow::{Context, Result};
+use clap::{Parser, Subcommand};
+use indicatif::{ProgressBar, ProgressStyle};
 use priorsmith::error::Error;
 use priorsmith::fit::verdict::fmt_num;
 use priorsmith::spec::{self, Overrides, Spec};
 use priorsmith::{demo, fit, output, simulate, templates};
-use anyhow::{Context, Result};
-use clap::{Parser, Subcommand};
-use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 
 mod batch;
@@ -240,9 +240,9 @@ pub fn run(cli: Cli) -> Result<()> {
     };
     let mut command = cli.command;
     match &mut command {
-        Command::Fit { spec, .. } | Command::Simulate { spec, .. } | Command::Sweep { spec, .. } => {
-            spec.session = session.clone()
-        }
+        Command::Fit { spec, .. }
+        | Command::Simulate { spec, .. }
+        | Command::Sweep { spec, .. } => spec.session = session.clone(),
         Command::Batch(a) => a.session = session.clone(),
         Command::Merge(a) => a.max_memory = mem,
         _ => {}
@@ -469,7 +469,10 @@ fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Resu
             Default::default(),
             format!("unknown template \"{template}\""),
         )
-        .with_hint(priorsmith::error::choice_hint(template, &templates::names()))
+        .with_hint(priorsmith::error::choice_hint(
+            template,
+            &templates::names(),
+        ))
     })?;
     let default = PathBuf::from(format!("{}.toml", t.name));
     let path = out.unwrap_or(&default);

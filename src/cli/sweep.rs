@@ -3,9 +3,9 @@
 //! (see [`priorsmith::sweep`] and docs/sweep-and-batch.md).
 
 use super::{load, progress_bar, SpecArgs};
+use anyhow::{anyhow, Result};
 use priorsmith::fit::verdict::fmt_num;
 use priorsmith::{output, sweep};
-use anyhow::{anyhow, Result};
 use std::path::Path;
 
 /// Parse "0.5,0.75,1,1.5,2".

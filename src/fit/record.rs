@@ -137,7 +137,10 @@ mod tests {
         let e = parse(&v.to_string(), Path::new("x/fit.json"))
             .unwrap_err()
             .to_string();
-        assert!(e.contains("x/fit.json") && e.contains("beliefs[0].fresh"), "{e}");
+        assert!(
+            e.contains("x/fit.json") && e.contains("beliefs[0].fresh"),
+            "{e}"
+        );
         v["schema_version"] = serde_json::json!(1);
         let e = parse(&v.to_string(), Path::new("fit.json"))
             .unwrap_err()
