@@ -1,0 +1,461 @@
+//! The report's plots: believed against implied CDF and density per belief, the
+//! fitted hyperparameters within their bounds, and numeric diagnostics.
+
+use super::svg::{self, esc, Plot, BLUE, GREY, ORANGE, SKY, VERMILLION};
+use super::view::*;
+use crate::fit::FitResult;
+use crate::numerics::format::html as fnum;
+use serde_json::Value;
+use std::fmt::Write;
+
+/// The x range shown for a belief: 1–99 % of the finite parts of both
+/// distributions, plus the finite atoms, padded by 4 %.
+pub(super) fn x_range(b: &BeliefView) -> (f64, f64) {
+    let fin: Vec<f64> = b.draws.iter().copied().filter(|v| v.is_finite()).collect();
+    let mut lo = f64::INFINITY;
+    let mut hi = f64::NEG_INFINITY;
+    if !fin.is_empty() {
+        lo = lo.min(emp_q(&fin, 0.01));
+        hi = hi.max(emp_q(&fin, 0.99));
+    }
+    if let Some(c) = &b.curve {
+        let m = 1.0 - c.inf_mass();
+        if let (Some(a), Some(z)) = (c.quantile(0.01 * m), c.quantile(0.99 * m)) {
+            lo = lo.min(a);
+            hi = hi.max(z);
+        }
+        for (at, _) in &c.atoms {
+            if at.is_finite() {
+                lo = lo.min(*at);
+                hi = hi.max(*at);
+            }
+        }
+    } else {
+        for q in b.believed_q.iter().filter(|q| q.is_finite()) {
+            lo = lo.min(*q);
+            hi = hi.max(*q);
+        }
+    }
+    if !lo.is_finite() || !hi.is_finite() {
+        return (0.0, 1.0);
+    }
+    if hi <= lo {
+        let d = if lo == 0.0 { 1.0 } else { 0.1 * lo.abs() };
+        return (lo - d, hi + d);
+    }
+    let pad = 0.04 * (hi - lo);
+    let (mut a, z) = (lo - pad, hi + pad);
+    // Start at zero for non-negative quantities close to it.
+    if lo >= 0.0 && (a < 0.0 || lo < 0.3 * (hi - lo)) {
+        a = 0.0;
+    }
+    (a, z)
+}
+
+pub(super) fn axis_label(b: &BeliefView) -> String {
+    match &b.unit {
+        Some(u) => format!("{} ({u})", b.label),
+        None => b.label.clone(),
+    }
+}
+
+pub(super) const INF_COL: f64 = 104.0;
+
+/// Believed and implied CDFs overlaid.
+pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
+    let (lo, hi) = x_range(b);
+    let bel_inf = b.curve.as_ref().map_or(0.0, Curve::inf_mass);
+    let has_inf = bel_inf > 0.0 || b.implied_inf > 0.0;
+    let mut p = Plot::new(
+        id,
+        &format!("{}: believed and implied cumulative distribution", b.label),
+        (lo, hi, false),
+        (0.0, 1.0),
+        if has_inf { INF_COL } else { 0.0 },
+    );
+    p.axes(&axis_label(b), "probability of a value ≤ x");
+    // Implied: empirical CDF on a fine grid, with exact jumps at atoms.
+    let s = &b.draws;
+    let mut xs: Vec<f64> = (0..=400)
+        .map(|k| lo + (hi - lo) * k as f64 / 400.0)
+        .collect();
+    let atom_locs: Vec<f64> = b
+        .atoms
+        .iter()
+        .map(|a| a.at)
+        .filter(|a| a.is_finite())
+        .collect();
+    xs.extend(&atom_locs);
+    xs.sort_by(f64::total_cmp);
+    let mut imp = Vec::new();
+    for x in &xs {
+        if atom_locs.contains(x) {
+            imp.push((*x, ecdf_left(s, *x)));
+        }
+        imp.push((*x, ecdf(s, *x)));
+    }
+    // Believed.
+    let mut bel = Vec::new();
+    if let Some(c) = &b.curve {
+        let atoms: Vec<(f64, f64)> = c
+            .atoms
+            .iter()
+            .copied()
+            .filter(|a| a.0.is_finite())
+            .collect();
+        // Left of the first tabulated point the CDF stays at that point's left limit.
+        if let (Some(x0), Some(f0)) = (c.x.first(), c.cdf.first()) {
+            let left = atoms.iter().find(|a| a.0 == *x0).map_or(*f0, |a| f0 - a.1);
+            bel.push((lo.min(*x0), left));
+        }
+        for (x, f) in c.x.iter().zip(&c.cdf) {
+            if let Some((_, m)) = atoms.iter().find(|a| a.0 == *x) {
+                bel.push((*x, f - m));
+            }
+            bel.push((*x, *f));
+        }
+        if let Some(l) = c.cdf.last() {
+            bel.push((hi.max(c.x.last().copied().unwrap_or(hi)), *l));
+        }
+        bel.sort_by(|a, b| a.0.total_cmp(&b.0));
+    }
+    p.line(
+        &imp,
+        VERMILLION,
+        2.2,
+        Some("6 3"),
+        "implied by the fitted prior (empirical CDF of the draws)",
+    );
+    if b.curve.is_some() {
+        p.line(&bel, BLUE, 2.2, None, "believed");
+    } else {
+        for (q, pr) in b.believed_q.iter().zip(&b.probs) {
+            p.point(
+                *q,
+                *pr,
+                BLUE,
+                4.0,
+                &format!("believed {}% quantile", pr * 100.0),
+            );
+        }
+    }
+    if has_inf {
+        let xe = p.x.p1;
+        let xc = xe + INF_COL - 40.0;
+        let (y0, y1) = (p.y.p0, p.y.p1);
+        // Broken-axis marks and the ∞ column.
+        p.raw_line(xe + 8.0, y0 + 4.0, xe + 14.0, y0 - 4.0, GREY, 1.2, None);
+        p.raw_line(xe + 13.0, y0 + 4.0, xe + 19.0, y0 - 4.0, GREY, 1.2, None);
+        p.raw_line(xe + 22.0, y0, xe + INF_COL - 4.0, y0, GREY, 1.0, None);
+        p.raw_line(xc, y1, xc, y0, "#bbb", 1.0, Some("2 3"));
+        p.text(xc, y0 + 18.0, "middle", "", "∞");
+        p.text(xc, y0 + 31.0, "middle", "note", "never reached");
+        let mut series = Vec::new();
+        if let Some(c) = &b.curve {
+            series.push((
+                c.cdf.last().copied().unwrap_or(1.0 - bel_inf),
+                1.0 - bel_inf,
+                BLUE,
+                None,
+            ));
+        }
+        series.push((ecdf(s, hi), 1.0 - b.implied_inf, VERMILLION, Some("6 3")));
+        for (k, (edge, below, col, dash)) in series.into_iter().enumerate() {
+            // Side by side, so both jumps stay visible when their masses agree.
+            let xj = xc + if k == 0 { -4.0 } else { 4.0 };
+            let (ye, yb, yt) = (p.y.px(edge), p.y.px(below), p.y.px(1.0));
+            p.raw_line(xe, ye, xj, yb, col, 1.6, Some("1 3"));
+            p.raw_line(xj, yb, xj, yt, col, 3.0, dash);
+        }
+        let ym = 0.5 * (y0 + y1);
+        p.text(xc, ym - 8.0, "middle", "note", "mass at ∞");
+        p.text(
+            xc,
+            ym + 8.0,
+            "middle",
+            "note",
+            &format!("believed {}", pct(bel_inf)),
+        );
+        p.text(
+            xc,
+            ym + 22.0,
+            "middle",
+            "note",
+            &format!("implied {}", pct(b.implied_inf)),
+        );
+    }
+    p.legend(&[
+        (BLUE, None, "believed"),
+        (VERMILLION, Some("6 3"), "implied by the fitted prior"),
+    ]);
+    p.finish(false)
+}
+
+/// Believed density over a histogram of the implied draws.
+pub fn density_plot(id: &str, b: &BeliefView) -> String {
+    let (lo, hi) = x_range(b);
+    let n = b.draws.len() as f64;
+    let atom_locs: Vec<f64> = b
+        .atoms
+        .iter()
+        .map(|a| a.at)
+        .filter(|a| a.is_finite())
+        .collect();
+    let fin: Vec<f64> = b
+        .draws
+        .iter()
+        .copied()
+        .filter(|v| v.is_finite() && !atom_locs.contains(v))
+        .collect();
+    // Freedman–Diaconis bin width (Freedman & Diaconis 1981), 15–60 bins over the range.
+    let bins = if fin.len() > 3 {
+        let iqr = emp_q(&fin, 0.75) - emp_q(&fin, 0.25);
+        let w = 2.0 * iqr / (fin.len() as f64).cbrt();
+        if w > 0.0 {
+            ((hi - lo) / w).round().clamp(15.0, 60.0) as usize
+        } else {
+            30
+        }
+    } else {
+        30
+    };
+    let bw = (hi - lo) / bins as f64;
+    let mut counts = vec![0usize; bins];
+    for v in &fin {
+        if *v >= lo && *v <= hi {
+            counts[(((v - lo) / bw) as usize).min(bins - 1)] += 1;
+        }
+    }
+    let bars: Vec<(f64, f64, f64)> = counts
+        .iter()
+        .enumerate()
+        .map(|(k, c)| {
+            (
+                lo + k as f64 * bw,
+                lo + (k + 1) as f64 * bw,
+                *c as f64 / (n * bw),
+            )
+        })
+        .collect();
+    let mut ymax = bars.iter().map(|b| b.2).fold(0.0, f64::max);
+    let bel: Vec<(f64, f64)> = b
+        .curve
+        .as_ref()
+        .map(|c| {
+            c.x.iter()
+                .zip(&c.pdf)
+                .filter(|(x, _)| **x >= lo && **x <= hi && !atom_locs.contains(x))
+                .map(|(x, d)| (*x, *d))
+                .collect()
+        })
+        .unwrap_or_default();
+    ymax = bel.iter().map(|p| p.1).fold(ymax, f64::max);
+    if ymax.is_nan() || ymax <= 0.0 {
+        ymax = 1.0;
+    }
+    let mut p = Plot::new(
+        id,
+        &format!(
+            "{}: believed density and histogram of the implied draws",
+            b.label
+        ),
+        (lo, hi, false),
+        (0.0, ymax * 1.1),
+        0.0,
+    );
+    let ylab = match &b.unit {
+        Some(u) => format!("density (per {u})"),
+        None => "density".into(),
+    };
+    p.axes(&axis_label(b), &ylab);
+    p.bars(
+        &bars,
+        "#f3c9ad",
+        "#c0693a",
+        "histogram of the implied draws",
+    );
+    if !bel.is_empty() {
+        p.line(&bel, BLUE, 2.4, None, "believed density");
+    }
+    let mut note_y = p.y.p1 + 14.0;
+    let right = p.x.p1 - 4.0;
+    for a in &b.atoms {
+        let place = if a.at.is_infinite() {
+            "never reached (∞)".to_string()
+        } else {
+            format!("at {}", fnum(a.at))
+        };
+        p.text(
+            right,
+            note_y,
+            "end",
+            "note",
+            &format!(
+                "point mass {place}: believed {}, implied {}",
+                pct(a.believed),
+                pct(a.implied)
+            ),
+        );
+        note_y += 14.0;
+        if a.at.is_finite() && a.at >= lo && a.at <= hi {
+            let x = p.x.px(a.at);
+            p.raw_line(x, p.y.p0, x, p.y.p1 + 4.0, SKY, 2.0, Some("2 2"));
+        }
+    }
+    if b.implied_inf > 0.0 && !b.atoms.iter().any(|a| a.at.is_infinite()) {
+        p.text(
+            right,
+            note_y,
+            "end",
+            "note",
+            &format!("implied never reached (∞): {}", pct(b.implied_inf)),
+        );
+    }
+    p.legend(&[
+        (BLUE, None, "believed"),
+        ("#c0693a", None, "implied (histogram)"),
+    ]);
+    p.finish(false)
+}
+
+/// Free hyperparameters within their fitting bounds, one track each.
+pub fn hyper_plot(id: &str, fit: &FitResult) -> Option<String> {
+    let free = &fit.free;
+    if free.is_empty() {
+        return None;
+    }
+    let row = 40.0;
+    let h = 40.0 + row * free.len() as f64;
+    let (x0, x1) = (200.0, svg::W - 60.0);
+    let mut b = String::new();
+    let _ = writeln!(b, "<svg class=\"plot\" id=\"{id}\" viewBox=\"0 0 {} {h}\" width=\"{}\" height=\"{h}\" role=\"img\" aria-labelledby=\"{id}-title\" font-family=\"system-ui, -apple-system, 'Segoe UI', Roboto, 'DejaVu Sans', sans-serif\"><title id=\"{id}-title\">Fitted hyperparameters within their bounds</title>", svg::W, svg::W);
+    let _ = writeln!(
+        b,
+        "<rect class=\"bg\" x=\"0\" y=\"0\" width=\"{}\" height=\"{h}\" fill=\"#fff\"/>",
+        svg::W
+    );
+    let _ = writeln!(b, "<text class=\"note\" x=\"10\" y=\"18\">fitted value (dot) within the bounds it was fitted in; log scale where the bounds span ≥ 100×</text>");
+    for (k, name) in free.iter().enumerate() {
+        let y = 44.0 + row * k as f64;
+        let v = fit.hyperparameters.get(name).copied().unwrap_or(f64::NAN);
+        let Some(&(lo, hi)) = fit.bounds.get(name) else {
+            continue;
+        };
+        let log = lo > 0.0 && hi / lo >= 100.0;
+        let t = if log {
+            (v.ln() - lo.ln()) / (hi.ln() - lo.ln())
+        } else {
+            (v - lo) / (hi - lo)
+        };
+        let px = x0 + t.clamp(0.0, 1.0) * (x1 - x0);
+        let near = !(0.001..=0.999).contains(&t);
+        let _ = writeln!(
+            b,
+            "<text x=\"10\" y=\"{:.1}\">{}</text>",
+            y + 4.0,
+            esc(name)
+        );
+        let _ = writeln!(
+            b,
+            "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"end\">{}</text>",
+            x0 - 6.0,
+            y + 4.0,
+            esc(&fnum(lo))
+        );
+        let _ = writeln!(
+            b,
+            "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\">{}</text>",
+            x1 + 6.0,
+            y + 4.0,
+            esc(&fnum(hi))
+        );
+        let _ = writeln!(b, "<line x1=\"{x0}\" x2=\"{x1}\" y1=\"{y}\" y2=\"{y}\" stroke=\"#bbb\" stroke-width=\"6\" stroke-linecap=\"round\"/>");
+        let col = if near { ORANGE } else { BLUE };
+        let _ = writeln!(b, "<circle cx=\"{px:.1}\" cy=\"{y}\" r=\"7\" fill=\"{col}\" stroke=\"#fff\" stroke-width=\"1.5\"><title>{} = {}</title></circle>", esc(name), esc(&fnum(v)));
+        let _ = writeln!(
+            b,
+            "<text class=\"note\" x=\"{px:.1}\" y=\"{:.1}\" text-anchor=\"middle\">{}{}</text>",
+            y - 11.0,
+            esc(&fnum(v)),
+            if near { " (at a bound)" } else { "" }
+        );
+    }
+    b.push_str("</svg>\n");
+    Some(b)
+}
+
+/// A numeric table found in a diagnostics value: (key path, column names, rows).
+pub(super) fn numeric_table(v: &Value) -> Option<(Vec<String>, Vec<Vec<f64>>)> {
+    let arr = match v {
+        Value::Array(a) => a,
+        Value::Object(o) => return o.values().find_map(numeric_table),
+        _ => return None,
+    };
+    let first = arr.first()?.as_object()?;
+    let cols: Vec<String> = first
+        .iter()
+        .filter(|(_, x)| number(x).is_some())
+        .map(|(k, _)| k.clone())
+        .collect();
+    if cols.len() < 2 {
+        return None;
+    }
+    let rows: Vec<Vec<f64>> = arr
+        .iter()
+        .map(|r| {
+            cols.iter()
+                .map(|c| r.get(c).and_then(number).unwrap_or(f64::NAN))
+                .collect()
+        })
+        .collect();
+    Some((cols, rows))
+}
+
+/// A scatter (and, for sweeps, a line) of the first two numeric columns.
+pub(super) fn diagnostic_plot(id: &str, key: &str, v: &Value) -> Option<String> {
+    let (cols, rows) = numeric_table(v)?;
+    let xi = cols.iter().position(|c| c == "kappa").unwrap_or(0);
+    let yi = (0..cols.len()).find(|i| *i != xi)?;
+    let mut pts: Vec<(f64, f64)> = rows
+        .iter()
+        .map(|r| (r[xi], r[yi]))
+        .filter(|(x, y)| x.is_finite() && y.is_finite())
+        .collect();
+    if pts.is_empty() {
+        return None;
+    }
+    pts.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let ext = |f: fn(&(f64, f64)) -> f64| {
+        let lo = pts.iter().map(f).fold(f64::INFINITY, f64::min);
+        let hi = pts.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
+        let pad = if hi > lo {
+            0.06 * (hi - lo)
+        } else {
+            0.5 * lo.abs().max(1e-9)
+        };
+        (lo - pad, hi + pad)
+    };
+    let (xl, xh) = ext(|p| p.0);
+    let (yl, yh) = ext(|p| p.1);
+    let mut p = Plot::new(
+        id,
+        &format!("{key}: {} against {}", cols[yi], cols[xi]),
+        (xl, xh, false),
+        (yl, yh),
+        0.0,
+    );
+    p.axes(&cols[xi], &cols[yi]);
+    if key == "sweep" {
+        p.line(&pts, BLUE, 1.8, None, key);
+    }
+    for (x, y) in &pts {
+        p.point(
+            *x,
+            *y,
+            BLUE,
+            3.5,
+            &format!("{} = {}, {} = {}", cols[xi], fnum(*x), cols[yi], fnum(*y)),
+        );
+    }
+    Some(p.finish(false))
+}

@@ -1,0 +1,221 @@
+//! The report's view of a fit: the record's beliefs with the draws of draws.csv.
+
+use crate::error::{Error, Result};
+use crate::export::record;
+use crate::fit::{FitResult, Verdict};
+use serde_json::Value;
+use std::path::Path;
+
+/// A finite atom or +∞ with believed and implied masses.
+#[derive(Debug, Clone)]
+pub struct AtomView {
+    pub at: f64,
+    pub believed: f64,
+    pub implied: f64,
+}
+
+/// The believed distribution as tabulated in fit.json.
+#[derive(Debug, Clone, Default)]
+pub struct Curve {
+    pub x: Vec<f64>,
+    pub cdf: Vec<f64>,
+    pub pdf: Vec<f64>,
+    /// (location, mass), +∞ included.
+    pub atoms: Vec<(f64, f64)>,
+}
+
+impl Curve {
+    pub(super) fn inf_mass(&self) -> f64 {
+        self.atoms
+            .iter()
+            .filter(|a| a.0.is_infinite())
+            .map(|a| a.1)
+            .sum()
+    }
+    /// x where F reaches `p` (linear between points), None outside the table.
+    pub(super) fn quantile(&self, p: f64) -> Option<f64> {
+        let k = self.cdf.iter().position(|c| *c >= p)?;
+        if k == 0 {
+            return self.x.first().copied();
+        }
+        let (c0, c1) = (self.cdf[k - 1], self.cdf[k]);
+        let t = if c1 > c0 { (p - c0) / (c1 - c0) } else { 1.0 };
+        Some(self.x[k - 1] + t * (self.x[k] - self.x[k - 1]))
+    }
+}
+
+/// One belief as the report sees it.
+#[derive(Debug, Clone)]
+pub struct BeliefView {
+    pub label: String,
+    /// Prior effective sample size (implied, believed), probability quantities only.
+    pub ess: Option<f64>,
+    pub believed_ess: Option<f64>,
+    pub quantity: String,
+    pub unit: Option<String>,
+    pub stated_as: String,
+    pub verdict: String,
+    pub how: Vec<String>,
+    pub fresh: f64,
+    pub noise_floor: f64,
+    pub ratio: f64,
+    pub rms: f64,
+    pub weight: f64,
+    pub probs: Vec<f64>,
+    pub believed_q: Vec<f64>,
+    pub implied_q: Vec<f64>,
+    pub atoms: Vec<AtomView>,
+    pub implied_inf: f64,
+    pub curve: Option<Curve>,
+    /// Implied draws, sorted ascending (+∞ last).
+    pub draws: Vec<f64>,
+}
+
+/// A record part as a JSON value, for display.
+pub(super) fn as_value<T: serde::Serialize>(x: &T) -> Value {
+    serde_json::to_value(x).unwrap_or(Value::Null)
+}
+
+/// A JSON number, or ±inf written as a string (the record's convention).
+pub(super) fn number(v: &Value) -> Option<f64> {
+    match v {
+        Value::Number(n) => n.as_f64(),
+        Value::String(s) if s == "inf" => Some(f64::INFINITY),
+        Value::String(s) if s == "-inf" => Some(f64::NEG_INFINITY),
+        _ => None,
+    }
+}
+
+/// The code of a verdict (CSS class and mark).
+pub(super) fn verdict_code(v: Verdict) -> &'static str {
+    match v {
+        Verdict::MetWithinNoise => "met_within_noise",
+        Verdict::MetApproximately => "met_approximately",
+        Verdict::NotMet => "not_met",
+    }
+}
+
+/// The beliefs of a fit record with the draws of draws.csv attached; `file`
+/// (the fit.json) names the record in errors.
+pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<BeliefView>> {
+    let cols = read_draws(draws_csv, fit.beliefs.len())?;
+    let mut out = Vec::new();
+    for (k, (b, mut draws)) in fit.beliefs.iter().zip(cols).enumerate() {
+        let c = &b.believed_curve;
+        if c.x.len() != c.cdf.len() || c.x.len() != c.pdf.len() {
+            return Err(record::bad(
+                file,
+                &format!("beliefs[{k}].believed_curve"),
+                "x, cdf and pdf differ in length",
+            ));
+        }
+        let curve = Some(Curve {
+            x: c.x.clone(),
+            cdf: c.cdf.clone(),
+            pdf: c.pdf.clone(),
+            atoms: c.atoms.iter().map(|a| (a.at, a.mass)).collect(),
+        });
+        draws.sort_by(f64::total_cmp);
+        out.push(BeliefView {
+            label: b.label.clone(),
+            quantity: b.quantity.clone(),
+            unit: b.unit.clone(),
+            stated_as: b.stated_as.clone(),
+            verdict: verdict_code(b.verdict).to_string(),
+            how: b.how.clone(),
+            ess: b.ess,
+            believed_ess: b.believed_ess,
+            fresh: b.fresh,
+            noise_floor: b.noise_floor,
+            ratio: b.ratio,
+            rms: b.rms_cdf_gap,
+            weight: b.weight,
+            probs: b.probs.clone(),
+            believed_q: b.believed_quantiles.clone(),
+            implied_q: b.implied_quantiles.clone(),
+            atoms: b
+                .atoms
+                .iter()
+                .map(|a| AtomView {
+                    at: a.at,
+                    believed: a.believed,
+                    implied: a.implied,
+                })
+                .collect(),
+            implied_inf: b.implied_mass_at_inf,
+            curve,
+            draws,
+        });
+    }
+    Ok(out)
+}
+
+/// Columns 2.. of draws.csv (column 1 is the draw number), `n` of them.
+pub fn read_draws(path: &Path, n: usize) -> Result<Vec<Vec<f64>>> {
+    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    let bad = |line: usize, msg: String| {
+        Error::input(
+            crate::error::Location {
+                file: Some(path.to_path_buf()),
+                line: Some(line),
+                key: None,
+            },
+            msg,
+        )
+    };
+    let mut rd = csv::Reader::from_reader(text.as_bytes());
+    let header = rd.headers().map_err(|e| bad(1, e.to_string()))?.clone();
+    if header.len() != n + 1 {
+        return Err(bad(
+            1,
+            format!(
+                "expected {} columns (draw + one per belief in fit.json), found {}",
+                n + 1,
+                header.len()
+            ),
+        ));
+    }
+    let mut cols = vec![Vec::new(); n];
+    for (i, rec) in rd.records().enumerate() {
+        let line = i + 2;
+        let rec = rec.map_err(|e| bad(line, e.to_string()))?;
+        for (j, col) in cols.iter_mut().enumerate() {
+            let s = rec.get(j + 1).unwrap_or_default();
+            let v: f64 = s.trim().parse().map_err(|_| {
+                bad(
+                    line,
+                    format!("column `{}`: `{s}` is not a number", &header[j + 1]),
+                )
+            })?;
+            if v.is_nan() {
+                return Err(bad(line, format!("column `{}`: NaN", &header[j + 1])));
+            }
+            col.push(v);
+        }
+    }
+    if cols.first().is_some_and(Vec::is_empty) {
+        return Err(bad(2, "no draws".into()));
+    }
+    Ok(cols)
+}
+
+/// Mass of sorted draws ≤ x.
+pub(super) fn ecdf(s: &[f64], x: f64) -> f64 {
+    s.partition_point(|v| *v <= x) as f64 / s.len() as f64
+}
+
+pub(super) fn ecdf_left(s: &[f64], x: f64) -> f64 {
+    s.partition_point(|v| *v < x) as f64 / s.len() as f64
+}
+
+pub(super) fn emp_q(s: &[f64], p: f64) -> f64 {
+    crate::fit::verdict::empirical_quantile(s, p)
+}
+
+pub(super) fn pct(x: f64) -> String {
+    if x.is_nan() {
+        "—".into()
+    } else {
+        format!("{:.1} %", 100.0 * x)
+    }
+}
