@@ -17,7 +17,7 @@
 //! Outputs: a table with one row per width (every hyperparameter, total
 //! discrepancies, verdict, and each belief's believed and implied quantiles at
 //! [`crate::fit::verdict::PROBS`]) and an SVG plot of the same against width
-//! (plotters, SVG backend).
+//! (drawn with `output::svg`).
 
 use crate::error::{Error, Result};
 use crate::fit::verdict::PROBS;
@@ -220,141 +220,96 @@ pub fn table_csv(points: &[SweepPoint]) -> Result<Vec<u8>> {
 
 /// An SVG figure: one panel per hyperparameter (value against width) and one per
 /// belief (believed and implied 5 %, 50 %, 95 % quantiles against width), with a
-/// logarithmic width axis.
+/// logarithmic width axis; panels drawn with `output::svg`, three to a row.
 pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
-    use plotters::prelude::*;
+    use crate::output::plots::padded_range;
+    use crate::output::svg::{esc, Plot, BLUE, GREY, H, STANDALONE_STYLE, VERMILLION, W};
+    use std::fmt::Write;
     let Some(first) = points.first() else {
         return Err(Error::Numeric("empty sweep".into()));
     };
     let r0 = &first.result;
-    let nh = r0.order.len();
-    let nb = r0.beliefs.len();
-    let panels = nh + nb;
-    let cols = panels.clamp(1, 3);
-    let rows = panels.div_ceil(cols);
-    let (pw, ph) = (380u32, 270u32);
     let xs: Vec<f64> = points.iter().map(|p| p.width).collect();
     let (xlo, xhi) = (xs[0] / 1.15, xs[xs.len() - 1] * 1.15);
-    let pe = |e: String| Error::Numeric(format!("drawing the sweep plot: {e}"));
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (pw * cols as u32, ph * rows as u32 + 30))
-            .into_drawing_area();
-        root.fill(&WHITE).map_err(|e| pe(e.to_string()))?;
-        let (title, body) = root.split_vertically(30);
-        title
-            .titled(
-                &format!("{} — sensitivity to belief width", r0.title),
-                ("sans-serif", 16),
-            )
-            .map_err(|e| pe(e.to_string()))?;
-        let areas = body.split_evenly((rows, cols));
-        // (caption, series: (label, colour, values per width))
-        type Series = (String, RGBColor, Vec<f64>);
-        let mut specs: Vec<(String, Vec<Series>)> = Vec::new();
-        for n in &r0.order {
-            let v: Vec<f64> = points.iter().map(|p| p.result.hyperparameters[n]).collect();
-            let fixed = !r0.free.contains(n);
-            specs.push((
-                format!("{n}{}", if fixed { " (fixed)" } else { "" }),
-                vec![("fitted".into(), BLUE, v)],
-            ));
-        }
-        let qi = [0usize, 3, 6]; // 5 %, 50 %, 95 % in PROBS
-        for (i, b) in r0.beliefs.iter().enumerate() {
-            let mut ser = Vec::new();
-            for (k, &j) in qi.iter().enumerate() {
-                let col = [
-                    RGBColor(200, 60, 40),
-                    RGBColor(150, 20, 20),
-                    RGBColor(200, 60, 40),
-                ][k];
-                ser.push((
-                    format!("believed {}%", PROBS[j] * 100.0),
-                    col,
-                    points
-                        .iter()
-                        .map(|p| p.result.beliefs[i].believed_quantiles[j])
-                        .collect(),
-                ));
-            }
-            for (k, &j) in qi.iter().enumerate() {
-                let col = [
-                    RGBColor(60, 90, 200),
-                    RGBColor(10, 30, 140),
-                    RGBColor(60, 90, 200),
-                ][k];
-                ser.push((
-                    format!("implied {}%", PROBS[j] * 100.0),
-                    col,
-                    points
-                        .iter()
-                        .map(|p| p.result.beliefs[i].implied_quantiles[j])
-                        .collect(),
-                ));
-            }
-            specs.push((format!("{}: quantiles", b.label), ser));
-        }
-        for ((cap, ser), area) in specs.iter().zip(areas.iter()) {
-            let fin: Vec<f64> = ser
-                .iter()
-                .flat_map(|s| s.2.iter().copied())
-                .filter(|v| v.is_finite())
-                .collect();
-            let (mut ylo, mut yhi) = fin
-                .iter()
-                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| {
-                    (a.min(*v), b.max(*v))
-                });
-            if !ylo.is_finite() {
-                (ylo, yhi) = (0.0, 1.0);
-            }
-            let pad = if yhi > ylo {
-                0.08 * (yhi - ylo)
-            } else {
-                0.1 * ylo.abs().max(1e-3)
-            };
-            let mut chart = ChartBuilder::on(area)
-                .caption(cap, ("sans-serif", 13))
-                .margin(8)
-                .x_label_area_size(30)
-                .y_label_area_size(56)
-                .build_cartesian_2d((xlo..xhi).log_scale(), (ylo - pad)..(yhi + pad))
-                .map_err(|e| pe(e.to_string()))?;
-            chart
-                .configure_mesh()
-                .x_desc("width factor")
-                .label_style(("sans-serif", 11))
-                .draw()
-                .map_err(|e| pe(e.to_string()))?;
-            for (label, col, vals) in ser {
-                let pts: Vec<(f64, f64)> = xs
-                    .iter()
-                    .zip(vals)
-                    .filter(|(_, v)| v.is_finite())
-                    .map(|(x, v)| (*x, *v))
-                    .collect();
-                let col = *col;
-                chart
-                    .draw_series(LineSeries::new(pts.clone(), col.stroke_width(2)))
-                    .map_err(|e| pe(e.to_string()))?
-                    .label(label.as_str())
-                    .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 14, y)], col));
-                chart
-                    .draw_series(pts.iter().map(|p| Circle::new(*p, 3, col.filled())))
-                    .map_err(|e| pe(e.to_string()))?;
-            }
-            if ser.len() > 1 {
-                chart
-                    .configure_series_labels()
-                    .label_font(("sans-serif", 10))
-                    .background_style(WHITE.mix(0.8))
-                    .border_style(BLACK)
-                    .draw()
-                    .map_err(|e| pe(e.to_string()))?;
-            }
-        }
-        root.present().map_err(|e| pe(e.to_string()))?;
+    // (caption, series: (label, colour, dash, values per width))
+    type Series = (String, &'static str, Option<&'static str>, Vec<f64>);
+    let mut panels: Vec<(String, Vec<Series>)> = Vec::new();
+    for n in &r0.order {
+        let v: Vec<f64> = points.iter().map(|p| p.result.hyperparameters[n]).collect();
+        let fixed = !r0.free.contains(n);
+        panels.push((
+            format!("{n}{}", if fixed { " (fixed)" } else { "" }),
+            vec![("fitted".into(), BLUE, None, v)],
+        ));
     }
-    Ok(svg)
+    let qi = [0usize, 3, 6]; // 5 %, 50 %, 95 % in PROBS
+    for (i, b) in r0.beliefs.iter().enumerate() {
+        let mut ser = Vec::new();
+        for (who, col) in [("believed", VERMILLION), ("implied", BLUE)] {
+            for &j in &qi {
+                let dash = (j != 3).then_some("5 3");
+                let vals = points
+                    .iter()
+                    .map(|p| {
+                        let r = &p.result.beliefs[i];
+                        if who == "believed" {
+                            r.believed_quantiles[j]
+                        } else {
+                            r.implied_quantiles[j]
+                        }
+                    })
+                    .collect();
+                ser.push((format!("{who} {} %", PROBS[j] * 100.0), col, dash, vals));
+            }
+        }
+        panels.push((format!("{}: quantiles", b.label), ser));
+    }
+    let cols = panels.len().clamp(1, 3);
+    let rows = panels.len().div_ceil(cols);
+    let (head, cap) = (34.0, 22.0);
+    let (tw, th) = (W * cols as f64, head + rows as f64 * (H + cap));
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {tw} {th}\" width=\"{tw}\" height=\"{th}\" font-family=\"system-ui, -apple-system, 'Segoe UI', Roboto, 'DejaVu Sans', sans-serif\">\n{STANDALONE_STYLE}<rect x=\"0\" y=\"0\" width=\"{tw}\" height=\"{th}\" fill=\"#fff\"/>\n<text class=\"label\" x=\"12\" y=\"22\">{}</text>",
+        esc(&format!("{} — sensitivity to belief width", r0.title))
+    );
+    for (k, (caption, ser)) in panels.iter().enumerate() {
+        let (x0, y0) = (W * (k % cols) as f64, head + (H + cap) * (k / cols) as f64);
+        let yr = padded_range(ser.iter().flat_map(|s| s.3.iter().copied())).unwrap_or((0.0, 1.0));
+        let mut p = Plot::new(&format!("sweep-{k}"), caption, (xlo, xhi, true), yr, 0.0);
+        p.axes("width factor", "");
+        for (label, col, dash, vals) in ser {
+            let pts: Vec<(f64, f64)> = xs
+                .iter()
+                .zip(vals)
+                .filter(|(_, v)| v.is_finite())
+                .map(|(x, v)| (*x, *v))
+                .collect();
+            p.line(&pts, col, 2.0, *dash, label);
+            for (x, y) in &pts {
+                p.point(*x, *y, col, 3.0, label);
+            }
+        }
+        if ser.len() > 1 {
+            p.legend(&[
+                (VERMILLION, None, "believed"),
+                (BLUE, None, "implied"),
+                (GREY, Some("5 3"), "5 % and 95 %"),
+            ]);
+        }
+        let _ = writeln!(
+            out,
+            "<text class=\"label\" x=\"{:.1}\" y=\"{:.1}\">{}</text>",
+            x0 + 12.0,
+            y0 + 16.0,
+            esc(caption)
+        );
+        let panel = p
+            .finish(false)
+            .replacen("<svg ", &format!("<svg x=\"{x0}\" y=\"{:.1}\" ", y0 + cap), 1);
+        out.push_str(&panel);
+    }
+    out.push_str("</svg>\n");
+    Ok(out)
 }

@@ -4,6 +4,7 @@
 //! partial output behind.
 
 pub mod plots;
+pub mod svg;
 pub mod summary;
 
 use crate::error::{Error, Result};

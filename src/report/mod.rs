@@ -14,7 +14,7 @@
 //! and carries a small script that only marks, for tests, that every plot
 //! rendered.
 
-pub mod svg;
+pub use crate::output::svg;
 mod assets;
 mod html;
 mod plots;

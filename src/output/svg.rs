@@ -1,4 +1,5 @@
-//! Hand-written SVG plots for the report: axes with "nice" ticks (steps of 1, 2
+//! Hand-written SVG plots for every figure priorsmith writes (the report's, the
+//! Pareto front, the sweep): axes with "nice" ticks (steps of 1, 2
 //! or 5 × 10^k, common practice), lines, steps, bars, points and labels.
 //!
 //! Why not plotters: the report needs atoms drawn as jumps, a separate "+∞"
