@@ -305,9 +305,11 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
             y0 + 16.0,
             esc(caption)
         );
-        let panel = p
-            .finish(false)
-            .replacen("<svg ", &format!("<svg x=\"{x0}\" y=\"{:.1}\" ", y0 + cap), 1);
+        let panel = p.finish(false).replacen(
+            "<svg ",
+            &format!("<svg x=\"{x0}\" y=\"{:.1}\" ", y0 + cap),
+            1,
+        );
         out.push_str(&panel);
     }
     out.push_str("</svg>\n");

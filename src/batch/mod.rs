@@ -61,15 +61,42 @@ pub struct RowRecord {
     pub row: usize,
     pub id: String,
     pub digest: String,
-    /// "ok" or "error".
-    pub status: String,
+    pub status: RowStatus,
     /// Hyperparameter columns, (name, value as written in results.csv).
     pub hyperparameters: Vec<(String, String)>,
     /// Other result columns: discrepancies, verdicts, evaluations.
     pub stats: Vec<(String, String)>,
     pub reason: Option<String>,
-    pub stage: Option<String>,
+    /// Where an error row failed: validating its spec or fitting it.
+    pub stage: Option<RowStage>,
     pub wall_time_s: f64,
+}
+
+/// How a row ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum RowStatus {
+    Ok,
+    Error,
+}
+
+/// Where an error row failed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum RowStage {
+    /// Applying the row's changes and validating the spec.
+    Input,
+    /// Fitting.
+    Fit,
+}
+
+impl RowStage {
+    pub fn name(&self) -> &'static str {
+        match self {
+            RowStage::Input => "input",
+            RowStage::Fit => "fit",
+        }
+    }
 }
 
 /// Options of a run.
@@ -350,7 +377,7 @@ fn ok_record(r: &PlannedRow, res: &fit::FitResult) -> RowRecord {
         row: r.number,
         id: r.id.clone(),
         digest: r.digest.clone(),
-        status: "ok".into(),
+        status: RowStatus::Ok,
         hyperparameters,
         stats,
         reason: None,
@@ -359,16 +386,16 @@ fn ok_record(r: &PlannedRow, res: &fit::FitResult) -> RowRecord {
     }
 }
 
-fn err_record(r: &PlannedRow, stage: &str, reason: String, t: f64) -> RowRecord {
+fn err_record(r: &PlannedRow, stage: RowStage, reason: String, t: f64) -> RowRecord {
     RowRecord {
         row: r.number,
         id: r.id.clone(),
         digest: r.digest.clone(),
-        status: "error".into(),
+        status: RowStatus::Error,
         hyperparameters: Vec::new(),
         stats: Vec::new(),
         reason: Some(reason),
-        stage: Some(stage.into()),
+        stage: Some(stage),
         wall_time_s: t,
     }
 }
@@ -381,13 +408,13 @@ fn run_row(
     files: ModelFiles,
 ) -> Result<(RowRecord, bool)> {
     if let Some(rec) = read_record(dir, r.number) {
-        if rec.status == "ok" && rec.digest == r.digest && rec.id == r.id {
+        if rec.status == RowStatus::Ok && rec.digest == r.digest && rec.id == r.id {
             return Ok((rec, true));
         }
     }
     let started = Instant::now();
     let rec = match plan.spec(r) {
-        Err(reason) => err_record(r, "input", reason, started.elapsed().as_secs_f64()),
+        Err(reason) => err_record(r, RowStage::Input, reason, started.elapsed().as_secs_f64()),
         Ok(mut spec) => {
             spec.fit.profiles = files == ModelFiles::Full;
             // Batches fit at a fixed number of draws (the base file's, or 8,192
@@ -401,7 +428,7 @@ fn run_row(
                 Err(Error::Cancelled) => return Err(Error::Cancelled),
                 Err(e) => err_record(
                     r,
-                    "fit",
+                    RowStage::Fit,
                     one_line(&format!("row {} (id \"{}\"): {e}", r.number, r.id)),
                     started.elapsed().as_secs_f64(),
                 ),
@@ -492,10 +519,10 @@ pub fn run(
         let (rec, skipped) = x?;
         if skipped {
             rep.skipped += 1;
-        } else if rec.status == "ok" {
+        } else if rec.status == RowStatus::Ok {
             rep.fitted += 1;
         }
-        if rec.status != "ok" {
+        if rec.status != RowStatus::Ok {
             rep.failed += 1;
         }
         recs.insert(rec.row, rec);
@@ -578,7 +605,7 @@ pub fn assemble(
         .write_record(["id", "row", "wall_time_s"])
         .map_err(e)?;
     for (r, x) in &current {
-        if x.status == "ok" {
+        if x.status == RowStatus::Ok {
             let h: BTreeMap<&str, &str> = x
                 .hyperparameters
                 .iter()
@@ -604,7 +631,7 @@ pub fn assemble(
             errs.write_record([
                 r.id.clone(),
                 r.number.to_string(),
-                x.stage.clone().unwrap_or_default(),
+                x.stage.map(|g| g.name().to_string()).unwrap_or_default(),
                 x.reason.clone().unwrap_or_default(),
             ])
             .map_err(e)?;
@@ -676,7 +703,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result
                 if x.digest != r.digest || x.id != r.id {
                     continue;
                 }
-                if best.as_ref().is_none_or(|b| b.status != "ok") {
+                if best.as_ref().is_none_or(|b| b.status != RowStatus::Ok) {
                     best = Some(x);
                 }
             }
@@ -689,7 +716,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result
     output::ensure_dir(out)?;
     let mut rep = RunReport {
         rows: plan.rows.len(),
-        failed: recs.values().filter(|x| x.status != "ok").count(),
+        failed: recs.values().filter(|x| x.status != RowStatus::Ok).count(),
         ..Default::default()
     };
     for (name, bytes) in [

@@ -367,9 +367,52 @@ impl<'a> Objective<'a> {
     }
 }
 
+/// The objective as an argmin problem on the optimiser's (η) scale: the cost
+/// is [`Objective::cost`] (+∞ where undefined or after cancellation), so any
+/// argmin solver can run on it.
+impl argmin::core::CostFunction for Objective<'_> {
+    type Param = Vec<f64>;
+    type Output = f64;
+    fn cost(&self, eta: &Self::Param) -> std::result::Result<f64, argmin::core::Error> {
+        Ok(Objective::cost(self, eta))
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::sort_values;
+
+    /// argmin's Nelder–Mead runs on the objective itself and lowers it.
+    #[test]
+    fn argmin_solvers_run_on_the_objective() {
+        use argmin::core::{CostFunction, Executor, State};
+        let text = include_str!("../../demo-data/relapse-free-cure.toml");
+        let ov = crate::spec::Overrides {
+            draws: Some(1024),
+            ..Default::default()
+        };
+        let spec = crate::spec::parse(text, None, &ov).unwrap();
+        let obj = super::Objective::fitting(&spec);
+        let x0 = obj.eta(&obj.full0);
+        let f0 = CostFunction::cost(&obj, &x0).unwrap();
+        assert_eq!(f0, obj.cost(&x0));
+        let mut simplex = vec![x0.clone()];
+        for i in 0..x0.len() {
+            let mut p = x0.clone();
+            p[i] += 0.3;
+            simplex.push(p);
+        }
+        let solver = argmin::solver::neldermead::NelderMead::new(simplex);
+        let r = Executor::new(obj, solver)
+            .configure(|s| s.max_iters(60))
+            .run()
+            .unwrap();
+        assert!(
+            r.state().get_best_cost() < f0,
+            "{}",
+            r.state().get_best_cost()
+        );
+    }
 
     /// The two-stage sort agrees with a comparison sort, including values that
     /// share their upper 32 bits, crowded values (the fallback), signed zeros,

@@ -28,6 +28,15 @@ pub enum Verdict {
 }
 
 impl Verdict {
+    /// As written in fit.json (and used as a CSS class by the report).
+    pub fn code(&self) -> &'static str {
+        match self {
+            Verdict::MetWithinNoise => "met_within_noise",
+            Verdict::MetApproximately => "met_approximately",
+            Verdict::NotMet => "not_met",
+        }
+    }
+
     pub fn words(&self) -> &'static str {
         match self {
             Verdict::MetWithinNoise => "met within noise",

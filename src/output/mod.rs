@@ -4,8 +4,8 @@
 //! partial output behind.
 
 pub mod plots;
-pub mod svg;
 pub mod summary;
+pub mod svg;
 
 use crate::error::{Error, Result};
 use crate::fit::FitResult;

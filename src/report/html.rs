@@ -49,7 +49,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         dshort = esc(&h.spec_digest[..12.min(h.spec_digest.len())]),
         date = esc(&h.date),
     );
-    let overall = verdict_code(fit.verdict);
+    let overall = fit.verdict.code();
     let _ = writeln!(html, "<p class=\"verdict {overall}\"><span class=\"mark\">{}</span> Overall: beliefs {}</p>\n<aside class=\"caution\" role=\"note\"><b>Caution.</b> {}</aside>\n</header>",
         mark(overall),
         esc(&h.verdict),

@@ -2,7 +2,7 @@
 
 use crate::error::{Error, Result};
 use crate::export::record;
-use crate::fit::{FitResult, Verdict};
+use crate::fit::FitResult;
 use serde_json::Value;
 use std::path::Path;
 
@@ -86,15 +86,6 @@ pub(super) fn number(v: &Value) -> Option<f64> {
     }
 }
 
-/// The code of a verdict (CSS class and mark).
-pub(super) fn verdict_code(v: Verdict) -> &'static str {
-    match v {
-        Verdict::MetWithinNoise => "met_within_noise",
-        Verdict::MetApproximately => "met_approximately",
-        Verdict::NotMet => "not_met",
-    }
-}
-
 /// The beliefs of a fit record with the draws of draws.csv attached; `file`
 /// (the fit.json) names the record in errors.
 pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<BeliefView>> {
@@ -121,7 +112,7 @@ pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<Bel
             quantity: b.quantity.clone(),
             unit: b.unit.clone(),
             stated_as: b.stated_as.clone(),
-            verdict: verdict_code(b.verdict).to_string(),
+            verdict: b.verdict.code().to_string(),
             how: b.how.clone(),
             ess: b.ess,
             believed_ess: b.believed_ess,
