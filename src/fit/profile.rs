@@ -109,19 +109,7 @@ fn moved(eta: &[f64], v: &[f64], s: f64) -> Vec<f64> {
 /// Follow D from `eta` along `v` (positive s) until it rises above `d0` by
 /// `budget`; the edge to within 0.2 % of its distance.
 pub fn edge(obj: &Objective, eta: &[f64], v: &[f64], d0: f64, budget: f64) -> Edge {
-    let limit = v
-        .iter()
-        .zip(eta)
-        .filter(|(c, _)| c.abs() > 1e-12)
-        .map(|(c, e)| {
-            if *c > 0.0 {
-                (ETA_LIMIT - e) / c
-            } else {
-                (-ETA_LIMIT - e) / c
-            }
-        })
-        .fold(f64::INFINITY, f64::min)
-        .max(0.0);
+    let limit = super::tiebreak::limit(eta, v);
     let rise = |s: f64| obj.d_at(&moved(eta, v, s)) - d0;
     let open = |s: f64| Edge {
         distance: s,

@@ -79,12 +79,7 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
     let mut xs: Vec<f64> = (0..=400)
         .map(|k| lo + (hi - lo) * k as f64 / 400.0)
         .collect();
-    let atom_locs: Vec<f64> = b
-        .atoms
-        .iter()
-        .map(|a| a.at)
-        .filter(|a| a.is_finite())
-        .collect();
+    let atom_locs = finite_atoms(b);
     xs.extend(&atom_locs);
     xs.sort_by(f64::total_cmp);
     let mut imp = Vec::new();
@@ -192,15 +187,19 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
 }
 
 /// Believed density over a histogram of the implied draws.
-pub fn density_plot(id: &str, b: &BeliefView) -> String {
-    let (lo, hi) = x_range(b);
-    let n = b.draws.len() as f64;
-    let atom_locs: Vec<f64> = b
-        .atoms
+/// Locations of the finite atoms of a belief.
+fn finite_atoms(b: &BeliefView) -> Vec<f64> {
+    b.atoms
         .iter()
         .map(|a| a.at)
         .filter(|a| a.is_finite())
-        .collect();
+        .collect()
+}
+
+pub fn density_plot(id: &str, b: &BeliefView) -> String {
+    let (lo, hi) = x_range(b);
+    let n = b.draws.len() as f64;
+    let atom_locs = finite_atoms(b);
     let fin: Vec<f64> = b
         .draws
         .iter()
