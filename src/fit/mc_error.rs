@@ -106,10 +106,9 @@ pub fn errors(
     for a in 0..m {
         var[inner[a]] = sand[(a, a)].max(0.0);
     }
-    let mut k = 0;
-    for mv in moves.iter().filter(|mv| mv.distance > 0.0 && !mv.open) {
+    let closed = moves.iter().filter(|mv| mv.distance > 0.0 && !mv.open);
+    for (k, mv) in closed.enumerate() {
         let rises: Vec<f64> = reps.iter().map(|(_, e)| e[k]).collect();
-        k += 1;
         let mean = rises.iter().sum::<f64>() / r;
         let vr = rises.iter().map(|e| (e - mean).powi(2)).sum::<f64>() / (r - 1.0);
         // δs along the flat direction moves the end along the valley's tangent

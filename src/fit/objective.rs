@@ -385,7 +385,7 @@ mod tests {
     /// argmin's Nelder–Mead runs on the objective itself and lowers it.
     #[test]
     fn argmin_solvers_run_on_the_objective() {
-        use argmin::core::{CostFunction, Executor, State};
+        use argmin::core::{CostFunction, Executor};
         let text = include_str!("../../demo-data/relapse-free-cure.toml");
         let ov = crate::spec::Overrides {
             draws: Some(1024),
