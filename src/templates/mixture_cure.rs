@@ -25,9 +25,9 @@ use super::{
 };
 use crate::dist::Support;
 use crate::error::{choice_hint, Result};
+use crate::input::raw::RawBelief;
+use crate::input::{key, Ctx, Seg};
 use crate::numerics::{gamma_p, ln_gamma, logistic, norm_cdf, norm_quantile};
-use crate::spec::raw::RawBelief;
-use crate::spec::{key, Ctx, Seg};
 use std::cell::RefCell;
 
 pub static INFO: TemplateInfo = TemplateInfo {

@@ -19,23 +19,12 @@ pub mod regression;
 
 use crate::dist::Support;
 use crate::error::Result;
-use crate::spec::raw::RawBelief;
-use crate::spec::{Ctx, Seg};
+use crate::input::raw::RawBelief;
+use crate::input::{Ctx, Seg};
 use std::any::Any;
 
+pub use crate::input::HyperValue;
 pub use priors::{PriorSet, ScalarPrior};
-
-/// A hyperparameter's value in the belief file.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum HyperValue {
-    Fixed(f64),
-    Free {
-        lo: f64,
-        hi: f64,
-        start: Option<f64>,
-    },
-}
 
 /// One hyperparameter, named `<parameter>.<hyperparameter>` (e.g. `cure_logit.mean`).
 #[derive(Debug, Clone, serde::Serialize)]

@@ -6,7 +6,7 @@
 use super::regression::{self, Link, Q_EFF, Q_MEAN, Q_R2, Q_R2_MARGINAL, Q_SIGNAL};
 use super::{Model, QuantityInfo, TemplateInfo};
 use crate::error::Result;
-use crate::spec::Ctx;
+use crate::input::Ctx;
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "poisson",

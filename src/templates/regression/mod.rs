@@ -43,10 +43,10 @@ use super::{
 use crate::design::Design;
 use crate::dist::Support;
 use crate::error::{choice_hint, Error, Result};
+use crate::input::raw::RawBelief;
+use crate::input::{key, Ctx, Seg};
 use crate::numerics::logistic;
 use crate::rng;
-use crate::spec::raw::RawBelief;
-use crate::spec::{key, Ctx, Seg};
 use coef::{CoefPrior, Eff, Kind, Products};
 use std::sync::{Arc, Mutex};
 
