@@ -328,7 +328,7 @@ pub fn from_table(
         )
         .with_hint(choice_hint(&template, &templates::names()))
     })?;
-    let model: Arc<dyn Model> = Arc::from((info.build)(&ctx)?);
+    let mut model = (info.build)(&ctx)?;
 
     // Every [prior.*] table must belong to a parameter of the template.
     let used = ctx.used_priors();
@@ -357,8 +357,13 @@ pub fn from_table(
     for (i, rb) in raw.belief.iter().enumerate() {
         beliefs.push(belief::validate(&ctx, &*model, info, i, rb)?);
     }
+    // The model prepares for every request together (e.g. which design products
+    // the base draws compute), once, before anything draws.
+    let requests: Vec<&Request> = beliefs.iter().map(|b: &Belief| &b.request).collect();
+    model.prepare(&requests)?;
+    let model: Arc<dyn Model> = Arc::from(model);
 
-    // Working memory, now that the beliefs have told the model what to prepare.
+    // Working memory, now that the model is prepared for the beliefs.
     let (need, what) = model.working_bytes(draws);
     let budget = crate::limits::budget_mb(ov.max_memory_mb);
     if need > crate::limits::bytes(budget) {

@@ -15,6 +15,7 @@ pub mod logistic;
 pub mod mixture_cure;
 pub mod poisson;
 pub mod priors;
+pub mod quantity;
 pub mod regression;
 
 use crate::dist::Support;
@@ -25,6 +26,7 @@ use std::any::Any;
 
 pub use crate::input::HyperValue;
 pub use priors::{PriorSet, ScalarPrior};
+pub use quantity::{At, Detail, QuantityDef};
 
 /// One hyperparameter, named `<parameter>.<hyperparameter>` (e.g. `cure_logit.mean`).
 #[derive(Debug, Clone, serde::Serialize)]
@@ -68,8 +70,8 @@ impl Hyper {
 #[derive(Debug, Clone)]
 pub struct Request {
     pub quantity: String,
-    /// The template's own code for the quantity.
-    pub code: usize,
+    /// The template's own description: its quantity and what it resolved.
+    pub detail: Detail,
     pub horizon: Option<f64>,
     /// Resolved covariate vectors (one, or two for a contrast).
     pub profiles: Vec<Vec<f64>>,
@@ -87,6 +89,12 @@ pub struct QuantityInfo {
     pub name: &'static str,
     pub about: &'static str,
     pub needs: &'static str,
+}
+
+impl QuantityInfo {
+    pub const fn new(name: &'static str, about: &'static str, needs: &'static str) -> Self {
+        Self { name, about, needs }
+    }
 }
 
 /// Catalogue entry for a template.
@@ -142,8 +150,15 @@ pub trait Model: Send + Sync {
     fn template(&self) -> &'static str;
     /// All hyperparameters, fixed and free, in a fixed order.
     fn hypers(&self) -> &[Hyper];
-    /// Validate a belief's quantity and its options (horizon, profile …).
+    /// Validate a belief's quantity and its options (horizon, profile …) and say
+    /// what it needs; the model is not changed.
     fn request(&self, ctx: &Ctx, path: &[Seg], quantity: &str, raw: &RawBelief) -> Result<Request>;
+    /// Prepare for the validated requests: called once, after every belief is
+    /// validated and before any base draws, with every request the beliefs made
+    /// (e.g. the regression templates record which design products to compute).
+    fn prepare(&mut self, _requests: &[&Request]) -> Result<()> {
+        Ok(())
+    }
     /// Base variates for `n` draws from the streams (and points) of `plan`.
     fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws;
     /// Draws of each requested quantity at hyperparameters `h` (full vector).
