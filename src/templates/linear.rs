@@ -24,6 +24,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     options: &[("template", "\"linear\"")],
     starter: include_str!("../../model-templates/linear.toml"),
     build,
+    brms: &regression::code::BRMS,
 };
 
 fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {

@@ -73,6 +73,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     options: &[("template", "\"logistic\"")],
     starter: include_str!("../../model-templates/logistic.toml"),
     build,
+    brms: &regression::code::BRMS,
 };
 
 fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {

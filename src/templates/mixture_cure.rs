@@ -22,8 +22,8 @@
 
 use super::quantity::{catalogue, lookup};
 use super::{
-    At, BaseDraws, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef, QuantityInfo,
-    Request, TemplateInfo,
+    At, BaseDraws, BrmsLayout, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef,
+    QuantityInfo, Request, TemplateInfo,
 };
 use crate::dist::Support;
 use crate::error::{choice_hint, Result};
@@ -76,6 +76,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     ],
     starter: include_str!("../../model-templates/mixture-cure.toml"),
     build,
+    brms: &BrmsLayout::NONLINEAR,
 };
 
 /// The quantities of the template.

@@ -109,6 +109,50 @@ pub struct TemplateInfo {
     /// Commented starter file (compiled in).
     pub starter: &'static str,
     pub build: fn(&Ctx) -> Result<Box<dyn Model>>,
+    /// How brms states the template's scalar parameters.
+    pub brms: &'static BrmsLayout,
+}
+
+/// How brms states a template's scalar parameters: read by `export::brms`, which
+/// finds it by the template name recorded in fit.json ([`brms_layout`]).
+pub struct BrmsLayout {
+    /// Comment lines above the prior list: the `brm()` call the priors belong to.
+    pub usage: &'static [&'static str],
+    /// Parameters that are brms classes of their own; every other scalar
+    /// parameter is a non-linear parameter (class "b", `nlpar`).
+    pub classes: &'static [BrmsClass],
+}
+
+/// A parameter that brms knows as a class of its own.
+pub struct BrmsClass {
+    pub parameter: &'static str,
+    pub class: &'static str,
+    /// brms takes no bounds for the class: what to say when the prior has them.
+    /// `None`: the class has its bounds built in (nothing written, nothing said).
+    pub bounds_note: Option<&'static str>,
+}
+
+impl BrmsLayout {
+    /// Every parameter a non-linear parameter of an intercept-only formula.
+    pub const NONLINEAR: BrmsLayout = BrmsLayout {
+        usage: &[
+            "Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,",
+            "e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);",
+            "change class / nlpar to match your model. Pass `prior = priors` to brm().",
+        ],
+        classes: &[],
+    };
+
+    /// The class of `parameter`, when brms has one for it.
+    pub fn class(&self, parameter: &str) -> Option<&'static BrmsClass> {
+        self.classes.iter().find(|c| c.parameter == parameter)
+    }
+}
+
+/// The brms layout of the template named `template` ([`BrmsLayout::NONLINEAR`]
+/// for a name this version does not know).
+pub fn brms_layout(template: &str) -> &'static BrmsLayout {
+    find(template).map_or(&BrmsLayout::NONLINEAR, |t| t.brms)
 }
 
 impl TemplateInfo {

@@ -56,6 +56,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     ],
     starter: include_str!("../../model-templates/poisson.toml"),
     build,
+    brms: &regression::code::BRMS,
 };
 
 fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
