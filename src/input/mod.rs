@@ -230,18 +230,23 @@ impl<'a> Ctx<'a> {
         self.raw.prior.contains_key(name)
     }
 
+    /// The `[profile.NAME]` table of a profile other than "reference", or an
+    /// error at `path` naming the profiles there are.
+    pub fn profile_table(&self, path: &[Seg], name: &str) -> Result<&'a toml::Table> {
+        self.raw.profile.get(name).ok_or_else(|| {
+            let mut names: Vec<&str> = self.raw.profile.keys().map(String::as_str).collect();
+            names.push("reference");
+            self.err(path, format!("unknown profile \"{name}\""))
+                .with_hint(choice_hint(name, &names))
+        })
+    }
+
     /// Covariate values of a named profile; "reference" means every covariate 0.
     pub fn profile(&self, path: &[Seg], name: &str, covariates: &[String]) -> Result<Vec<f64>> {
         if name == "reference" {
             return Ok(vec![0.0; covariates.len()]);
         }
-        let Some(t) = self.raw.profile.get(name) else {
-            let mut names: Vec<&str> = self.raw.profile.keys().map(String::as_str).collect();
-            names.push("reference");
-            return Err(self
-                .err(path, format!("unknown profile \"{name}\""))
-                .with_hint(choice_hint(name, &names)));
-        };
+        let t = self.profile_table(path, name)?;
         let ppath = [key("profile"), key(name)];
         let allowed: Vec<&str> = covariates.iter().map(String::as_str).collect();
         for k in t.keys() {

@@ -31,7 +31,7 @@ pub(super) struct RegBase {
     /// that c_i = s·κ_i without a quantile per evaluation.
     pub(super) kappa: Vec<f64>,
     /// A fault met while drawing (a poisoned table-cache lock): `draw_base` cannot
-    /// fail, so [`Regression::evaluate`] reports it as [`Error::Internal`].
+    /// fail, so [`Regression::evaluation`] reports it as [`Error::Internal`].
     pub(super) fault: Option<String>,
 }
 

@@ -168,7 +168,11 @@ impl Model for Regression {
         reqs: &[&Request],
         out: &mut [Vec<f64>],
     ) -> Result<()> {
-        self.evaluate(h, base, reqs, out)
+        let ev = self.evaluation(h, base)?;
+        for (r, o) in reqs.iter().zip(out.iter_mut()) {
+            ev.fill(r, o)?;
+        }
+        Ok(())
     }
 
     fn priors(&self, h: &[f64]) -> Vec<PriorStatement> {

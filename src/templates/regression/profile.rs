@@ -29,13 +29,7 @@ impl Regression {
         if name == "reference" {
             return Ok((x, Vec::new()));
         }
-        let Some(t) = ctx.raw.profile.get(name) else {
-            let mut names: Vec<&str> = ctx.raw.profile.keys().map(String::as_str).collect();
-            names.push("reference");
-            return Err(ctx
-                .err(path, format!("unknown profile \"{name}\""))
-                .with_hint(choice_hint(name, &names)));
-        };
+        let t = ctx.profile_table(path, name)?;
         let mut form = Vec::new();
         for (k, v) in t {
             let pp = [key("profile"), key(name), key(k)];

@@ -14,49 +14,49 @@ use crate::error::{Error, Result};
 use crate::numerics::logistic;
 use crate::templates::{BaseDraws, Request};
 
-/// The per-draw values of one evaluation that the quantities read.
-struct Eval<'a> {
+/// The products of one evaluation: the cached ones, or those computed at λ.
+enum Prod<'a> {
+    Cached(&'a Products),
+    Fresh(Products),
+}
+
+/// One evaluation at λ: the per-draw values every quantity reads.
+pub(super) struct Eval<'a> {
     model: &'a Regression,
     n: usize,
     /// Intercept draws α.
-    alpha: &'a [f64],
+    alpha: Vec<f64>,
     /// Noise variances σ² (empty without a noise scale).
-    sigma2: &'a [f64],
+    sigma2: Vec<f64>,
     /// Reference residual variances ρ.
-    rho: &'a [f64],
+    rho: Vec<f64>,
     /// Multiplier of the products per draw (the global scale, or 1).
-    g: &'a [f64],
-    prod: &'a Products,
+    g: Vec<f64>,
+    prod: Prod<'a>,
 }
 
 impl Regression {
-    /// One evaluation ([`crate::templates::Model::simulate`]).
-    pub(super) fn evaluate(
-        &self,
-        h: &[f64],
-        base: &BaseDraws,
-        reqs: &[&Request],
-        out: &mut [Vec<f64>],
-    ) -> Result<()> {
+    /// The evaluation at hyperparameters `h` on `base`
+    /// ([`crate::templates::Model::simulate`] then fills each quantity).
+    pub(super) fn evaluation<'a>(&'a self, h: &[f64], base: &'a BaseDraws) -> Result<Eval<'a>> {
         let ex = RegBase::of(base)?;
         let n = base.n;
         let k = self.priors.priors.len();
         let mut par = vec![Vec::new(); k];
         self.priors.fill(h, &base.cols[..k], &mut par)?;
         let (gu, cu, ru) = (&base.cols[k], &base.cols[k + 1], &base.cols[k + 2]);
-        let alpha = &par[self.intercept];
         let sigma2: Vec<f64> = match self.sigma {
             Some((s, true)) => par[s].clone(),
             Some((s, false)) => par[s].iter().map(|x| x * x).collect(),
             None => Vec::new(),
         };
+        let alpha = std::mem::take(&mut par[self.intercept]);
         let rho: Vec<f64> = (0..n)
             .map(|i| self.ref_var(alpha[i], sigma2.get(i).copied().unwrap_or(0.0)))
             .collect();
         let c = &self.coef;
         let wr2 = c.r2d2_w(h, ru)?;
-        let fresh;
-        let (g, prod): (Vec<f64>, &Products) = if c.cached {
+        let (g, prod) = if c.cached {
             let g = (0..n)
                 .map(|i| c.global(h, gu[i], wr2.get(i).copied().unwrap_or(0.0), rho[i]))
                 .collect();
@@ -64,38 +64,20 @@ impl Regression {
                 .cached
                 .as_ref()
                 .ok_or_else(|| Error::Numeric("cached design products missing".into()))?;
-            (g, prod)
+            (g, Prod::Cached(prod))
         } else {
             let (g, p) = self.recomputed(h, ex, n, gu, cu, &rho)?;
-            fresh = p;
-            (g, &fresh)
+            (g, Prod::Fresh(p))
         };
-        let ev = Eval {
+        Ok(Eval {
             model: self,
             n,
             alpha,
-            sigma2: &sigma2,
-            rho: &rho,
-            g: &g,
+            sigma2,
+            rho,
+            g,
             prod,
-        };
-        for (r, o) in reqs.iter().zip(out.iter_mut()) {
-            o.resize(n, 0.0);
-            let q = r.detail.get::<RegDetail>()?.quantity;
-            match q {
-                RegQuantity::R2 => ev.r2(r, o)?,
-                RegQuantity::R2Marginal => ev.r2_marginal(o),
-                RegQuantity::R2Latent => ev.r2_latent(o),
-                RegQuantity::EffectiveNonzero => ev.effective_nonzero(o)?,
-                RegQuantity::MeanResponse | RegQuantity::EventProb | RegQuantity::Rate => {
-                    ev.at_profile(q, r, o)?
-                }
-                RegQuantity::OddsRatio | RegQuantity::RateRatio => ev.ratio(r, o)?,
-                RegQuantity::Prevalence => ev.prevalence(r, o)?,
-                RegQuantity::SignalSd => ev.signal_sd(o),
-            }
-        }
-        Ok(())
+        })
     }
 
     /// Recomputed kinds: the global scales τ and the products at λ — from the
@@ -196,6 +178,32 @@ impl Regression {
 }
 
 impl Eval<'_> {
+    /// Draws of the quantity of `r` into `o` (resized to the draws).
+    pub(super) fn fill(&self, r: &Request, o: &mut Vec<f64>) -> Result<()> {
+        o.resize(self.n, 0.0);
+        let q = r.detail.get::<RegDetail>()?.quantity;
+        match q {
+            RegQuantity::R2 => self.r2(r, o)?,
+            RegQuantity::R2Marginal => self.r2_marginal(o),
+            RegQuantity::R2Latent => self.r2_latent(o),
+            RegQuantity::EffectiveNonzero => self.effective_nonzero(o)?,
+            RegQuantity::MeanResponse | RegQuantity::EventProb | RegQuantity::Rate => {
+                self.at_profile(q, r, o)?
+            }
+            RegQuantity::OddsRatio | RegQuantity::RateRatio => self.ratio(r, o)?,
+            RegQuantity::Prevalence => self.prevalence(r, o)?,
+            RegQuantity::SignalSd => self.signal_sd(o),
+        }
+        Ok(())
+    }
+
+    fn prod(&self) -> &Products {
+        match &self.prod {
+            Prod::Cached(p) => p,
+            Prod::Fresh(p) => p,
+        }
+    }
+
     fn s2(&self, i: usize) -> f64 {
         self.sigma2.get(i).copied().unwrap_or(0.0)
     }
@@ -205,7 +213,7 @@ impl Eval<'_> {
         self.model
             .needs
             .form_of(&r.profiles)
-            .map(|k| self.prod.forms[k].as_slice())
+            .map(|k| self.prod().forms[k].as_slice())
             .ok_or_else(|| {
                 Error::Numeric(format!(
                     "{}: profile not prepared in the base draws",
@@ -216,8 +224,8 @@ impl Eval<'_> {
 
     /// X_cβ at the design rows, draw i at i·rows.
     fn rows(&self, r: &Request) -> Result<&[f64]> {
-        if self.model.needs.rows && self.prod.rows.len() == self.n * self.model.design.rows() {
-            Ok(&self.prod.rows)
+        if self.model.needs.rows && self.prod().rows.len() == self.n * self.model.design.rows() {
+            Ok(&self.prod().rows)
         } else {
             Err(Error::Numeric(format!(
                 "{}: design rows not prepared in the base draws",
@@ -227,10 +235,10 @@ impl Eval<'_> {
     }
 
     fn r2(&self, r: &Request, o: &mut [f64]) -> Result<()> {
-        let (g, m) = (self.g, self.model);
+        let (g, m) = (&self.g, self.model);
         if m.link == super::Link::Identity {
             for (i, v) in o.iter_mut().enumerate() {
-                *v = ratio(g[i] * g[i] * self.prod.q[i], self.s2(i));
+                *v = ratio(g[i] * g[i] * self.prod().q[i], self.s2(i));
             }
             return Ok(());
         }
@@ -245,22 +253,22 @@ impl Eval<'_> {
     }
 
     fn r2_marginal(&self, o: &mut [f64]) {
-        let g = self.g;
+        let g = &self.g;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = ratio(g[i] * g[i] * self.prod.v[i], self.rho[i]);
+            *v = ratio(g[i] * g[i] * self.prod().v[i], self.rho[i]);
         }
     }
 
     fn r2_latent(&self, o: &mut [f64]) {
-        let g = self.g;
+        let g = &self.g;
         let r3 = std::f64::consts::PI.powi(2) / 3.0;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = ratio(g[i] * g[i] * self.prod.q[i], r3);
+            *v = ratio(g[i] * g[i] * self.prod().q[i], r3);
         }
     }
 
     fn effective_nonzero(&self, o: &mut [f64]) -> Result<()> {
-        let (g, prod) = (self.g, self.prod);
+        let (g, prod) = (&self.g, self.prod());
         if !self.model.coef.cached {
             o.copy_from_slice(&prod.eff);
             return Ok(());
@@ -316,9 +324,9 @@ impl Eval<'_> {
     }
 
     fn signal_sd(&self, o: &mut [f64]) {
-        let g = self.g;
+        let g = &self.g;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = g[i].abs() * self.prod.q[i].sqrt();
+            *v = g[i].abs() * self.prod().q[i].sqrt();
         }
     }
 }
