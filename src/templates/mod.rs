@@ -4,11 +4,19 @@
 //! ordered list of hyperparameters (fixed or free), a generator of base variates
 //! drawn once per fit (common random numbers), and a simulator mapping a full
 //! hyperparameter vector plus base variates to draws of each requested derived
-//! quantity. Templates never see the command line.
+//! quantity. Templates never see the command line, and read the belief file only
+//! through [`crate::input`] (never `spec`, which builds on them).
 //!
-//! To add a template: write `src/templates/<name>.rs` with a `pub static INFO:
-//! TemplateInfo` and a struct implementing [`Model`], a starter file
-//! `model-templates/<name>.toml`, and add one line to [`TEMPLATES`].
+//! A template owns everything about itself: its quantity table ([`quantity`]),
+//! its registry entry [`TemplateInfo`] (catalogue, starter text, `build`, brms
+//! layout) and its [`Model`]. A model validates each belief's request without
+//! changing ([`Model::request`]), is prepared once for all of them
+//! ([`Model::prepare`]), then draws and simulates from plain fields.
+//!
+//! To add a template: write `src/templates/<name>.rs` with its quantity table, a
+//! `pub static INFO: TemplateInfo` and a struct implementing [`Model`], a starter
+//! file `model-templates/<name>.toml` (compiled into `INFO`), and add one line to
+//! [`TEMPLATES`] (DEVELOPERS.md, "Add a model template").
 
 pub mod linear;
 pub mod logistic;

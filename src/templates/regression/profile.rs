@@ -14,7 +14,7 @@ pub(super) type Form = Vec<(usize, f64)>;
 pub(super) type Keyed = (Vec<Vec<f64>>, Form, String);
 
 impl Regression {
-    pub(super) fn unit(&self, j: usize) -> f64 {
+    fn unit(&self, j: usize) -> f64 {
         if self.design.standardised {
             1.0 / self.design.raw_sds[j]
         } else {
