@@ -19,7 +19,7 @@
 //! the linear predictor as deviations from their design means.
 
 use crate::error::{choice_hint, Error, Location, Result};
-use crate::spec::{key, Ctx, Seg};
+use crate::input::{key, Ctx, Seg};
 use nalgebra::DMatrix;
 use std::path::Path;
 

@@ -19,6 +19,7 @@ pub mod error;
 pub mod export;
 pub mod fit;
 pub mod history;
+pub mod input;
 pub mod limits;
 pub mod numerics;
 pub mod output;

@@ -1,7 +1,7 @@
 //! Property-based fuzzing of the belief-file parser and validator:
 //! `spec::parse(text, None, &Overrides::default())` must return `Ok` or `Err` on
 //! arbitrary text and on structured mutations of the shipped starter and demo
-//! files, never panic. Fixed seed and case counts, so the suite is reproducible;
+//! files (taken from the template and demo registries), never panic. Fixed seed and case counts, so the suite is reproducible;
 //! inputs that once broke something live in tests/fuzz-corpus/ and are replayed.
 //! (cargo-fuzz needs a nightly toolchain and libFuzzer; proptest runs in the normal
 //! suite instead.)
@@ -10,31 +10,21 @@ use priorsmith::spec::{parse, Overrides};
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngAlgorithm, TestRng, TestRunner};
 
-const SEEDS: &[(&str, &str)] = &[
-    (
-        "mixture-cure",
-        include_str!("../model-templates/mixture-cure.toml"),
-    ),
-    ("linear", include_str!("../model-templates/linear.toml")),
-    ("logistic", include_str!("../model-templates/logistic.toml")),
-    ("poisson", include_str!("../model-templates/poisson.toml")),
-    (
-        "relapse-free-cure",
-        include_str!("../demo-data/relapse-free-cure.toml"),
-    ),
-    (
-        "two-arm-cure",
-        include_str!("../demo-data/two-arm-cure.toml"),
-    ),
-    (
-        "wide-design-r2",
-        include_str!("../demo-data/wide-design-r2.toml"),
-    ),
-    (
+/// The files the fuzzer starts from: every registered template's starter (its
+/// registry entry holds the text), every compiled-in demo scenario, and the
+/// multi-endpoint batch base, in that order.
+fn seeds() -> Vec<(&'static str, &'static str)> {
+    let mut seeds: Vec<(&str, &str)> = priorsmith::templates::TEMPLATES
+        .iter()
+        .map(|t| (t.name, t.starter))
+        .collect();
+    seeds.extend(priorsmith::demo::SCENARIOS.iter().map(|d| (d.name, d.text)));
+    seeds.push((
         "multi-endpoint",
         include_str!("../demo-data/multi-endpoint/base.toml"),
-    ),
-];
+    ));
+    seeds
+}
 
 /// Replacement values for a number, string or value on the right of `=`.
 const VALUES: &[&str] = &[
@@ -192,10 +182,10 @@ fn runner(cases: u32, seed: u8) -> TestRunner {
 fn the_shipped_files_are_valid() {
     // The fuzzer starts from files that validate (the multi-endpoint base is
     // completed by its batch table, so it only needs to parse).
-    for (name, text) in SEEDS {
+    for (name, text) in seeds() {
         let r = parse(text, None, &Overrides::default());
         assert!(
-            r.is_ok() || *name == "multi-endpoint",
+            r.is_ok() || name == "multi-endpoint",
             "{name}: {:?}",
             r.err()
         );
@@ -220,10 +210,11 @@ fn arbitrary_text_never_panics() {
 
 #[test]
 fn mutated_starters_never_panic() {
-    let strategy = (0..SEEDS.len(), proptest::collection::vec(mutation(), 1..5));
+    let seeds = seeds();
+    let strategy = (0..seeds.len(), proptest::collection::vec(mutation(), 1..5));
     runner(1600, 3)
         .run(&strategy, |(k, muts)| {
-            survives(&apply(SEEDS[k].1, &muts));
+            survives(&apply(seeds[k].1, &muts));
             Ok(())
         })
         .unwrap();

@@ -13,13 +13,15 @@
 //! A family written on another scale (logit-normal, log-logistic) gets a helper
 //! nlpar (`pLogit`) and a comment `p is inv_logit(pLogit): write inv_logit(pLogit) for it in
 //! the non-linear formula`.
-//! For the regression templates (`linear`, `logistic`, `poisson`) the intercept
-//! and the noise sd are brms's own classes `Intercept` and `sigma`, and the
-//! coefficients class `b` (code supplied by `templates::regression::code`).
+//! A template can instead name parameters that are brms classes of their own, and
+//! say which `brm()` call the priors belong to (`templates::BrmsLayout`, found by
+//! the template name recorded in fit.json); its vector priors come as supplied
+//! code.
 
 use super::stan::from_family;
 use super::{check_ident, check_unique, header_lines, num, Header, Item, Lang};
 use crate::error::Result;
+use crate::templates::brms_layout;
 
 /// Reserved words of R (R Language Definition, "Reserved words").
 pub const RESERVED: &[&str] = &[
@@ -47,7 +49,7 @@ pub fn nlpar_name(name: &str) -> String {
 pub fn render(h: &Header, items: &[Item]) -> Result<String> {
     let mut calls: Vec<(Vec<String>, String)> = Vec::new();
     let mut names = Vec::new();
-    let regression = matches!(h.template.as_str(), "linear" | "logistic" | "poisson");
+    let layout = brms_layout(&h.template);
     for it in items {
         match it {
             Item::Scalar(s) => {
@@ -72,25 +74,18 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                 } else if nl != s.parameter {
                     comments.push(format!("nlpar {nl} is the parameter {}", s.parameter));
                 }
-                // The regression templates' intercept and noise sd are brms's own
-                // classes: `Intercept` is the intercept of the centred design (brms
-                // centres population-level predictors), as ours is; `sigma` has its
-                // lower bound built in, so no `lb` is written for it.
-                let native = match (regression, s.parameter.as_str(), f.derived) {
-                    (true, "intercept", None) => Some("Intercept"),
-                    (true, "sigma", None) => Some("sigma"),
-                    _ => None,
-                };
-                if let Some(class) = native {
-                    if class == "Intercept" && (f.lower.is_some() || f.upper.is_some()) {
-                        comments.push(
-                            "brms gives class Intercept no bounds: start the sampler inside them"
-                                .into(),
-                        );
+                // A parameter the template names as a brms class of its own (a
+                // prior on another scale stays a non-linear parameter): no bounds.
+                let native = layout.class(&s.parameter).filter(|_| f.derived.is_none());
+                if let Some(c) = native {
+                    if let Some(note) = c.bounds_note {
+                        if f.lower.is_some() || f.upper.is_some() {
+                            comments.push(note.to_string());
+                        }
                     }
                     calls.push((
                         comments,
-                        format!("set_prior(\"{}\", class = \"{class}\")", f.dist),
+                        format!("set_prior(\"{}\", class = \"{}\")", f.dist, c.class),
                     ));
                     continue;
                 }
@@ -120,17 +115,8 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
     for l in header_lines(h, "brms") {
         out.push_str(&format!("# {l}\n"));
     }
-    if regression {
-        out.push_str(
-            "# For brm(y ~ <the design's columns, in design order>, family = <the template's>):\n\
-             # brms centres the predictors, as priorsmith did; pass `prior = priors` to brm().\n",
-        );
-    } else {
-        out.push_str(
-            "# Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,\n\
-             # e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);\n\
-             # change class / nlpar to match your model. Pass `prior = priors` to brm().\n",
-        );
+    for l in layout.usage {
+        out.push_str(&format!("# {l}\n"));
     }
     out.push_str("library(brms)\npriors <- c(\n");
     let n = calls.len();

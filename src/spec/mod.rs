@@ -1,21 +1,20 @@
 //! Belief files: TOML text → raw serde structures ([`raw`]) → a validated,
-//! typed [`Spec`] that the fitting stage uses. Every error names the file, the
+//! typed [`Spec`] that the fitting stage uses. The raw structures, the source map
+//! and the validation context [`Ctx`] live in [`crate::input`] (below the
+//! templates and the design, which read their tables through it); this module
+//! assembles them and re-exports them for its callers. Every error names the file, the
 //! line, the key path and the bad value, and suggests the nearest valid key or
 //! name where one was misspelt.
 
 pub mod belief;
-pub mod raw;
-pub mod source;
 
 use crate::discrepancy::Kind;
 use crate::error::{choice_hint, nearest, Error, Location, Result};
+pub use crate::input::{key, raw, render, source, Ctx, Seg, SourceMap};
 use crate::target::Target;
 use crate::templates::{self, Hyper, HyperValue, Model, Request};
 use raw::RawSpec;
 use sha2::Digest;
-pub use source::{key, render, Seg, SourceMap};
-use std::cell::RefCell;
-use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
@@ -167,247 +166,6 @@ pub struct Overrides {
     pub cancel: crate::cancel::Cancel,
 }
 
-/// Validation context handed to templates: error helpers that know the source.
-pub struct Ctx<'a> {
-    pub file: Option<&'a Path>,
-    pub map: &'a SourceMap,
-    pub raw: &'a RawSpec,
-    pub base_dir: PathBuf,
-    used_priors: RefCell<BTreeSet<String>>,
-}
-
-fn value_str(v: &toml::Value) -> String {
-    match v {
-        toml::Value::String(s) => format!("\"{s}\""),
-        other => other.to_string(),
-    }
-}
-
-impl<'a> Ctx<'a> {
-    pub fn err(&self, path: &[Seg], msg: impl Into<String>) -> Error {
-        Error::input(
-            Location {
-                file: self.file.map(Path::to_path_buf),
-                line: self.map.line_of(path),
-                key: (!path.is_empty()).then(|| render(path)),
-            },
-            msg,
-        )
-    }
-
-    /// A finite number (integer or float).
-    pub fn num(&self, path: &[Seg], v: &toml::Value) -> Result<f64> {
-        let x = self.num_ext(path, v)?;
-        if !x.is_finite() {
-            return Err(self.err(path, format!("value {x} must be a finite number")));
-        }
-        Ok(x)
-    }
-
-    /// A number that may be ±inf (NaN is never accepted).
-    pub fn num_ext(&self, path: &[Seg], v: &toml::Value) -> Result<f64> {
-        let x = match v {
-            toml::Value::Integer(i) => *i as f64,
-            toml::Value::Float(f) => *f,
-            other => {
-                return Err(self.err(
-                    path,
-                    format!(
-                        "expected a number, found {} ({})",
-                        value_str(other),
-                        other.type_str()
-                    ),
-                ))
-            }
-        };
-        if x.is_nan() {
-            return Err(self.err(path, "value nan is not a number"));
-        }
-        Ok(x)
-    }
-
-    pub fn positive(&self, path: &[Seg], v: &toml::Value) -> Result<f64> {
-        let x = self.num(path, v)?;
-        if x <= 0.0 {
-            return Err(self.err(path, format!("value {x} must be > 0")));
-        }
-        Ok(x)
-    }
-
-    /// A non-negative integer.
-    pub fn count(&self, path: &[Seg], v: &toml::Value) -> Result<u64> {
-        match v {
-            toml::Value::Integer(i) if *i >= 0 => Ok(*i as u64),
-            other => Err(self.err(
-                path,
-                format!("expected a whole number ≥ 0, found {}", value_str(other)),
-            )),
-        }
-    }
-
-    pub fn string<'v>(&self, path: &[Seg], v: &'v toml::Value) -> Result<&'v str> {
-        v.as_str().ok_or_else(|| {
-            self.err(
-                path,
-                format!(
-                    "expected a string, found {} ({})",
-                    value_str(v),
-                    v.type_str()
-                ),
-            )
-        })
-    }
-
-    /// Reject keys outside `allowed`, suggesting the nearest.
-    pub fn check_keys(&self, path: &[Seg], table: &toml::Table, allowed: &[&str]) -> Result<()> {
-        for k in table.keys() {
-            if !allowed.contains(&k.as_str()) {
-                let mut p = path.to_vec();
-                p.push(key(k));
-                return Err(self
-                    .err(&p, format!("unknown key `{k}`"))
-                    .with_hint(choice_hint(k, allowed)));
-            }
-        }
-        Ok(())
-    }
-
-    /// The `[model]` table.
-    pub fn model(&self) -> &toml::Table {
-        static EMPTY: std::sync::OnceLock<toml::Table> = std::sync::OnceLock::new();
-        self.raw
-            .model
-            .as_ref()
-            .unwrap_or_else(|| EMPTY.get_or_init(toml::Table::new))
-    }
-
-    /// A hyperparameter: a number (fixed) or `{ fit = [lo, hi], start = x }` (free).
-    pub fn hyper_value(&self, path: &[Seg], v: &toml::Value) -> Result<HyperValue> {
-        match v {
-            toml::Value::Table(t) => {
-                self.check_keys(path, t, &["fit", "start"])?;
-                let mut fp = path.to_vec();
-                fp.push(key("fit"));
-                let b = t.get("fit").ok_or_else(|| {
-                    self.err(path, "a free hyperparameter needs `fit = [lower, upper]`")
-                        .with_hint(
-                            "write a number to fix it, or `{ fit = [lower, upper] }` to fit it",
-                        )
-                })?;
-                let arr = b.as_array().filter(|a| a.len() == 2).ok_or_else(|| {
-                    self.err(
-                        &fp,
-                        format!("expected [lower, upper], found {}", value_str(b)),
-                    )
-                })?;
-                let mut lp = fp.clone();
-                lp.push(Seg::Index(0));
-                let mut hp = fp.clone();
-                hp.push(Seg::Index(1));
-                let lo = self.num(&lp, &arr[0])?;
-                let hi = self.num(&hp, &arr[1])?;
-                if lo >= hi {
-                    return Err(self.err(
-                        &fp,
-                        format!("bounds [{lo}, {hi}]: the lower bound must be below the upper"),
-                    ));
-                }
-                let start = match t.get("start") {
-                    Some(s) => {
-                        let mut sp = path.to_vec();
-                        sp.push(key("start"));
-                        let x = self.num(&sp, s)?;
-                        if !(x > lo && x < hi) {
-                            return Err(self.err(
-                                &sp,
-                                format!(
-                                    "start {x} must lie strictly inside the bounds [{lo}, {hi}]"
-                                ),
-                            ));
-                        }
-                        Some(x)
-                    }
-                    None => None,
-                };
-                Ok(HyperValue::Free { lo, hi, start })
-            }
-            other => Ok(HyperValue::Fixed(self.num(path, other)?)),
-        }
-    }
-
-    /// Mark `[prior.name]` as used and return it, or a clear error when missing.
-    pub fn prior_table(&self, name: &str, example: &str) -> Result<&'a toml::Table> {
-        self.used_priors.borrow_mut().insert(name.to_string());
-        self.raw.prior.get(name).ok_or_else(|| {
-            self.err(
-                &[key("prior")],
-                format!("missing the prior table [prior.{name}]"),
-            )
-            .with_hint(format!("add\n  [prior.{name}]\n  {example}"))
-        })
-    }
-
-    pub fn has_prior(&self, name: &str) -> bool {
-        self.raw.prior.contains_key(name)
-    }
-
-    /// Covariate values of a named profile; "reference" means every covariate 0.
-    pub fn profile(&self, path: &[Seg], name: &str, covariates: &[String]) -> Result<Vec<f64>> {
-        if name == "reference" {
-            return Ok(vec![0.0; covariates.len()]);
-        }
-        let Some(t) = self.raw.profile.get(name) else {
-            let mut names: Vec<&str> = self.raw.profile.keys().map(String::as_str).collect();
-            names.push("reference");
-            return Err(self
-                .err(path, format!("unknown profile \"{name}\""))
-                .with_hint(choice_hint(name, &names)));
-        };
-        let ppath = [key("profile"), key(name)];
-        let allowed: Vec<&str> = covariates.iter().map(String::as_str).collect();
-        for k in t.keys() {
-            if !allowed.contains(&k.as_str()) {
-                let mut p = ppath.to_vec();
-                p.push(key(k));
-                let msg = if allowed.is_empty() {
-                    format!("profile \"{name}\" names covariate `{k}`, but the model declares no covariates")
-                } else {
-                    format!("profile \"{name}\" names covariate `{k}`, which the model does not declare")
-                };
-                return Err(self.err(&p, msg).with_hint(format!(
-                    "declare it in [model] covariates, or use one of: {}",
-                    if allowed.is_empty() {
-                        "(none)".to_string()
-                    } else {
-                        allowed.join(", ")
-                    }
-                )));
-            }
-        }
-        covariates
-            .iter()
-            .map(|c| match t.get(c) {
-                Some(v) => {
-                    let mut p = ppath.to_vec();
-                    p.push(key(c));
-                    self.num(&p, v)
-                }
-                None => Ok(0.0),
-            })
-            .collect()
-    }
-
-    /// Resolve a path relative to the belief file's folder.
-    pub fn resolve(&self, p: &str) -> PathBuf {
-        let pb = PathBuf::from(p);
-        if pb.is_absolute() {
-            pb
-        } else {
-            self.base_dir.join(pb)
-        }
-    }
-}
-
 /// Turn a toml/serde error into ours, with a "did you mean" for unknown keys.
 fn parse_error(file: Option<&Path>, e: toml::de::Error, text: &str) -> Error {
     let msg = e.message().to_string();
@@ -475,16 +233,7 @@ pub fn from_table(
                 }
             })?;
     let map = SourceMap::new(text);
-    let ctx = Ctx {
-        file,
-        map: &map,
-        raw: &raw,
-        base_dir: file
-            .and_then(Path::parent)
-            .map(Path::to_path_buf)
-            .unwrap_or_else(|| PathBuf::from(".")),
-        used_priors: RefCell::new(BTreeSet::new()),
-    };
+    let ctx = Ctx::new(file, &map, &raw);
     let mut digest = sha2::Sha256::new();
     digest.update(toml::to_string(&table).unwrap_or_default().as_bytes());
     let digest = format!("{:x}", digest.finalize());
@@ -579,12 +328,12 @@ pub fn from_table(
         )
         .with_hint(choice_hint(&template, &templates::names()))
     })?;
-    let model: Arc<dyn Model> = Arc::from((info.build)(&ctx)?);
+    let mut model = (info.build)(&ctx)?;
 
     // Every [prior.*] table must belong to a parameter of the template.
+    let used = ctx.used_priors();
     for name in raw.prior.keys() {
-        if !ctx.used_priors.borrow().contains(name) {
-            let used: Vec<String> = ctx.used_priors.borrow().iter().cloned().collect();
+        if !used.contains(name) {
             let used_ref: Vec<&str> = used.iter().map(String::as_str).collect();
             return Err(ctx
                 .err(
@@ -608,8 +357,13 @@ pub fn from_table(
     for (i, rb) in raw.belief.iter().enumerate() {
         beliefs.push(belief::validate(&ctx, &*model, info, i, rb)?);
     }
+    // The model prepares for every request together (e.g. which design products
+    // the base draws compute), once, before anything draws.
+    let requests: Vec<&Request> = beliefs.iter().map(|b: &Belief| &b.request).collect();
+    model.prepare(&requests)?;
+    let model: Arc<dyn Model> = Arc::from(model);
 
-    // Working memory, now that the beliefs have told the model what to prepare.
+    // Working memory, now that the model is prepared for the beliefs.
     let (need, what) = model.working_bytes(draws);
     let budget = crate::limits::budget_mb(ov.max_memory_mb);
     if need > crate::limits::bytes(budget) {

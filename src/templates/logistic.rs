@@ -3,10 +3,64 @@
 //! prevalence and odds ratios. Machinery, formulas and references:
 //! [`super::regression`].
 
-use super::regression::{self, Link, Q_EFF, Q_MEAN, Q_R2, Q_R2_MARGINAL, Q_SIGNAL};
-use super::{Model, QuantityInfo, TemplateInfo};
+use super::quantity::catalogue;
+use super::regression::quantity::{AT_PROFILE, FOR_CONTRAST};
+use super::regression::{
+    self, q_mean, Link, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_SIGNAL,
+};
+use super::{At, Model, QuantityDef, QuantityInfo, TemplateInfo};
+use crate::dist::Support;
 use crate::error::Result;
-use crate::spec::Ctx;
+use crate::input::Ctx;
+
+/// The quantity table (the catalogue lists it in this order).
+static QUANTITIES: [RegDef; 9] = [
+    Q_R2,
+    Q_R2_MARGINAL,
+    QuantityDef::new(
+        RegQuantity::R2Latent,
+        QuantityInfo::new(
+            "r2_latent",
+            "McKelvey–Zavoina R²: var(η)/(var(η) + π²/3)",
+            "",
+        ),
+        At::Design,
+        Support::Unit,
+    ),
+    Q_EFF,
+    q_mean(Support::Unit),
+    QuantityDef::new(
+        RegQuantity::EventProb,
+        QuantityInfo::new(
+            "event_prob",
+            "event probability at a profile, logistic(η)",
+            AT_PROFILE,
+        ),
+        At::Profile,
+        Support::Unit,
+    ),
+    QuantityDef::new(
+        RegQuantity::Prevalence,
+        QuantityInfo::new(
+            "prevalence",
+            "mean event probability over the design rows",
+            "",
+        ),
+        At::Design,
+        Support::Unit,
+    ),
+    QuantityDef::new(
+        RegQuantity::OddsRatio,
+        QuantityInfo::new(
+            "odds_ratio",
+            "odds ratio for a contrast, exp(δ·β)",
+            FOR_CONTRAST,
+        ),
+        At::Contrast,
+        Support::Positive,
+    ),
+    Q_SIGNAL,
+];
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "logistic",
@@ -15,38 +69,13 @@ pub static INFO: TemplateInfo = TemplateInfo {
         ("intercept", "log-odds of the event at the design mean"),
         ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
     ],
-    quantities: &[
-        Q_R2,
-        Q_R2_MARGINAL,
-        QuantityInfo {
-            name: "r2_latent",
-            about: "McKelvey–Zavoina R²: var(η)/(var(η) + π²/3)",
-            needs: "",
-        },
-        Q_EFF,
-        Q_MEAN,
-        QuantityInfo {
-            name: "event_prob",
-            about: "event probability at a profile, logistic(η)",
-            needs: "profile (optional; default: design mean)",
-        },
-        QuantityInfo {
-            name: "prevalence",
-            about: "mean event probability over the design rows",
-            needs: "",
-        },
-        QuantityInfo {
-            name: "odds_ratio",
-            about: "odds ratio for a contrast, exp(δ·β)",
-            needs: "contrast = \"NAME\" or \"NAME:DELTA\"",
-        },
-        Q_SIGNAL,
-    ],
+    quantities: &catalogue(&QUANTITIES),
     options: &[("template", "\"logistic\"")],
     starter: include_str!("../../model-templates/logistic.toml"),
     build,
+    brms: &regression::code::BRMS,
 };
 
 fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
-    regression::build(ctx, &INFO, Link::Logit)
+    regression::build(ctx, &INFO, Link::Logit, &QUANTITIES)
 }

@@ -20,14 +20,16 @@
 //! incomplete gamma, λ·Γ(1 + 1/k)·P(1/k, (h/λ)^k); 32-point Gauss–Legendre
 //! otherwise); and the difference in cure fraction between two profiles.
 
+use super::quantity::{catalogue, lookup};
 use super::{
-    BaseDraws, Hyper, Model, PriorSet, PriorStatement, QuantityInfo, Request, TemplateInfo,
+    At, BaseDraws, BrmsLayout, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef,
+    QuantityInfo, Request, TemplateInfo,
 };
 use crate::dist::Support;
 use crate::error::{choice_hint, Result};
+use crate::input::raw::RawBelief;
+use crate::input::{key, Ctx, Seg};
 use crate::numerics::{gamma_p, ln_gamma, logistic, norm_cdf, norm_quantile};
-use crate::spec::raw::RawBelief;
-use crate::spec::{key, Ctx, Seg};
 use std::cell::RefCell;
 
 pub static INFO: TemplateInfo = TemplateInfo {
@@ -52,43 +54,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
             "effect of covariate c on log_scale (time ratio)",
         ),
     ],
-    quantities: &[
-        QuantityInfo {
-            name: "cure_fraction",
-            about: "fraction cured, π",
-            needs: "profile (optional)",
-        },
-        QuantityInfo {
-            name: "survival_prob",
-            about: "P(event-free at horizon) = π + (1 − π)S_u(h)",
-            needs: "horizon",
-        },
-        QuantityInfo {
-            name: "event_prob",
-            about: "P(event by horizon) = 1 − survival_prob",
-            needs: "horizon",
-        },
-        QuantityInfo {
-            name: "median_survival",
-            about: "population median survival; inf when π ≥ 0.5",
-            needs: "profile (optional)",
-        },
-        QuantityInfo {
-            name: "median_uncured",
-            about: "median latency of the uncured",
-            needs: "profile (optional)",
-        },
-        QuantityInfo {
-            name: "rmst",
-            about: "restricted mean survival time to horizon",
-            needs: "horizon",
-        },
-        QuantityInfo {
-            name: "cure_difference",
-            about: "cure fraction at profiles[0] minus at profiles[1]",
-            needs: "profiles = [a, b]",
-        },
-    ],
+    quantities: &catalogue(&QUANTITIES),
     options: &[
         ("template", "\"mixture-cure\""),
         (
@@ -110,6 +76,112 @@ pub static INFO: TemplateInfo = TemplateInfo {
     ],
     starter: include_str!("../../model-templates/mixture-cure.toml"),
     build,
+    brms: &BrmsLayout::NONLINEAR,
+};
+
+/// The quantities of the template.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CureQuantity {
+    CureFraction,
+    SurvivalProb,
+    EventProb,
+    MedianSurvival,
+    MedianUncured,
+    Rmst,
+    CureDifference,
+}
+
+impl CureQuantity {
+    /// Whether values are in `time_unit`.
+    fn in_time_unit(self) -> bool {
+        matches!(
+            self,
+            Self::MedianSurvival | Self::MedianUncured | Self::Rmst
+        )
+    }
+
+    /// Whether the quantity is π itself (fixed at 0 when `cure = false`).
+    fn is_cure(self) -> bool {
+        matches!(self, Self::CureFraction | Self::CureDifference)
+    }
+}
+
+/// The quantity table (the catalogue lists it in this order).
+static QUANTITIES: [QuantityDef<CureQuantity>; 7] = {
+    use CureQuantity::*;
+    use Support::{Positive, Real, Unit};
+    [
+        QuantityDef::new(
+            CureFraction,
+            QuantityInfo::new("cure_fraction", "fraction cured, π", "profile (optional)"),
+            At::Profile,
+            Unit,
+        ),
+        QuantityDef::new(
+            SurvivalProb,
+            QuantityInfo::new(
+                "survival_prob",
+                "P(event-free at horizon) = π + (1 − π)S_u(h)",
+                "horizon",
+            ),
+            At::Profile,
+            Unit,
+        )
+        .at_horizon(),
+        QuantityDef::new(
+            EventProb,
+            QuantityInfo::new(
+                "event_prob",
+                "P(event by horizon) = 1 − survival_prob",
+                "horizon",
+            ),
+            At::Profile,
+            Unit,
+        )
+        .at_horizon(),
+        QuantityDef::new(
+            MedianSurvival,
+            QuantityInfo::new(
+                "median_survival",
+                "population median survival; inf when π ≥ 0.5",
+                "profile (optional)",
+            ),
+            At::Profile,
+            Positive,
+        )
+        .may_be_infinite(),
+        QuantityDef::new(
+            MedianUncured,
+            QuantityInfo::new(
+                "median_uncured",
+                "median latency of the uncured",
+                "profile (optional)",
+            ),
+            At::Profile,
+            Positive,
+        ),
+        QuantityDef::new(
+            Rmst,
+            QuantityInfo::new(
+                "rmst",
+                "restricted mean survival time to horizon",
+                "horizon",
+            ),
+            At::Profile,
+            Positive,
+        )
+        .at_horizon(),
+        QuantityDef::new(
+            CureDifference,
+            QuantityInfo::new(
+                "cure_difference",
+                "cure fraction at profiles[0] minus at profiles[1]",
+                "profiles = [a, b]",
+            ),
+            At::TwoProfiles,
+            Real,
+        ),
+    ]
 };
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -213,14 +285,6 @@ impl Latency {
 
 /// ln(−ln ½) and the other latencies' w(½) = 0, for the median of the uncured.
 const LN_LN2: f64 = -0.366_512_920_581_664_3;
-
-const CURE: usize = 0;
-const SURV: usize = 1;
-const EVENT: usize = 2;
-const MEDIAN: usize = 3;
-const MEDIAN_U: usize = 4;
-const RMST: usize = 5;
-const CURE_DIFF: usize = 6;
 
 pub struct MixtureCure {
     pub latency: Latency,
@@ -396,28 +460,28 @@ impl MixtureCure {
         (pi, ls, k)
     }
 
-    /// Quantity `code` of one draw; `lh` = ln h.
+    /// Quantity `q` of one draw (not the two-profile cure difference); `lh` = ln h.
     #[allow(clippy::too_many_arguments)]
     #[inline]
-    fn value(&self, code: usize, pi: f64, ls: f64, k: f64, h: f64, lh: f64) -> f64 {
+    fn value(&self, q: CureQuantity, pi: f64, ls: f64, k: f64, h: f64, lh: f64) -> f64 {
         let lat = self.latency;
-        match code {
-            CURE => pi,
-            SURV => pi + (1.0 - pi) * lat.surv_log(lh, ls, k),
-            EVENT => (1.0 - pi) * (1.0 - lat.surv_log(lh, ls, k)),
-            MEDIAN => {
+        match q {
+            CureQuantity::CureFraction => pi,
+            CureQuantity::SurvivalProb => pi + (1.0 - pi) * lat.surv_log(lh, ls, k),
+            CureQuantity::EventProb => (1.0 - pi) * (1.0 - lat.surv_log(lh, ls, k)),
+            CureQuantity::MedianSurvival => {
                 if pi >= 0.5 {
                     f64::INFINITY
                 } else {
                     lat.surv_inv((0.5 - pi) / (1.0 - pi), ls, k)
                 }
             }
-            MEDIAN_U => match lat {
+            CureQuantity::MedianUncured => match lat {
                 Latency::Weibull | Latency::Exponential => (ls + LN_LN2 / k).exp(),
                 _ => ls.exp(),
             },
-            RMST => pi * h + (1.0 - pi) * lat.integral(h, ls, k, &self.gl),
-            _ => f64::NAN,
+            CureQuantity::Rmst => pi * h + (1.0 - pi) * lat.integral(h, ls, k, &self.gl),
+            CureQuantity::CureDifference => f64::NAN,
         }
     }
 }
@@ -432,24 +496,21 @@ impl Model for MixtureCure {
     }
 
     fn request(&self, ctx: &Ctx, path: &[Seg], quantity: &str, raw: &RawBelief) -> Result<Request> {
-        let code = INFO
-            .quantities
-            .iter()
-            .position(|q| q.name == quantity)
-            .unwrap_or(usize::MAX);
         let sub = |k: &str| {
             let mut p = path.to_vec();
             p.push(key(k));
             p
         };
-        if self.cure.is_none() && matches!(code, CURE | CURE_DIFF) {
+        let def = lookup(&QUANTITIES, quantity)
+            .ok_or_else(|| ctx.err(&sub("quantity"), format!("unknown quantity \"{quantity}\"")))?;
+        let q = def.kind;
+        if self.cure.is_none() && q.is_cure() {
             return Err(ctx.err(
                 &sub("quantity"),
                 format!("{quantity} is fixed at 0 when [model] cure = false"),
             ));
         }
-        let needs_h = matches!(code, SURV | EVENT | RMST);
-        let horizon = match (&raw.horizon, needs_h) {
+        let horizon = match (&raw.horizon, def.horizon) {
             (Some(v), true) => {
                 let h = ctx.num(&sub("horizon"), v)?;
                 if h <= 0.0 {
@@ -476,7 +537,7 @@ impl Model for MixtureCure {
                 "mixture-cure quantities take no `contrast`; use `profiles` for cure_difference",
             ));
         }
-        let (profiles, names) = if code == CURE_DIFF {
+        let (profiles, names) = if def.at == At::TwoProfiles {
             let ps = raw
                 .profiles
                 .as_ref()
@@ -516,13 +577,7 @@ impl Model for MixtureCure {
                 vec![name],
             )
         };
-        let (support, allows_inf) = match code {
-            CURE | SURV | EVENT => (Support::Unit, false),
-            MEDIAN => (Support::Positive, true),
-            MEDIAN_U | RMST => (Support::Positive, false),
-            _ => (Support::Real, false),
-        };
-        let unit = matches!(code, MEDIAN | MEDIAN_U | RMST).then(|| self.time_unit.clone());
+        let unit = q.in_time_unit().then(|| self.time_unit.clone());
         let mut label = quantity.to_string();
         if let Some(h) = horizon {
             label.push_str(&format!(" at {h} {}", self.time_unit));
@@ -532,12 +587,12 @@ impl Model for MixtureCure {
         }
         Ok(Request {
             quantity: quantity.to_string(),
-            code,
+            detail: Detail::new(q),
             horizon,
             profiles,
             profile_names: names,
-            support,
-            allows_inf,
+            support: def.support,
+            allows_inf: def.allows_inf,
             label,
             unit,
         })
@@ -587,9 +642,10 @@ impl Model for MixtureCure {
                 used - 1
             };
             for (r, o) in reqs.iter().zip(out.iter_mut()) {
+                let q = *r.detail.get::<CureQuantity>()?;
                 o.resize(base.n, 0.0);
                 let j = profile_of(&r.profiles[0], cache);
-                if r.code == CURE_DIFF {
+                if q == CureQuantity::CureDifference {
                     let j2 = profile_of(&r.profiles[1], cache);
                     let (a, b) = (&cache[j].1, &cache[j2].1);
                     for (i, v) in o.iter_mut().enumerate() {
@@ -602,30 +658,31 @@ impl Model for MixtureCure {
                     // One loop per quantity and shape case, so neither choice is
                     // made per draw (exponential latency has shape 1).
                     macro_rules! each {
-                        ($code:expr) => {
+                        ($q:expr) => {
                             match self.shape {
                                 Some(s) => {
                                     let ks = &p[s];
                                     for (i, v) in o.iter_mut().enumerate() {
-                                        *v = self.value($code, pis[i], lss[i], ks[i], hz, lh);
+                                        *v = self.value($q, pis[i], lss[i], ks[i], hz, lh);
                                     }
                                 }
                                 None => {
                                     for (i, v) in o.iter_mut().enumerate() {
-                                        *v = self.value($code, pis[i], lss[i], 1.0, hz, lh);
+                                        *v = self.value($q, pis[i], lss[i], 1.0, hz, lh);
                                     }
                                 }
                             }
                         };
                     }
-                    match r.code {
-                        CURE => each!(CURE),
-                        SURV => each!(SURV),
-                        EVENT => each!(EVENT),
-                        MEDIAN => each!(MEDIAN),
-                        MEDIAN_U => each!(MEDIAN_U),
-                        RMST => each!(RMST),
-                        other => each!(other),
+                    use CureQuantity::*;
+                    match q {
+                        CureFraction => each!(CureFraction),
+                        SurvivalProb => each!(SurvivalProb),
+                        EventProb => each!(EventProb),
+                        MedianSurvival => each!(MedianSurvival),
+                        MedianUncured => each!(MedianUncured),
+                        Rmst => each!(Rmst),
+                        CureDifference => each!(CureDifference),
                     }
                 }
             }

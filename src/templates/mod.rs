@@ -4,38 +4,37 @@
 //! ordered list of hyperparameters (fixed or free), a generator of base variates
 //! drawn once per fit (common random numbers), and a simulator mapping a full
 //! hyperparameter vector plus base variates to draws of each requested derived
-//! quantity. Templates never see the command line.
+//! quantity. Templates never see the command line, and read the belief file only
+//! through [`crate::input`] (never `spec`, which builds on them).
 //!
-//! To add a template: write `src/templates/<name>.rs` with a `pub static INFO:
-//! TemplateInfo` and a struct implementing [`Model`], a starter file
-//! `model-templates/<name>.toml`, and add one line to [`TEMPLATES`].
+//! A template owns everything about itself: its quantity table ([`quantity`]),
+//! its registry entry [`TemplateInfo`] (catalogue, starter text, `build`, brms
+//! layout) and its [`Model`]. A model validates each belief's request without
+//! changing ([`Model::request`]), is prepared once for all of them
+//! ([`Model::prepare`]), then draws and simulates from plain fields.
+//!
+//! To add a template: write `src/templates/<name>.rs` with its quantity table, a
+//! `pub static INFO: TemplateInfo` and a struct implementing [`Model`], a starter
+//! file `model-templates/<name>.toml` (compiled into `INFO`), and add one line to
+//! [`TEMPLATES`] (DEVELOPERS.md, "Add a model template").
 
 pub mod linear;
 pub mod logistic;
 pub mod mixture_cure;
 pub mod poisson;
 pub mod priors;
+pub mod quantity;
 pub mod regression;
 
 use crate::dist::Support;
 use crate::error::Result;
-use crate::spec::raw::RawBelief;
-use crate::spec::{Ctx, Seg};
+use crate::input::raw::RawBelief;
+use crate::input::{Ctx, Seg};
 use std::any::Any;
 
+pub use crate::input::HyperValue;
 pub use priors::{PriorSet, ScalarPrior};
-
-/// A hyperparameter's value in the belief file.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum HyperValue {
-    Fixed(f64),
-    Free {
-        lo: f64,
-        hi: f64,
-        start: Option<f64>,
-    },
-}
+pub use quantity::{At, Detail, QuantityDef};
 
 /// One hyperparameter, named `<parameter>.<hyperparameter>` (e.g. `cure_logit.mean`).
 #[derive(Debug, Clone, serde::Serialize)]
@@ -79,8 +78,8 @@ impl Hyper {
 #[derive(Debug, Clone)]
 pub struct Request {
     pub quantity: String,
-    /// The template's own code for the quantity.
-    pub code: usize,
+    /// The template's own description: its quantity and what it resolved.
+    pub detail: Detail,
     pub horizon: Option<f64>,
     /// Resolved covariate vectors (one, or two for a contrast).
     pub profiles: Vec<Vec<f64>>,
@@ -100,6 +99,12 @@ pub struct QuantityInfo {
     pub needs: &'static str,
 }
 
+impl QuantityInfo {
+    pub const fn new(name: &'static str, about: &'static str, needs: &'static str) -> Self {
+        Self { name, about, needs }
+    }
+}
+
 /// Catalogue entry for a template.
 pub struct TemplateInfo {
     pub name: &'static str,
@@ -112,6 +117,50 @@ pub struct TemplateInfo {
     /// Commented starter file (compiled in).
     pub starter: &'static str,
     pub build: fn(&Ctx) -> Result<Box<dyn Model>>,
+    /// How brms states the template's scalar parameters.
+    pub brms: &'static BrmsLayout,
+}
+
+/// How brms states a template's scalar parameters: read by `export::brms`, which
+/// finds it by the template name recorded in fit.json ([`brms_layout`]).
+pub struct BrmsLayout {
+    /// Comment lines above the prior list: the `brm()` call the priors belong to.
+    pub usage: &'static [&'static str],
+    /// Parameters that are brms classes of their own; every other scalar
+    /// parameter is a non-linear parameter (class "b", `nlpar`).
+    pub classes: &'static [BrmsClass],
+}
+
+/// A parameter that brms knows as a class of its own.
+pub struct BrmsClass {
+    pub parameter: &'static str,
+    pub class: &'static str,
+    /// brms takes no bounds for the class: what to say when the prior has them.
+    /// `None`: the class has its bounds built in (nothing written, nothing said).
+    pub bounds_note: Option<&'static str>,
+}
+
+impl BrmsLayout {
+    /// Every parameter a non-linear parameter of an intercept-only formula.
+    pub const NONLINEAR: BrmsLayout = BrmsLayout {
+        usage: &[
+            "Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula,",
+            "e.g. bf(y ~ <your model in these parameters>, cureLogit ~ 1, nl = TRUE);",
+            "change class / nlpar to match your model. Pass `prior = priors` to brm().",
+        ],
+        classes: &[],
+    };
+
+    /// The class of `parameter`, when brms has one for it.
+    pub fn class(&self, parameter: &str) -> Option<&'static BrmsClass> {
+        self.classes.iter().find(|c| c.parameter == parameter)
+    }
+}
+
+/// The brms layout of the template named `template` ([`BrmsLayout::NONLINEAR`]
+/// for a name this version does not know).
+pub fn brms_layout(template: &str) -> &'static BrmsLayout {
+    find(template).map_or(&BrmsLayout::NONLINEAR, |t| t.brms)
 }
 
 impl TemplateInfo {
@@ -153,8 +202,15 @@ pub trait Model: Send + Sync {
     fn template(&self) -> &'static str;
     /// All hyperparameters, fixed and free, in a fixed order.
     fn hypers(&self) -> &[Hyper];
-    /// Validate a belief's quantity and its options (horizon, profile …).
+    /// Validate a belief's quantity and its options (horizon, profile …) and say
+    /// what it needs; the model is not changed.
     fn request(&self, ctx: &Ctx, path: &[Seg], quantity: &str, raw: &RawBelief) -> Result<Request>;
+    /// Prepare for the validated requests: called once, after every belief is
+    /// validated and before any base draws, with every request the beliefs made
+    /// (e.g. the regression templates record which design products to compute).
+    fn prepare(&mut self, _requests: &[&Request]) -> Result<()> {
+        Ok(())
+    }
     /// Base variates for `n` draws from the streams (and points) of `plan`.
     fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws;
     /// Draws of each requested quantity at hyperparameters `h` (full vector).

@@ -3,10 +3,44 @@
 //! shrinkage prior on β chosen from beliefs about R², rates and rate ratios.
 //! Machinery, formulas and references: [`super::regression`].
 
-use super::regression::{self, Link, Q_EFF, Q_MEAN, Q_R2, Q_R2_MARGINAL, Q_SIGNAL};
-use super::{Model, QuantityInfo, TemplateInfo};
+use super::quantity::catalogue;
+use super::regression::quantity::{AT_PROFILE, FOR_CONTRAST};
+use super::regression::{
+    self, q_mean, Link, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_SIGNAL,
+};
+use super::{At, Model, QuantityDef, QuantityInfo, TemplateInfo};
+use crate::dist::Support;
 use crate::error::Result;
-use crate::spec::Ctx;
+use crate::input::Ctx;
+
+/// The quantity table (the catalogue lists it in this order).
+static QUANTITIES: [RegDef; 7] = [
+    Q_R2,
+    Q_R2_MARGINAL,
+    Q_EFF,
+    q_mean(Support::Positive),
+    QuantityDef::new(
+        RegQuantity::Rate,
+        QuantityInfo::new(
+            "rate",
+            "rate per unit exposure at a profile, exp(η)",
+            AT_PROFILE,
+        ),
+        At::Profile,
+        Support::Positive,
+    ),
+    QuantityDef::new(
+        RegQuantity::RateRatio,
+        QuantityInfo::new(
+            "rate_ratio",
+            "rate ratio for a contrast, exp(δ·β)",
+            FOR_CONTRAST,
+        ),
+        At::Contrast,
+        Support::Positive,
+    ),
+    Q_SIGNAL,
+];
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "poisson",
@@ -15,31 +49,16 @@ pub static INFO: TemplateInfo = TemplateInfo {
         ("intercept", "log rate per unit exposure at the design mean"),
         ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
     ],
-    quantities: &[
-        Q_R2,
-        Q_R2_MARGINAL,
-        Q_EFF,
-        Q_MEAN,
-        QuantityInfo {
-            name: "rate",
-            about: "rate per unit exposure at a profile, exp(η)",
-            needs: "profile (optional; default: design mean)",
-        },
-        QuantityInfo {
-            name: "rate_ratio",
-            about: "rate ratio for a contrast, exp(δ·β)",
-            needs: "contrast = \"NAME\" or \"NAME:DELTA\"",
-        },
-        Q_SIGNAL,
-    ],
+    quantities: &catalogue(&QUANTITIES),
     options: &[
         ("template", "\"poisson\""),
         ("exposure", "exposure of every design row (offset log exposure; default 1); mean_response = exposure · rate"),
     ],
     starter: include_str!("../../model-templates/poisson.toml"),
     build,
+    brms: &regression::code::BRMS,
 };
 
 fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
-    regression::build(ctx, &INFO, Link::Log)
+    regression::build(ctx, &INFO, Link::Log, &QUANTITIES)
 }

@@ -7,8 +7,8 @@
 use super::{Hyper, HyperValue, PriorStatement};
 use crate::dist::{self, Base, Continuous, FamilyInfo};
 use crate::error::{choice_hint, Result};
+use crate::input::{key, Ctx, Seg};
 use crate::rng;
-use crate::spec::{key, Ctx, Seg};
 
 #[derive(Debug, Clone)]
 pub struct ScalarPrior {

@@ -42,13 +42,40 @@
 //! `sigma = sqrt(sigma2)` (transformed parameter); PyMC `sigma2 =
 //! InverseGamma(alpha, beta)` and `sigma` a Deterministic. brms states priors on
 //! σ only, so the brms export refuses it.
+//!
+//! The scalar parameters in brms ([`BRMS`]): the intercept and the noise sd are
+//! brms's own classes. `Intercept` is the intercept of the centred design (brms
+//! centres population-level predictors), as ours is, and takes no bounds;
+//! `sigma` has its lower bound built in, so no `lb` is written for it.
 
 use super::coef::{CoefPrior, Kind};
 use super::Link;
 use crate::design::Design;
 use crate::numerics::format::code as num;
-use crate::templates::Code;
+use crate::templates::{BrmsClass, BrmsLayout, Code};
 use std::collections::BTreeMap;
+
+/// The regression templates in brms: `brm(y ~ <design columns>, family = …)`.
+pub static BRMS: BrmsLayout = BrmsLayout {
+    usage: &[
+        "For brm(y ~ <the design's columns, in design order>, family = <the template's>):",
+        "brms centres the predictors, as priorsmith did; pass `prior = priors` to brm().",
+    ],
+    classes: &[
+        BrmsClass {
+            parameter: "intercept",
+            class: "Intercept",
+            bounds_note: Some(
+                "brms gives class Intercept no bounds: start the sampler inside them",
+            ),
+        },
+        BrmsClass {
+            parameter: "sigma",
+            class: "sigma",
+            bounds_note: None,
+        },
+    ],
+};
 
 fn section(code: &mut Code, lang: &str, sec: &str, lines: Vec<String>) {
     code.entry(lang.to_string())

@@ -35,8 +35,8 @@
 
 use crate::design::Design;
 use crate::error::Result;
+use crate::input::{key, Ctx, Seg};
 use crate::rng;
-use crate::spec::{key, Ctx, Seg};
 use crate::templates::{Hyper, HyperValue};
 use nalgebra::DMatrix;
 use rayon::prelude::*;

@@ -1,0 +1,228 @@
+//! Base draws of a regression template: the prior columns, the coefficient
+//! streams, and the λ-free work cached per set of draws — the design products of
+//! the cached coefficient kinds, or the normals and local variates of the
+//! recomputed kinds with, for a regularised horseshoe, the tabulated products
+//! ([`super::table`]) kept in a cache shared by the bases of one fit. Also the
+//! working-memory estimate of both.
+
+use super::{coef, table, Regression};
+use crate::error::{Error, Result};
+use crate::rng;
+use crate::templates::{BaseDraws, Hyper, HyperValue};
+use coef::{Eff, Kind, Products};
+use std::sync::{Arc, Mutex};
+
+/// The last regularised-horseshoe table, keyed by the draw plan: a later set of
+/// base draws with the same streams and no more draws uses its first rows (draw i
+/// depends only on its own streams), so the coarse and refit bases of a fit share
+/// the full base's set-up.
+pub(super) type TableCache = Mutex<Option<(rng::Plan, Arc<table::Table>)>>;
+
+/// λ-free work cached per set of base draws.
+pub(super) struct RegBase {
+    /// Cached kinds: products with unit global multiplier.
+    pub(super) cached: Option<Products>,
+    /// Recomputed kinds: normals and local variates, draws × p.
+    pub(super) z: Vec<f64>,
+    pub(super) loc: Vec<f64>,
+    /// Regularised horseshoe: tabulated design products ([`table`]).
+    pub(super) table: Option<Arc<table::Table>>,
+    /// With the table: κ_i = √(IG(ν/2, ν/2) quantile of draw i's slab uniform), so
+    /// that c_i = s·κ_i without a quantile per evaluation.
+    pub(super) kappa: Vec<f64>,
+    /// A fault met while drawing (a poisoned table-cache lock): `draw_base` cannot
+    /// fail, so [`Regression::evaluation`] reports it as [`Error::Internal`].
+    pub(super) fault: Option<String>,
+}
+
+impl RegBase {
+    /// The cached work of `base`, or the fault met while drawing it.
+    pub(super) fn of(base: &BaseDraws) -> Result<&RegBase> {
+        let ex = base
+            .extra
+            .as_ref()
+            .and_then(|e| e.downcast_ref::<RegBase>())
+            .ok_or_else(|| {
+                Error::Numeric("base draws were not made by a regression template".into())
+            })?;
+        match &ex.fault {
+            Some(m) => Err(Error::Internal(m.clone())),
+            None => Ok(ex),
+        }
+    }
+}
+
+/// The bounds of a hyperparameter (a fixed value is its own bounds).
+fn bounds(h: &Hyper) -> (f64, f64) {
+    match h.value {
+        HyperValue::Fixed(x) => (x, x),
+        HyperValue::Free { lo, hi, .. } => (lo, hi),
+    }
+}
+
+/// The message of a poisoned table-cache lock.
+const POISONED: &str = "the regression table cache is unusable: a thread panicked while holding it";
+
+impl Regression {
+    /// The regularised-horseshoe table ([`table`]) for these base draws, when the
+    /// beliefs need the design quadratic form but not the rows, slab_df is fixed
+    /// and the global or slab scale is free. `Err`: the cache lock is poisoned.
+    fn tabulate(
+        &self,
+        h0: &[f64],
+        cols: &[Vec<f64>],
+        z: &[f64],
+        loc: &[f64],
+        plan: &rng::Plan,
+    ) -> std::result::Result<Option<Arc<table::Table>>, &'static str> {
+        let c = &self.coef;
+        let hy = &self.priors.hypers;
+        let n = cols[cols.len() - 3].len();
+        if let Some((p, t)) = self.tables.lock().map_err(|_| POISONED)?.as_ref() {
+            if p == plan && t.draws >= n {
+                return Ok(Some(t.clone()));
+            }
+        }
+        if c.kind != Kind::RegHorseshoe || hy[c.idx[2]].is_free() {
+            return Ok(None);
+        }
+        let ((tlo, thi), (slo, shi)) = (bounds(&hy[c.idx[0]]), bounds(&hy[c.idx[1]]));
+        let (ulo, uhi) = ((tlo / shi).ln(), (thi / slo).ln());
+        if !(ulo.is_finite() && uhi.is_finite() && uhi > ulo) {
+            return Ok(None);
+        }
+        let k = cols.len() - 3;
+        let (gu, cu) = (&cols[k], &cols[k + 1]);
+        let mut unit = h0.to_vec();
+        unit[c.idx[0]] = 1.0;
+        unit[c.idx[1]] = 1.0;
+        let Ok(kappa) = c.slabs(&unit, cu) else {
+            return Ok(None);
+        };
+        let a: Vec<f64> = gu
+            .iter()
+            .zip(&kappa)
+            .map(|(g, k)| c.global(&unit, *g, 0.0, 0.0) / k)
+            .collect();
+        if a.iter().any(|x| !(x.is_finite() && *x > 0.0)) {
+            return Ok(None);
+        }
+        let Some(t) = table::Table::build(&self.design, &a, z, loc, ulo, uhi) else {
+            return Ok(None);
+        };
+        let t = Arc::new(t);
+        *self.tables.lock().map_err(|_| POISONED)? = Some((*plan, t.clone()));
+        Ok(Some(t))
+    }
+
+    /// The base draws ([`crate::templates::Model::draw_base`]).
+    pub(super) fn draw(&self, n: usize, plan: &rng::Plan) -> BaseDraws {
+        let (seed, block) = (plan.seed, plan.block);
+        let mut cols = self.priors.draw_base(n, plan);
+        cols.push(plan.uniforms(coef::GLOBAL_STREAM, n));
+        cols.push(plan.uniforms(coef::SLAB_STREAM, n));
+        cols.push(plan.uniforms(coef::R2_STREAM, n));
+        let needs = &self.needs;
+        let p = self.design.cols();
+        let h0: Vec<f64> = self
+            .priors
+            .hypers
+            .iter()
+            .map(Hyper::default_value)
+            .collect();
+        let d = &self.design;
+        let c = &self.coef;
+        let mut ex = RegBase {
+            cached: None,
+            z: Vec::new(),
+            loc: Vec::new(),
+            table: None,
+            kappa: Vec::new(),
+            fault: None,
+        };
+        if c.cached {
+            let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
+                c.base_draw(d, seed, block, i, z, w);
+                for x in w.iter_mut() {
+                    *x = c.cached_w(&h0, *x);
+                }
+            };
+            let eff = if needs.eff { Eff::Store } else { Eff::None };
+            ex.cached = Some(coef::products(
+                d,
+                n,
+                &needs.forms,
+                needs.rows,
+                needs.q,
+                eff,
+                true,
+                &fill,
+            ));
+        } else {
+            use rayon::prelude::*;
+            ex.z = vec![0.0; n * p];
+            ex.loc = vec![0.0; n * p];
+            ex.z.par_chunks_mut(p)
+                .zip(ex.loc.par_chunks_mut(p))
+                .enumerate()
+                .for_each(|(i, (z, l))| c.base_draw(d, seed, block, i, z, l));
+            // Bases on the fresh streams only judge the fitted point, and the
+            // replicates of the Monte Carlo error take a gradient there (a few
+            // evaluations each): the exact products are cheaper than a table.
+            if needs.q && !needs.rows && plan.block == rng::FIT_STREAMS {
+                match self.tabulate(&h0, &cols, &ex.z, &ex.loc, plan) {
+                    Ok(t) => ex.table = t,
+                    Err(m) => ex.fault = Some(m.to_string()),
+                }
+                if ex.table.is_some() {
+                    let mut unit = h0.clone();
+                    unit[c.idx[1]] = 1.0;
+                    ex.kappa = c.slabs(&unit, &cols[cols.len() - 2]).unwrap_or_default();
+                }
+            }
+        }
+        BaseDraws {
+            n,
+            cols,
+            extra: Some(Box::new(ex)),
+        }
+    }
+
+    /// Bytes of the base draws ([`Regression::draw`], above) for n draws, twice
+    /// (the fit and the fresh-draw judgement hold one set each), plus one
+    /// simulation's per-draw vectors. Per draw: the prior columns and three coefficient
+    /// streams (8 B each); cached kinds: q, v and one value per registered profile
+    /// form (8 B each), n s_j² w_j² for effective_nonzero (p × 4 B, f32) and X_cβ
+    /// for row-level quantities (rows × 8 B); recomputed kinds: the normals and
+    /// local variates (2p × 8 B), X_cβ being recomputed per evaluation.
+    pub(super) fn bytes_for(&self, n: usize) -> (u64, String) {
+        let what = format!(
+            "{n} draws × {} design columns ({} rows)",
+            self.design.cols(),
+            self.design.rows()
+        );
+        let needs = &self.needs;
+        let (n, p, r) = (
+            n as u64,
+            self.design.cols() as u64,
+            self.design.rows() as u64,
+        );
+        let k = self.priors.priors.len() as u64;
+        let forms = needs.forms.len() as u64;
+        let mut per_draw = 8 * (k + 3);
+        if self.coef.cached {
+            per_draw += 8 * (2 + forms);
+            if needs.eff {
+                per_draw += 4 * p;
+            }
+        } else {
+            per_draw += 16 * p;
+        }
+        if needs.rows {
+            per_draw += 8 * r;
+        }
+        // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
+        let sim = 8 * (k + 8 + 3 * forms.max(1));
+        (n.saturating_mul(2 * per_draw + sim), what)
+    }
+}

@@ -1,0 +1,151 @@
+//! Requests of the regression templates: validating a belief's quantity and its
+//! options against the template's quantity table (pure: the model is not
+//! changed), and, once every belief is validated, the [`Needs`] of all requests
+//! together — which design products the base draws compute.
+
+use super::profile::Form;
+use super::quantity::RegQuantity;
+use super::Regression;
+use crate::error::Result;
+use crate::input::raw::RawBelief;
+use crate::input::{key, Ctx, Seg};
+use crate::templates::quantity::lookup;
+use crate::templates::{At, Detail, Request};
+
+/// What a regression request resolved: its quantity and, at a profile or for a
+/// contrast, the sparse linear form a with η − α = aᵀβ.
+#[derive(Debug)]
+pub(super) struct RegDetail {
+    pub(super) quantity: RegQuantity,
+    pub(super) form: Option<Form>,
+}
+
+/// What the beliefs ask for beyond the always-computed products.
+#[derive(Debug, Clone, Default)]
+pub(super) struct Needs {
+    /// The linear predictor at every design row.
+    pub(super) rows: bool,
+    /// The design quadratic form βᵀSβ.
+    pub(super) q: bool,
+    /// The shrinkage terms of `effective_nonzero`.
+    pub(super) eff: bool,
+    /// The profiles of each distinct linear form (the key a request finds its
+    /// form by) and the forms, in the same order: first request first.
+    pub(super) keys: Vec<Vec<Vec<f64>>>,
+    pub(super) forms: Vec<Form>,
+}
+
+impl Needs {
+    /// What the requests need together.
+    pub(super) fn of(requests: &[&Request], model: &Regression) -> Result<Self> {
+        let mut needs = Needs::default();
+        for r in requests {
+            let d = r.detail.get::<RegDetail>()?;
+            if let Some(form) = &d.form {
+                if !needs.keys.contains(&r.profiles) {
+                    needs.keys.push(r.profiles.clone());
+                    needs.forms.push(form.clone());
+                }
+            }
+            needs.rows |= d.quantity.needs_rows(model.link);
+            needs.q |= d.quantity.needs_quadratic();
+            needs.eff |= d.quantity.needs_shrinkage();
+        }
+        Ok(needs)
+    }
+
+    /// The index of the linear form of `profiles`.
+    pub(super) fn form_of(&self, profiles: &[Vec<f64>]) -> Option<usize> {
+        self.keys.iter().position(|k| k == profiles)
+    }
+}
+
+fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
+    let mut p = path.to_vec();
+    p.push(key(k));
+    p
+}
+
+impl Regression {
+    /// Validate a belief's quantity and options ([`crate::templates::Model::request`]).
+    pub(super) fn resolve(
+        &self,
+        ctx: &Ctx,
+        path: &[Seg],
+        quantity: &str,
+        raw: &RawBelief,
+    ) -> Result<Request> {
+        let def = lookup(self.quantities, quantity).ok_or_else(|| {
+            ctx.err(
+                &sub(path, "quantity"),
+                format!("unknown quantity \"{quantity}\""),
+            )
+        })?;
+        if raw.horizon.is_some() {
+            return Err(ctx.err(
+                &sub(path, "horizon"),
+                format!("{quantity} takes no horizon"),
+            ));
+        }
+        if raw.profiles.is_some() {
+            return Err(ctx
+                .err(
+                    &sub(path, "profiles"),
+                    format!("{quantity} takes no `profiles`"),
+                )
+                .with_hint("use `profile = \"NAME\"`, or `contrast` for odds_ratio / rate_ratio"));
+        }
+        if raw.profile.is_some() && def.at != At::Profile {
+            return Err(ctx.err(
+                &sub(path, "profile"),
+                format!("{quantity} is a design-level quantity and takes no `profile`"),
+            ));
+        }
+        if raw.contrast.is_some() && def.at != At::Contrast {
+            return Err(ctx.err(
+                &sub(path, "contrast"),
+                format!("{quantity} takes no `contrast` (only odds_ratio and rate_ratio do)"),
+            ));
+        }
+        let mut label = quantity.to_string();
+        let (profiles, names, form) = match def.at {
+            At::Profile => {
+                let name = raw
+                    .profile
+                    .clone()
+                    .unwrap_or_else(|| "reference".to_string());
+                let (x, form) = self.profile(ctx, &sub(path, "profile"), &name)?;
+                if name != "reference" {
+                    label.push_str(&format!(" ({name})"));
+                }
+                (vec![x], vec![name], Some(form))
+            }
+            At::Contrast => {
+                let c = raw.contrast.as_deref().ok_or_else(|| {
+                    ctx.err(path, format!("{quantity} needs `contrast`"))
+                        .with_hint(
+                        "contrast = \"NAME\" (covariate NAME one unit higher) or \"NAME:DELTA\"",
+                    )
+                })?;
+                let (key, form, l) = self.contrast(ctx, &sub(path, "contrast"), c)?;
+                label.push_str(&format!(" ({l})"));
+                (key, vec![l, "design mean".to_string()], Some(form))
+            }
+            At::Design | At::TwoProfiles => (Vec::new(), Vec::new(), None),
+        };
+        Ok(Request {
+            quantity: quantity.to_string(),
+            detail: Detail::new(RegDetail {
+                quantity: def.kind,
+                form,
+            }),
+            horizon: None,
+            profiles,
+            profile_names: names,
+            support: def.support,
+            allows_inf: def.allows_inf,
+            label,
+            unit: None,
+        })
+    }
+}

@@ -1,0 +1,332 @@
+//! One evaluation of a regression template: the parameter draws at λ, the design
+//! products scaled to them (cached kinds: a global multiplier per draw on the
+//! cached products; recomputed kinds: the products at λ, from the table when one
+//! covers λ), then one function per quantity (formulas and references:
+//! [`super`]).
+
+use super::base::RegBase;
+use super::coef::{self, Eff, Kind, Products};
+use super::link::ratio;
+use super::quantity::RegQuantity;
+use super::request::RegDetail;
+use super::Regression;
+use crate::error::{Error, Result};
+use crate::numerics::logistic;
+use crate::templates::{BaseDraws, Request};
+
+/// The products of one evaluation: the cached ones, or those computed at λ.
+enum Prod<'a> {
+    Cached(&'a Products),
+    Fresh(Products),
+}
+
+/// One evaluation at λ: the per-draw values every quantity reads.
+pub(super) struct Eval<'a> {
+    model: &'a Regression,
+    n: usize,
+    /// Intercept draws α.
+    alpha: Vec<f64>,
+    /// Noise variances σ² (empty without a noise scale).
+    sigma2: Vec<f64>,
+    /// Reference residual variances ρ.
+    rho: Vec<f64>,
+    /// Multiplier of the products per draw (the global scale, or 1).
+    g: Vec<f64>,
+    prod: Prod<'a>,
+}
+
+impl Regression {
+    /// The evaluation at hyperparameters `h` on `base`
+    /// ([`crate::templates::Model::simulate`] then fills each quantity).
+    pub(super) fn evaluation<'a>(&'a self, h: &[f64], base: &'a BaseDraws) -> Result<Eval<'a>> {
+        let ex = RegBase::of(base)?;
+        let n = base.n;
+        let k = self.priors.priors.len();
+        let mut par = vec![Vec::new(); k];
+        self.priors.fill(h, &base.cols[..k], &mut par)?;
+        let (gu, cu, ru) = (&base.cols[k], &base.cols[k + 1], &base.cols[k + 2]);
+        let sigma2: Vec<f64> = match self.sigma {
+            Some((s, true)) => par[s].clone(),
+            Some((s, false)) => par[s].iter().map(|x| x * x).collect(),
+            None => Vec::new(),
+        };
+        let alpha = std::mem::take(&mut par[self.intercept]);
+        let rho: Vec<f64> = (0..n)
+            .map(|i| self.ref_var(alpha[i], sigma2.get(i).copied().unwrap_or(0.0)))
+            .collect();
+        let c = &self.coef;
+        let wr2 = c.r2d2_w(h, ru)?;
+        let (g, prod) = if c.cached {
+            let g = (0..n)
+                .map(|i| c.global(h, gu[i], wr2.get(i).copied().unwrap_or(0.0), rho[i]))
+                .collect();
+            let prod = ex
+                .cached
+                .as_ref()
+                .ok_or_else(|| Error::Numeric("cached design products missing".into()))?;
+            (g, Prod::Cached(prod))
+        } else {
+            let (g, p) = self.recomputed(h, ex, n, gu, cu, &rho)?;
+            (g, Prod::Fresh(p))
+        };
+        Ok(Eval {
+            model: self,
+            n,
+            alpha,
+            sigma2,
+            rho,
+            g,
+            prod,
+        })
+    }
+
+    /// Recomputed kinds: the global scales τ and the products at λ — from the
+    /// table where it covers λ (then scaled by τ per draw), otherwise exactly.
+    fn recomputed(
+        &self,
+        h: &[f64],
+        ex: &RegBase,
+        n: usize,
+        gu: &[f64],
+        cu: &[f64],
+        rho: &[f64],
+    ) -> Result<(Vec<f64>, Products)> {
+        let c = &self.coef;
+        let d = &self.design;
+        let p = d.cols();
+        let needs = &self.needs;
+        let tau: Vec<f64> = (0..n).map(|i| c.global(h, gu[i], 0.0, rho[i])).collect();
+        let slabs = if ex.kappa.len() == n {
+            let s = h[c.idx[1]];
+            ex.kappa.iter().map(|k| s * k).collect()
+        } else {
+            c.slabs(h, cu)?
+        };
+        let irho: Vec<f64> = rho.iter().map(|r| 1.0 / r).collect();
+        let kind = c.kind;
+        let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
+            z.copy_from_slice(&ex.z[i * p..(i + 1) * p]);
+            let loc = &ex.loc[i * p..(i + 1) * p];
+            match kind {
+                Kind::RegHorseshoe => {
+                    let (t, cs) = (tau[i], slabs[i]);
+                    for (w, l) in w.iter_mut().zip(loc) {
+                        // ω = c·τλ/√(c² + τ²λ²); the sqrt form is safe below 1e150.
+                        let tl = t * l;
+                        *w = if tl < 1e150 {
+                            cs * tl / (cs * cs + tl * tl).sqrt()
+                        } else {
+                            cs
+                        };
+                    }
+                }
+                _ => {
+                    let (pi, s) = (h[c.idx[0]], h[c.idx[1]]);
+                    for (w, l) in w.iter_mut().zip(loc) {
+                        *w = if *l < pi { s } else { 0.0 };
+                    }
+                }
+            }
+        };
+        let eff = if needs.eff {
+            Eff::Direct(&irho)
+        } else {
+            Eff::None
+        };
+        let parallel = rayon::current_thread_index().is_none();
+        let u = (h[c.idx[0]] / h[c.idx[1]]).ln();
+        Ok(match ex.table.as_ref().filter(|t| t.covers(u)) {
+            Some(t) => {
+                // β = τ·f(τ0/s): the quadratic forms from the table, the cheap
+                // O(p) parts (linear forms, effective_nonzero) exactly.
+                let (q, v) = t.eval(u, n);
+                let mut pr = if needs.eff {
+                    coef::products(d, n, &[], false, false, eff, parallel, &fill)
+                } else {
+                    Products::default()
+                };
+                pr.q = q;
+                pr.v = v;
+                let mut w = vec![0.0; p];
+                let mut z = vec![0.0; p];
+                pr.forms = vec![vec![0.0; n]; needs.forms.len()];
+                if !needs.forms.is_empty() {
+                    for i in 0..n {
+                        fill(i, &mut w, &mut z);
+                        for (f, o) in needs.forms.iter().zip(pr.forms.iter_mut()) {
+                            o[i] = f.iter().map(|(j, a)| a * w[*j] * z[*j]).sum::<f64>() / tau[i];
+                        }
+                    }
+                }
+                (tau, pr)
+            }
+            None => {
+                let pr = coef::products(
+                    d,
+                    n,
+                    &needs.forms,
+                    needs.rows,
+                    needs.q,
+                    eff,
+                    parallel,
+                    &fill,
+                );
+                (vec![1.0; n], pr)
+            }
+        })
+    }
+}
+
+impl Eval<'_> {
+    /// Draws of the quantity of `r` into `o` (resized to the draws).
+    pub(super) fn fill(&self, r: &Request, o: &mut Vec<f64>) -> Result<()> {
+        o.resize(self.n, 0.0);
+        let q = r.detail.get::<RegDetail>()?.quantity;
+        match q {
+            RegQuantity::R2 => self.r2(r, o)?,
+            RegQuantity::R2Marginal => self.r2_marginal(o),
+            RegQuantity::R2Latent => self.r2_latent(o),
+            RegQuantity::EffectiveNonzero => self.effective_nonzero(o)?,
+            RegQuantity::MeanResponse | RegQuantity::EventProb | RegQuantity::Rate => {
+                self.at_profile(q, r, o)?
+            }
+            RegQuantity::OddsRatio | RegQuantity::RateRatio => self.ratio(r, o)?,
+            RegQuantity::Prevalence => self.prevalence(r, o)?,
+            RegQuantity::SignalSd => self.signal_sd(o),
+        }
+        Ok(())
+    }
+
+    fn prod(&self) -> &Products {
+        match &self.prod {
+            Prod::Cached(p) => p,
+            Prod::Fresh(p) => p,
+        }
+    }
+
+    fn s2(&self, i: usize) -> f64 {
+        self.sigma2.get(i).copied().unwrap_or(0.0)
+    }
+
+    /// a_kᵀβ per draw for the linear form of `r`'s profiles.
+    fn form(&self, r: &Request) -> Result<&[f64]> {
+        self.model
+            .needs
+            .form_of(&r.profiles)
+            .map(|k| self.prod().forms[k].as_slice())
+            .ok_or_else(|| {
+                Error::Numeric(format!(
+                    "{}: profile not prepared in the base draws",
+                    r.label
+                ))
+            })
+    }
+
+    /// X_cβ at the design rows, draw i at i·rows.
+    fn rows(&self, r: &Request) -> Result<&[f64]> {
+        if self.model.needs.rows && self.prod().rows.len() == self.n * self.model.design.rows() {
+            Ok(&self.prod().rows)
+        } else {
+            Err(Error::Numeric(format!(
+                "{}: design rows not prepared in the base draws",
+                r.label
+            )))
+        }
+    }
+
+    fn r2(&self, r: &Request, o: &mut [f64]) -> Result<()> {
+        let (g, m) = (&self.g, self.model);
+        if m.link == super::Link::Identity {
+            for (i, v) in o.iter_mut().enumerate() {
+                *v = ratio(g[i] * g[i] * self.prod().q[i], self.s2(i));
+            }
+            return Ok(());
+        }
+        let rw = self.rows(r)?;
+        let nr = m.design.rows();
+        for (i, v) in o.iter_mut().enumerate() {
+            let x = &rw[i * nr..(i + 1) * nr];
+            let a = self.alpha[i];
+            *v = m.r2_rows(x.iter().map(|x| a + g[i] * x), self.s2(i), nr);
+        }
+        Ok(())
+    }
+
+    fn r2_marginal(&self, o: &mut [f64]) {
+        let g = &self.g;
+        for (i, v) in o.iter_mut().enumerate() {
+            *v = ratio(g[i] * g[i] * self.prod().v[i], self.rho[i]);
+        }
+    }
+
+    fn r2_latent(&self, o: &mut [f64]) {
+        let g = &self.g;
+        let r3 = std::f64::consts::PI.powi(2) / 3.0;
+        for (i, v) in o.iter_mut().enumerate() {
+            *v = ratio(g[i] * g[i] * self.prod().q[i], r3);
+        }
+    }
+
+    fn effective_nonzero(&self, o: &mut [f64]) -> Result<()> {
+        let (g, prod) = (&self.g, self.prod());
+        if !self.model.coef.cached {
+            o.copy_from_slice(&prod.eff);
+            return Ok(());
+        }
+        let p = self.model.design.cols();
+        if prod.eff_store.len() != self.n * p {
+            return Err(Error::Numeric(
+                "effective_nonzero not prepared in the base draws".into(),
+            ));
+        }
+        for (i, v) in o.iter_mut().enumerate() {
+            let t = g[i] * g[i] / self.rho[i];
+            *v = prod.eff_store[i * p..(i + 1) * p]
+                .iter()
+                .map(|e| coef::shrink_term(*e as f64 * t))
+                .sum();
+        }
+        Ok(())
+    }
+
+    /// The mean response, event probability or rate at a profile.
+    fn at_profile(&self, q: RegQuantity, r: &Request, o: &mut [f64]) -> Result<()> {
+        let f = self.form(r)?;
+        for (i, v) in o.iter_mut().enumerate() {
+            let eta = self.alpha[i] + self.g[i] * f[i];
+            *v = match q {
+                RegQuantity::EventProb => logistic(eta),
+                RegQuantity::Rate => eta.exp(),
+                _ => self.model.mean_of(eta),
+            };
+        }
+        Ok(())
+    }
+
+    /// The odds or rate ratio of a contrast, exp(δ·β).
+    fn ratio(&self, r: &Request, o: &mut [f64]) -> Result<()> {
+        let f = self.form(r)?;
+        for (i, v) in o.iter_mut().enumerate() {
+            *v = (self.g[i] * f[i]).exp();
+        }
+        Ok(())
+    }
+
+    fn prevalence(&self, r: &Request, o: &mut [f64]) -> Result<()> {
+        let rw = self.rows(r)?;
+        let nr = self.model.design.rows();
+        for (i, v) in o.iter_mut().enumerate() {
+            let x = &rw[i * nr..(i + 1) * nr];
+            let (a, g) = (self.alpha[i], self.g[i]);
+            *v = x.iter().map(|x| logistic(a + g * x)).sum::<f64>() / nr as f64;
+        }
+        Ok(())
+    }
+
+    fn signal_sd(&self, o: &mut [f64]) {
+        let g = &self.g;
+        for (i, v) in o.iter_mut().enumerate() {
+            *v = g[i].abs() * self.prod().q[i].sqrt();
+        }
+    }
+}
