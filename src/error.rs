@@ -33,6 +33,16 @@ impl fmt::Display for Location {
     }
 }
 
+/// A distribution parameter outside its family's domain (raised by `dist`).
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{family}: parameter `{param}` = {value} is invalid: {reason}")]
+pub struct DistError {
+    pub family: &'static str,
+    pub param: &'static str,
+    pub value: f64,
+    pub reason: &'static str,
+}
+
 /// All library errors.
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
@@ -45,7 +55,7 @@ pub enum Error {
     },
     /// A distribution was given parameters outside its domain.
     #[error(transparent)]
-    Dist(#[from] crate::dist::DistError),
+    Dist(#[from] DistError),
     /// Reading or writing a file failed.
     #[error("{path}: {source}")]
     Io {

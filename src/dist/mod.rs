@@ -37,15 +37,7 @@ pub use mixed::{Atom, Mixed};
 pub use mixture::Mixture;
 pub use params::{Domain, Param, Start};
 
-/// A parameter value outside its family's domain.
-#[derive(Debug, Clone, PartialEq, thiserror::Error)]
-#[error("{family}: parameter `{param}` = {value} is invalid: {reason}")]
-pub struct DistError {
-    pub family: &'static str,
-    pub param: &'static str,
-    pub value: f64,
-    pub reason: &'static str,
-}
+pub use crate::error::DistError;
 
 /// Check that a parameter is finite and strictly positive.
 pub fn positive(family: &'static str, param: &'static str, value: f64) -> Result<f64, DistError> {
