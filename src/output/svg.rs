@@ -21,6 +21,9 @@ pub const ORANGE: &str = "#E69F00";
 pub const SKY: &str = "#56B4E9";
 pub const GREEN: &str = "#009E73";
 pub const GREY: &str = "#5f5f5f";
+/// Histogram fill and outline: light and dark shades of vermillion.
+pub const VERMILLION_FILL: &str = "#f3c9ad";
+pub const VERMILLION_DARK: &str = "#c0693a";
 
 /// Escape text for XML/HTML.
 pub fn esc(s: &str) -> String {

@@ -1,7 +1,9 @@
 //! The report's plots: believed against implied CDF and density per belief, the
 //! fitted hyperparameters within their bounds, and numeric diagnostics.
 
-use super::svg::{self, esc, Plot, BLUE, GREY, ORANGE, SKY, VERMILLION};
+use super::svg::{
+    self, esc, Plot, BLUE, GREY, ORANGE, SKY, VERMILLION, VERMILLION_DARK, VERMILLION_FILL,
+};
 use super::view::*;
 use crate::fit::FitResult;
 use crate::numerics::format::html as fnum;
@@ -269,8 +271,8 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
     p.axes(&axis_label(b), &ylab);
     p.bars(
         &bars,
-        "#f3c9ad",
-        "#c0693a",
+        VERMILLION_FILL,
+        VERMILLION_DARK,
         "histogram of the implied draws",
     );
     if !bel.is_empty() {
@@ -312,7 +314,7 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
     }
     p.legend(&[
         (BLUE, None, "believed"),
-        ("#c0693a", None, "implied (histogram)"),
+        (VERMILLION_DARK, None, "implied (histogram)"),
     ]);
     p.finish(false)
 }

@@ -215,30 +215,16 @@ pub fn parse(text: &str, file: Option<&Path>, ov: &Overrides) -> Result<Spec> {
     from_table(table, text, file, ov)
 }
 
-/// Validate an already-parsed table (`text` is used for line numbers and the digest).
-pub fn from_table(
-    table: toml::Table,
-    text: &str,
-    file: Option<&Path>,
-    ov: &Overrides,
-) -> Result<Spec> {
-    let raw: RawSpec =
-        toml::Value::Table(table.clone())
-            .try_into()
-            .map_err(|e: toml::de::Error| {
-                // Re-run on the text for a line number when the table came from it.
-                match toml::from_str::<RawSpec>(text) {
-                    Err(e2) => parse_error(file, e2, text),
-                    Ok(_) => parse_error(file, e, text),
-                }
-            })?;
-    let map = SourceMap::new(text);
-    let ctx = Ctx::new(file, &map, &raw);
-    let mut digest = sha2::Sha256::new();
-    digest.update(toml::to_string(&table).unwrap_or_default().as_bytes());
-    let digest = format!("{:x}", digest.finalize());
+/// The `[simulation]` section with the command line's overrides.
+struct Simulation {
+    draws: usize,
+    points: crate::rng::Points,
+    precision: Option<Precision>,
+    seed: u64,
+}
 
-    // [simulation]
+/// Validate `[simulation]`: draws (or precision mode), points, seed.
+fn simulation(ctx: &Ctx, raw: &RawSpec, ov: &Overrides) -> Result<Simulation> {
     let sim = raw.simulation.as_ref();
     let sp = |k: &str| [key("simulation"), key(k)];
     let mut draws = match sim.and_then(|s| s.draws.as_ref()) {
@@ -309,85 +295,16 @@ pub fn from_table(
         (None, None) => DEFAULT_SEED,
     };
 
-    // [model]
-    let template = match ctx.model().get("template") {
-        Some(v) => ctx.string(&[key("model"), key("template")], v)?.to_string(),
-        None => {
-            return Err(ctx
-                .err(&[key("model")], "missing `template` in [model]")
-                .with_hint(format!(
-                    "valid templates: {}",
-                    templates::names().join(", ")
-                )))
-        }
-    };
-    let info = templates::find(&template).ok_or_else(|| {
-        ctx.err(
-            &[key("model"), key("template")],
-            format!("unknown template \"{template}\""),
-        )
-        .with_hint(choice_hint(&template, &templates::names()))
-    })?;
-    let mut model = (info.build)(&ctx)?;
+    Ok(Simulation {
+        draws,
+        points,
+        precision,
+        seed,
+    })
+}
 
-    // Every [prior.*] table must belong to a parameter of the template.
-    let used = ctx.used_priors();
-    for name in raw.prior.keys() {
-        if !used.contains(name) {
-            let used_ref: Vec<&str> = used.iter().map(String::as_str).collect();
-            return Err(ctx
-                .err(
-                    &[key("prior"), key(name)],
-                    format!("[prior.{name}] is not a parameter of template {template}"),
-                )
-                .with_hint(choice_hint(name, &used_ref)));
-        }
-    }
-
-    // [[belief]]
-    if raw.belief.is_empty() {
-        return Err(ctx
-            .err(&[], "no [[belief]] tables: nothing to match")
-            .with_hint(format!(
-                "add at least one, e.g.\n  [[belief]]\n  quantity = \"{}\"\n  distribution = {{ family = \"beta\", alpha = 2, beta = 5 }}",
-                info.quantities.first().map(|q| q.name).unwrap_or("…")
-            )));
-    }
-    let mut beliefs = Vec::new();
-    for (i, rb) in raw.belief.iter().enumerate() {
-        beliefs.push(belief::validate(&ctx, &*model, info, i, rb)?);
-    }
-    // The model prepares for every request together (e.g. which design products
-    // the base draws compute), once, before anything draws.
-    let requests: Vec<&Request> = beliefs.iter().map(|b: &Belief| &b.request).collect();
-    model.prepare(&requests)?;
-    let model: Arc<dyn Model> = Arc::from(model);
-
-    // Working memory, now that the model is prepared for the beliefs.
-    let (need, what) = model.working_bytes(draws);
-    let budget = crate::limits::budget_mb(ov.max_memory_mb);
-    if need > crate::limits::bytes(budget) {
-        return Err(Error::Limit(format!(
-            "{}: {what} (template {template}) need about {} MB of working memory, \
-             over the limit of {} MB; lower `draws` in [simulation]\n  hint: {}",
-            file.map_or("<input>".to_string(), |f| f.display().to_string()),
-            crate::limits::mb(need),
-            budget,
-            crate::limits::hint(budget)
-        )));
-    }
-
-    // Precision mode raises the draws only as far as the memory budget allows.
-    let precision = precision.map(|mut p| {
-        while p.max_draws > draws
-            && model.working_bytes(p.max_draws).0 > crate::limits::bytes(budget)
-        {
-            p.max_draws = (p.max_draws / 2).max(draws);
-        }
-        p
-    });
-
-    // [fit]
+/// Validate `[fit]` against the model's hyperparameters.
+fn fit_options(ctx: &Ctx, raw: &RawSpec, model: &dyn Model, ov: &Overrides) -> Result<FitOptions> {
     let f = raw.fit.as_ref();
     let fp = |k: &str| [key("fit"), key(k)];
     let discrepancy = match f.and_then(|f| f.discrepancy.as_deref()) {
@@ -498,6 +415,131 @@ pub fn from_table(
         }
     }
 
+    Ok(FitOptions {
+        discrepancy,
+        starts,
+        searches,
+        tolerance,
+        tie_break,
+        replicates,
+        reference,
+        profiles: true,
+        trace_front,
+        mc_errors: true,
+        cancel: ov.cancel.clone(),
+    })
+}
+
+/// Validate an already-parsed table (`text` is used for line numbers and the digest).
+pub fn from_table(
+    table: toml::Table,
+    text: &str,
+    file: Option<&Path>,
+    ov: &Overrides,
+) -> Result<Spec> {
+    let raw: RawSpec =
+        toml::Value::Table(table.clone())
+            .try_into()
+            .map_err(|e: toml::de::Error| {
+                // Re-run on the text for a line number when the table came from it.
+                match toml::from_str::<RawSpec>(text) {
+                    Err(e2) => parse_error(file, e2, text),
+                    Ok(_) => parse_error(file, e, text),
+                }
+            })?;
+    let map = SourceMap::new(text);
+    let ctx = Ctx::new(file, &map, &raw);
+    let mut digest = sha2::Sha256::new();
+    digest.update(toml::to_string(&table).unwrap_or_default().as_bytes());
+    let digest = format!("{:x}", digest.finalize());
+
+    let Simulation {
+        draws,
+        points,
+        precision,
+        seed,
+    } = simulation(&ctx, &raw, ov)?;
+
+    // [model]
+    let template = match ctx.model().get("template") {
+        Some(v) => ctx.string(&[key("model"), key("template")], v)?.to_string(),
+        None => {
+            return Err(ctx
+                .err(&[key("model")], "missing `template` in [model]")
+                .with_hint(format!(
+                    "valid templates: {}",
+                    templates::names().join(", ")
+                )))
+        }
+    };
+    let info = templates::find(&template).ok_or_else(|| {
+        ctx.err(
+            &[key("model"), key("template")],
+            format!("unknown template \"{template}\""),
+        )
+        .with_hint(choice_hint(&template, &templates::names()))
+    })?;
+    let mut model = (info.build)(&ctx)?;
+
+    // Every [prior.*] table must belong to a parameter of the template.
+    let used = ctx.used_priors();
+    for name in raw.prior.keys() {
+        if !used.contains(name) {
+            let used_ref: Vec<&str> = used.iter().map(String::as_str).collect();
+            return Err(ctx
+                .err(
+                    &[key("prior"), key(name)],
+                    format!("[prior.{name}] is not a parameter of template {template}"),
+                )
+                .with_hint(choice_hint(name, &used_ref)));
+        }
+    }
+
+    // [[belief]]
+    if raw.belief.is_empty() {
+        return Err(ctx
+            .err(&[], "no [[belief]] tables: nothing to match")
+            .with_hint(format!(
+                "add at least one, e.g.\n  [[belief]]\n  quantity = \"{}\"\n  distribution = {{ family = \"beta\", alpha = 2, beta = 5 }}",
+                info.quantities.first().map(|q| q.name).unwrap_or("…")
+            )));
+    }
+    let mut beliefs = Vec::new();
+    for (i, rb) in raw.belief.iter().enumerate() {
+        beliefs.push(belief::validate(&ctx, &*model, info, i, rb)?);
+    }
+    // The model prepares for every request together (e.g. which design products
+    // the base draws compute), once, before anything draws.
+    let requests: Vec<&Request> = beliefs.iter().map(|b: &Belief| &b.request).collect();
+    model.prepare(&requests)?;
+    let model: Arc<dyn Model> = Arc::from(model);
+
+    // Working memory, now that the model is prepared for the beliefs.
+    let (need, what) = model.working_bytes(draws);
+    let budget = crate::limits::budget_mb(ov.max_memory_mb);
+    if need > crate::limits::bytes(budget) {
+        return Err(Error::Limit(format!(
+            "{}: {what} (template {template}) need about {} MB of working memory, \
+             over the limit of {} MB; lower `draws` in [simulation]\n  hint: {}",
+            file.map_or("<input>".to_string(), |f| f.display().to_string()),
+            crate::limits::mb(need),
+            budget,
+            crate::limits::hint(budget)
+        )));
+    }
+
+    // Precision mode raises the draws only as far as the memory budget allows.
+    let precision = precision.map(|mut p| {
+        while p.max_draws > draws
+            && model.working_bytes(p.max_draws).0 > crate::limits::bytes(budget)
+        {
+            p.max_draws = (p.max_draws / 2).max(draws);
+        }
+        p
+    });
+
+    let fit = fit_options(&ctx, &raw, &*model, ov)?;
+
     Ok(Spec {
         title: raw.title.clone().unwrap_or_else(|| "untitled".to_string()),
         path: file.map(Path::to_path_buf),
@@ -508,18 +550,6 @@ pub fn from_table(
         points,
         precision,
         beliefs,
-        fit: FitOptions {
-            discrepancy,
-            starts,
-            searches,
-            tolerance,
-            tie_break,
-            replicates,
-            reference,
-            profiles: true,
-            trace_front,
-            mc_errors: true,
-            cancel: ov.cancel.clone(),
-        },
+        fit,
     })
 }
