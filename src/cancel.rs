@@ -52,6 +52,11 @@ impl Cancel {
         self.flag.load(Ordering::SeqCst)
     }
 
+    /// Whether the token is set, without counting a poll.
+    pub fn is_set(&self) -> bool {
+        self.flag.load(Ordering::SeqCst)
+    }
+
     /// `Err(Error::Cancelled)` once cancelled.
     pub fn check(&self) -> crate::Result<()> {
         if self.is_cancelled() {

@@ -409,6 +409,11 @@ fn cancelled_batch_resumes_to_the_same_table() {
     assert!(!cut.join("results.csv").exists());
     let records = std::fs::read_dir(cut.join("rows")).unwrap().count();
     assert!(records < 6, "{records} records: the cancel came too late");
+    // Every record left is a finished row: none for a row the cancel cut short.
+    for e in std::fs::read_dir(cut.join("rows")).unwrap().flatten() {
+        let text = read(&e.path());
+        assert!(text.contains("\"status\": \"ok\""), "{text}");
+    }
     let plan = batch::plan(&base, &table, &ov(Cancel::new())).unwrap();
     let rep = batch::run(&plan, &cut, &opts, &|_, _| {}).unwrap();
     assert_eq!(rep.skipped, records);

@@ -27,7 +27,7 @@ pub mod tiebreak;
 pub mod verdict;
 
 use crate::discrepancy::Kind;
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::rng;
 use crate::spec::Spec;
 use objective::Objective;
@@ -93,6 +93,15 @@ pub fn next_draws(n: usize, worst: f64, max: usize) -> usize {
 /// optimum) until every determined hyperparameter meets its precision target or
 /// the cap is reached.
 pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
+    match fit_once(spec, progress) {
+        // Cancelled evaluations return +∞, which a stage may report as its own
+        // failure (say, no finite start): the cause is the cancellation.
+        Err(_) if spec.fit.cancel.is_set() => Err(Error::Cancelled),
+        other => other,
+    }
+}
+
+fn fit_once(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     let started = Instant::now();
     use crate::spec::TieBreak;
     let mut point = fit_point(spec, None, progress)?;
@@ -140,6 +149,10 @@ mod tests {
     fn cancelled_fit_stops_with_an_error() {
         let mut s = demo_spec(3);
         s.fit.cancel = crate::cancel::Cancel::after(200);
+        assert!(matches!(fit(&s, None), Err(Error::Cancelled)));
+        // Cancelled before the first start is scored: every start is +∞, which
+        // the global stage would call undefined; the cause is the cancellation.
+        s.fit.cancel = crate::cancel::Cancel::after(1);
         assert!(matches!(fit(&s, None), Err(Error::Cancelled)));
     }
 

@@ -126,17 +126,39 @@ pub fn optimise(
     let locals: Vec<(usize, simplex::Local)> = order[..m]
         .par_iter()
         .map(|(i, _)| {
-            let r = simplex::local(
-                &|x: &[f64]| coarse.cost(x),
-                &starts[*i],
-                TUNING.coarse_search.size,
-                TUNING.coarse_search.with(d as u64).1,
-                tol_c,
-            );
+            let r = coarse_search(&coarse, &starts[*i], d, tol_c);
             tick();
             (*i, r)
         })
         .collect();
+    // Nelder–Mead can collapse in a curved valley far above its floor. When even
+    // the best coarse search ends more than `rough` coarse floors up, every
+    // search gets fresh simplices from where it stopped, each kept only while
+    // it gains a floor (a fit that lands well costs nothing more).
+    let best_f = locals.iter().map(|l| l.1.f).fold(f64::INFINITY, f64::min);
+    let locals: Vec<(usize, simplex::Local)> = if best_f > TUNING.rough * coarse.floor() {
+        locals
+            .into_par_iter()
+            .map(|(i, mut r)| {
+                for _ in 0..TUNING.coarse_restarts {
+                    let again = coarse_search(&coarse, &r.x, d, tol_c);
+                    let gained = again.f < r.f - coarse.floor();
+                    if again.f < r.f {
+                        r = simplex::Local {
+                            iterations: r.iterations + again.iterations,
+                            ..again
+                        };
+                    }
+                    if !gained {
+                        break;
+                    }
+                }
+                (i, r)
+            })
+            .collect()
+    } else {
+        locals
+    };
     let mut searches: Vec<SearchRecord> = locals
         .iter()
         .map(|(i, r)| SearchRecord {
@@ -197,6 +219,17 @@ pub fn optimise(
             searches,
         },
     })
+}
+
+/// One coarse Nelder–Mead search from `x0`.
+fn coarse_search(coarse: &Objective, x0: &[f64], d: usize, tol: f64) -> simplex::Local {
+    simplex::local(
+        &|x: &[f64]| coarse.cost(x),
+        x0,
+        TUNING.coarse_search.size,
+        TUNING.coarse_search.with(d as u64).1,
+        tol,
+    )
 }
 
 /// Do two local optima share a basin? Yes when they are within [`TUNING.same_basin`]
