@@ -58,7 +58,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     // Summary table.
     html.push_str("<section>\n<h2>How well the fitted prior meets each belief</h2>\n<table class=\"summary\"><thead><tr><th>belief</th><th>stated as</th><th>weight</th><th title=\"discrepancy on fresh draws\">discrepancy</th><th title=\"Monte Carlo noise floor\">noise floor</th><th>ratio</th><th title=\"root-mean-square CDF gap beyond noise\">CDF gap</th><th>verdict</th><th title=\"prior effective sample size, moment-matched Beta a + b: believed / implied\">ESS</th></tr></thead><tbody>\n");
     for (k, b) in bs.iter().enumerate() {
-        let ess = match (b.believed_ess, b.ess) {
+        let ess = match (b.r.believed_ess, b.r.ess) {
             (None, None) => "—".to_string(),
             (x, y) => format!(
                 "{} / {}",
@@ -69,7 +69,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         let _ = writeln!(
             html,
             "<tr><td><a href=\"#belief-{k}\">{}</a></td><td>{}</td><td>{:.2}</td><td>{:.3e}</td><td>{:.3e}</td><td>{:.2}</td><td>{:.4}</td><td class=\"v {}\"><span class=\"mark\">{}</span> {}</td><td>{}</td></tr>",
-            esc(&b.label), esc(&b.stated_as), b.weight, b.fresh, b.noise_floor, b.ratio, b.rms, b.verdict, mark(&b.verdict), esc(&b.verdict.replace('_', " ")), esc(&ess)
+            esc(&b.r.label), esc(&b.r.stated_as), b.r.weight, b.r.fresh, b.r.noise_floor, b.r.ratio, b.r.rms_cdf_gap, b.r.verdict.code(), mark(b.r.verdict.code()), esc(&b.r.verdict.code().replace('_', " ")), esc(&ess)
         );
     }
     html.push_str("</tbody></table>\n<p class=\"help\">The discrepancy is computed on fresh prior draws, independent of those the fit used. A ratio near 1 means the believed and implied distributions cannot be told apart with this many draws (<i>met within noise</i>); <i>met approximately</i> means the root-mean-square gap between the CDFs, beyond noise, is within the tolerance.</p>\n</section>\n");
@@ -80,45 +80,45 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         svgs(&format!("belief-{k}-cdf"), &cdf);
         svgs(&format!("belief-{k}-density"), &den);
         let _ = writeln!(html, "<section class=\"belief\" id=\"belief-{k}\">\n<h2>{}</h2>\n<p class=\"sub\">quantity <code>{}</code>{} · stated as {} · <span class=\"v {}\"><span class=\"mark\">{}</span> {}</span></p>",
-            esc(&b.label),
-            esc(&b.quantity),
-            b.unit.as_ref().map(|u| format!(" in {}", esc(u))).unwrap_or_default(),
-            esc(&b.stated_as),
-            b.verdict,
-            mark(&b.verdict),
-            esc(&b.verdict.replace('_', " "))
+            esc(&b.r.label),
+            esc(&b.r.quantity),
+            b.r.unit.as_ref().map(|u| format!(" in {}", esc(u))).unwrap_or_default(),
+            esc(&b.r.stated_as),
+            b.r.verdict.code(),
+            mark(b.r.verdict.code()),
+            esc(&b.r.verdict.code().replace('_', " "))
         );
-        if !b.how.is_empty() {
+        if !b.r.how.is_empty() {
             html.push_str("<ul class=\"how\">");
-            for x in &b.how {
+            for x in &b.r.how {
                 let _ = write!(html, "<li>{}</li>", esc(x));
             }
             html.push_str("</ul>\n");
         }
         let _ = writeln!(html, "<div class=\"figs\">\n<figure>{cdf}<figcaption>Cumulative distribution: believed (solid blue) and implied by the fitted prior (dashed vermillion, {} draws). Point masses appear as vertical jumps{}.</figcaption></figure>\n<figure>{den}<figcaption>Density of the continuous part: believed (blue line) over a histogram of the implied draws; bar areas are fractions of all draws. The x range covers 1–99 % of both distributions.</figcaption></figure>\n</div>",
             b.draws.len(),
-            if b.implied_inf > 0.0 || b.curve.as_ref().is_some_and(|c| c.inf_mass() > 0.0) {
+            if b.r.implied_mass_at_inf > 0.0 || b.curve.as_ref().is_some_and(|c| c.inf_mass() > 0.0) {
                 "; the column at ∞ holds the mass that is never reached"
             } else {
                 ""
             }
         );
         html.push_str("<table class=\"quant\"><thead><tr><th>probability</th>");
-        for p in &b.probs {
+        for p in &b.r.probs {
             let _ = write!(html, "<th>{}</th>", esc(&format!("{} %", p * 100.0)));
         }
         html.push_str("</tr></thead><tbody><tr><th>believed</th>");
-        for q in &b.believed_q {
+        for q in &b.r.believed_quantiles {
             let _ = write!(html, "<td>{}</td>", fnum(*q));
         }
         html.push_str("</tr><tr><th>implied</th>");
-        for q in &b.implied_q {
+        for q in &b.r.implied_quantiles {
             let _ = write!(html, "<td>{}</td>", fnum(*q));
         }
         html.push_str("</tr></tbody></table>\n");
-        if !b.atoms.is_empty() {
+        if !b.r.atoms.is_empty() {
             html.push_str("<table class=\"atoms\"><thead><tr><th>point mass at</th><th>believed</th><th>implied</th></tr></thead><tbody>");
-            for a in &b.atoms {
+            for a in &b.r.atoms {
                 let _ = write!(
                     html,
                     "<tr><td>{}</td><td>{}</td><td>{}</td></tr>",

@@ -22,7 +22,7 @@ mod view;
 
 pub use html::render;
 pub use plots::{cdf_plot, density_plot, hyper_plot};
-pub use view::{beliefs, read_draws, AtomView, BeliefView, Curve};
+pub use view::{beliefs, read_draws, BeliefView, Curve};
 
 use crate::error::Result;
 use crate::output;

@@ -33,7 +33,7 @@ pub(super) fn x_range(b: &BeliefView) -> (f64, f64) {
             }
         }
     } else {
-        for q in b.believed_q.iter().filter(|q| q.is_finite()) {
+        for q in b.r.believed_quantiles.iter().filter(|q| q.is_finite()) {
             lo = lo.min(*q);
             hi = hi.max(*q);
         }
@@ -55,9 +55,9 @@ pub(super) fn x_range(b: &BeliefView) -> (f64, f64) {
 }
 
 pub(super) fn axis_label(b: &BeliefView) -> String {
-    match &b.unit {
-        Some(u) => format!("{} ({u})", b.label),
-        None => b.label.clone(),
+    match &b.r.unit {
+        Some(u) => format!("{} ({u})", b.r.label),
+        None => b.r.label.clone(),
     }
 }
 
@@ -67,10 +67,13 @@ pub(super) const INF_COL: f64 = 104.0;
 pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
     let (lo, hi) = x_range(b);
     let bel_inf = b.curve.as_ref().map_or(0.0, Curve::inf_mass);
-    let has_inf = bel_inf > 0.0 || b.implied_inf > 0.0;
+    let has_inf = bel_inf > 0.0 || b.r.implied_mass_at_inf > 0.0;
     let mut p = Plot::new(
         id,
-        &format!("{}: believed and implied cumulative distribution", b.label),
+        &format!(
+            "{}: believed and implied cumulative distribution",
+            b.r.label
+        ),
         (lo, hi, false),
         (0.0, 1.0),
         if has_inf { INF_COL } else { 0.0 },
@@ -126,7 +129,7 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
     if b.curve.is_some() {
         p.line(&bel, BLUE, 2.2, None, "believed");
     } else {
-        for (q, pr) in b.believed_q.iter().zip(&b.probs) {
+        for (q, pr) in b.r.believed_quantiles.iter().zip(&b.r.probs) {
             p.point(
                 *q,
                 *pr,
@@ -156,7 +159,12 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
                 None,
             ));
         }
-        series.push((ecdf(s, hi), 1.0 - b.implied_inf, VERMILLION, Some("6 3")));
+        series.push((
+            ecdf(s, hi),
+            1.0 - b.r.implied_mass_at_inf,
+            VERMILLION,
+            Some("6 3"),
+        ));
         for (k, (edge, below, col, dash)) in series.into_iter().enumerate() {
             // Side by side, so both jumps stay visible when their masses agree.
             let xj = xc + if k == 0 { -4.0 } else { 4.0 };
@@ -178,7 +186,7 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
             ym + 22.0,
             "middle",
             "note",
-            &format!("implied {}", pct(b.implied_inf)),
+            &format!("implied {}", pct(b.r.implied_mass_at_inf)),
         );
     }
     p.legend(&[
@@ -191,7 +199,7 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
 /// Believed density over a histogram of the implied draws.
 /// Locations of the finite atoms of a belief.
 fn finite_atoms(b: &BeliefView) -> Vec<f64> {
-    b.atoms
+    b.r.atoms
         .iter()
         .map(|a| a.at)
         .filter(|a| a.is_finite())
@@ -258,13 +266,13 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
         id,
         &format!(
             "{}: believed density and histogram of the implied draws",
-            b.label
+            b.r.label
         ),
         (lo, hi, false),
         (0.0, ymax * 1.1),
         0.0,
     );
-    let ylab = match &b.unit {
+    let ylab = match &b.r.unit {
         Some(u) => format!("density (per {u})"),
         None => "density".into(),
     };
@@ -280,7 +288,7 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
     }
     let mut note_y = p.y.p1 + 14.0;
     let right = p.x.p1 - 4.0;
-    for a in &b.atoms {
+    for a in &b.r.atoms {
         let place = if a.at.is_infinite() {
             "never reached (∞)".to_string()
         } else {
@@ -303,13 +311,16 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
             p.raw_line(x, p.y.p0, x, p.y.p1 + 4.0, SKY, 2.0, Some("2 2"));
         }
     }
-    if b.implied_inf > 0.0 && !b.atoms.iter().any(|a| a.at.is_infinite()) {
+    if b.r.implied_mass_at_inf > 0.0 && !b.r.atoms.iter().any(|a| a.at.is_infinite()) {
         p.text(
             right,
             note_y,
             "end",
             "note",
-            &format!("implied never reached (∞): {}", pct(b.implied_inf)),
+            &format!(
+                "implied never reached (∞): {}",
+                pct(b.r.implied_mass_at_inf)
+            ),
         );
     }
     p.legend(&[

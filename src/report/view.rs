@@ -2,17 +2,9 @@
 
 use crate::error::{Error, Result};
 use crate::export::record;
-use crate::fit::FitResult;
+use crate::fit::{BeliefReport, FitResult};
 use serde_json::Value;
 use std::path::Path;
-
-/// A finite atom or +∞ with believed and implied masses.
-#[derive(Debug, Clone)]
-pub struct AtomView {
-    pub at: f64,
-    pub believed: f64,
-    pub implied: f64,
-}
 
 /// The believed distribution as tabulated in fit.json.
 #[derive(Debug, Clone, Default)]
@@ -44,28 +36,11 @@ impl Curve {
     }
 }
 
-/// One belief as the report sees it.
+/// One belief as the report sees it: the record's report of it, its believed
+/// curve in plotting form, and the implied draws of draws.csv.
 #[derive(Debug, Clone)]
 pub struct BeliefView {
-    pub label: String,
-    /// Prior effective sample size (implied, believed), probability quantities only.
-    pub ess: Option<f64>,
-    pub believed_ess: Option<f64>,
-    pub quantity: String,
-    pub unit: Option<String>,
-    pub stated_as: String,
-    pub verdict: String,
-    pub how: Vec<String>,
-    pub fresh: f64,
-    pub noise_floor: f64,
-    pub ratio: f64,
-    pub rms: f64,
-    pub weight: f64,
-    pub probs: Vec<f64>,
-    pub believed_q: Vec<f64>,
-    pub implied_q: Vec<f64>,
-    pub atoms: Vec<AtomView>,
-    pub implied_inf: f64,
+    pub r: BeliefReport,
     pub curve: Option<Curve>,
     /// Implied draws, sorted ascending (+∞ last).
     pub draws: Vec<f64>,
@@ -108,32 +83,7 @@ pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<Bel
         });
         draws.sort_by(f64::total_cmp);
         out.push(BeliefView {
-            label: b.label.clone(),
-            quantity: b.quantity.clone(),
-            unit: b.unit.clone(),
-            stated_as: b.stated_as.clone(),
-            verdict: b.verdict.code().to_string(),
-            how: b.how.clone(),
-            ess: b.ess,
-            believed_ess: b.believed_ess,
-            fresh: b.fresh,
-            noise_floor: b.noise_floor,
-            ratio: b.ratio,
-            rms: b.rms_cdf_gap,
-            weight: b.weight,
-            probs: b.probs.clone(),
-            believed_q: b.believed_quantiles.clone(),
-            implied_q: b.implied_quantiles.clone(),
-            atoms: b
-                .atoms
-                .iter()
-                .map(|a| AtomView {
-                    at: a.at,
-                    believed: a.believed,
-                    implied: a.implied,
-                })
-                .collect(),
-            implied_inf: b.implied_mass_at_inf,
+            r: b.clone(),
             curve,
             draws,
         });
