@@ -430,6 +430,14 @@ fn fit_options(ctx: &Ctx, raw: &RawSpec, model: &dyn Model, ov: &Overrides) -> R
     })
 }
 
+/// SHA-256 of a belief file's normalised table: the `spec_digest` that ties a
+/// fit record to the file it was fitted from.
+pub fn digest(table: &toml::Table) -> String {
+    let mut d = sha2::Sha256::new();
+    d.update(toml::to_string(table).unwrap_or_default().as_bytes());
+    format!("{:x}", d.finalize())
+}
+
 /// Validate an already-parsed table (`text` is used for line numbers and the digest).
 pub fn from_table(
     table: toml::Table,
@@ -449,9 +457,7 @@ pub fn from_table(
             })?;
     let map = SourceMap::new(text);
     let ctx = Ctx::new(file, &map, &raw);
-    let mut digest = sha2::Sha256::new();
-    digest.update(toml::to_string(&table).unwrap_or_default().as_bytes());
-    let digest = format!("{:x}", digest.finalize());
+    let digest = digest(&table);
 
     let Simulation {
         draws,
