@@ -60,11 +60,11 @@ pub fn check_fit(
     let spec_text = std::fs::read_to_string(spec_path).map_err(|e| Error::io(spec_path, e))?;
     let mut table = spec::parse_table(&spec_text, Some(spec_path))?;
     if fit.spec_digest != spec::digest(&table) {
-        return Err(bad_option(
-            "--spec",
+        return Err(crate::fit::record::bad(
+            fit_path,
+            "spec_digest",
             format!(
-                "{} was not fitted from {} (spec digests differ); pass the belief file with --spec",
-                fit_path.display(),
+                "not fitted from {} (spec digests differ); pass the belief file with --spec",
                 spec_path.display()
             ),
         ));

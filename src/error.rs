@@ -17,6 +17,12 @@ pub struct Location {
 
 impl fmt::Display for Location {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        // A command-line option (`--horizon`) has no file: name the option.
+        if let (None, Some(k)) = (&self.file, &self.key) {
+            if k.starts_with("--") {
+                return write!(f, "option `{k}`");
+            }
+        }
         let file = self
             .file
             .as_ref()
