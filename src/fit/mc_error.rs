@@ -88,8 +88,12 @@ pub fn errors(
                 dot.abs() > 0.7
             });
             let mu = eig.eigenvalues[j];
+            // A flat direction the tie-break settled carries the error of its
+            // move (below); left unsettled, or any other direction without
+            // positive curvature, it has none to report.
+            let settled = is_flat && !moves.is_empty();
             if is_flat || mu <= 0.0 {
-                if moves.is_empty() || mu <= 0.0 {
+                if !settled {
                     for a in 0..m {
                         if u[a].abs() >= 0.3 {
                             known[inner[a]] = false;

@@ -12,9 +12,14 @@
 //! the floor do not depend on the seed beyond Monte Carlo error, so neither does
 //! the chosen prior: a constrained solve (the widest prior on the valley floor
 //! whose discrepancy is within one reference floor of the best) with no front of
-//! κ values to trace. The edge is bracketed by doubling steps and found by the
-//! Illinois variant of regula falsi. With k > 1 flat directions they are settled
-//! one after another, each with a budget of 1/k reference floor.
+//! κ values to trace. When the one flat direction is led by one hyperparameter
+//! (component ≥ 0.9), the walk follows that hyperparameter's profile instead
+//! (it held, the others re-minimised over the Hessian without its row and
+//! column): the eigenvector's tilt depends on where along the valley the
+//! optimiser stopped, the profile does not. The edge is bracketed by doubling
+//! steps and found by the Illinois variant of regula falsi, the end chosen on the
+//! true residuals. With k > 1 flat directions they are settled one after
+//! another, each with a budget of 1/k reference floor.
 
 use super::objective::Objective;
 use super::profile::ETA_LIMIT;
@@ -88,6 +93,53 @@ pub fn stiff_directions(
     stiff
 }
 
+/// The coordinate leading the unit vector `v` and its component, when it
+/// leads clearly (|component| ≥ 0.9).
+fn leading(v: &[f64]) -> Option<(usize, f64)> {
+    let (j, c) = v
+        .iter()
+        .copied()
+        .enumerate()
+        .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))?;
+    (c.abs() >= 0.9).then_some((j, c))
+}
+
+/// The determined directions of the profile over coordinate `j`: eigenvectors
+/// of the Hessian without row and column `j` (over the free hyperparameters
+/// inside the range), embedded with a zero at `j`, with curvature above two
+/// floors.
+fn profile_directions(obj: &Objective, eta0: &[f64], hess: &DMatrix<f64>, j: usize) -> Vec<Stiff> {
+    let d = eta0.len();
+    let inner: Vec<usize> = (0..d)
+        .filter(|&a| a != j && eta0[a].abs() <= ETA_LIMIT)
+        .collect();
+    let m = inner.len();
+    let floor = obj.floor();
+    let mut stiff = Vec::new();
+    if m == 0 || hess.nrows() != d {
+        return stiff;
+    }
+    let hi = DMatrix::from_fn(m, m, |a, b| hess[(inner[a], inner[b])]);
+    if !hi.iter().all(|v| v.is_finite()) {
+        return stiff;
+    }
+    let eig = SymmetricEigen::new(hi);
+    for c in 0..m {
+        let mu = eig.eigenvalues[c];
+        if mu > 2.0 * floor {
+            let mut u = vec![0.0; d];
+            for a in 0..m {
+                u[inner[a]] = eig.eigenvectors[(a, c)];
+            }
+            let h = (8.0 * floor / mu)
+                .sqrt()
+                .clamp(1e-3, super::diagnostics::STEP);
+            stiff.push(Stiff { u, mu, h });
+        }
+    }
+    stiff
+}
+
 /// Settle the flat lines of `lines` from the optimum `eta0`, with `hess` the
 /// Hessian of D over the free hyperparameters there; returns the new η and the
 /// moves made.
@@ -102,11 +154,24 @@ pub fn widest(
     let flat: Vec<&super::profile::Line> = lines.iter().filter(|l| l.call.is_flat()).collect();
     let k = flat.len();
     let dirs: Vec<&[f64]> = flat.iter().map(|l| &l.direction[..]).collect();
-    let stiff = stiff_directions(obj, eta0, hess, &dirs);
+    let mut stiff = stiff_directions(obj, eta0, hess, &dirs);
     let mut x = eta0.to_vec();
     let mut moves = Vec::new();
     for l in flat {
         let mut v = l.direction.clone();
+        // One flat direction led by one hyperparameter: walk that hyperparameter's
+        // profile (it held, every other free one re-minimised) instead of the
+        // eigenvector, whose tilt at the optimum depends on where along the
+        // valley the optimiser stopped; the profile curve does not.
+        let mut scale = 1.0;
+        if k == 1 {
+            if let Some((j, c)) = leading(&v) {
+                stiff = profile_directions(obj, eta0, hess, j);
+                v = vec![0.0; v.len()];
+                v[j] = c.signum();
+                scale = c.abs();
+            }
+        }
         // Newton leaves flat directions alone, so the optimum may sit anywhere
         // in the flat interval: first find the lowest point of the valley floor
         // along v, so that "within one floor of the best" is measured from the
@@ -129,7 +194,7 @@ pub fn widest(
             obj.secondary(&obj.full(&y))
         };
         let (lo, hi) = if k == 1 {
-            (-l.minus.distance, l.plus.distance)
+            (-l.minus.distance * scale, l.plus.distance * scale)
         } else {
             let neg: Vec<f64> = v.iter().map(|c| -c).collect();
             (
@@ -207,6 +272,7 @@ pub fn valley_min(
 /// Newton iterations of [`correct`] while searching, and at the chosen end.
 const CORRECTIONS: usize = 1;
 const FINAL_CORRECTIONS: usize = 2;
+const EDGE_CORRECTIONS: usize = 2;
 
 /// Re-minimise D over the determined directions from `y`: Newton steps a = −g/μ
 /// on differenced gradients (in parallel), solving ∇D = 0 there as the fit's
@@ -257,7 +323,7 @@ pub fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budg
             .zip(v)
             .map(|(a, c)| a + (s - s_base) * c)
             .collect();
-        let (z, fz) = correct(obj, &y, stiff, CORRECTIONS);
+        let (z, fz) = correct(obj, &y, stiff, EDGE_CORRECTIONS);
         (z, fz - d0 - budget)
     };
     let stay = Move {
@@ -297,7 +363,9 @@ pub fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budg
         }
         s = (2.0 * s).min(limit);
     }
-    // Illinois regula falsi on r(s) = rise − budget.
+    // Illinois regula falsi on r(s) = rise − budget (its halvings change the
+    // weights only: the end is chosen on the true residuals).
+    let (mut t_lo, mut t_hi) = (r_lo, r_hi);
     let mut side = 0i8;
     for _ in 0..30 {
         if s_hi - s_lo <= 5e-3 * s_hi {
@@ -307,13 +375,13 @@ pub fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budg
             .clamp(s_lo + 0.05 * (s_hi - s_lo), s_hi - 0.05 * (s_hi - s_lo));
         let (p, r) = probe(&p_lo, s_lo, t);
         if r > 0.0 {
-            (s_hi, p_hi, r_hi) = (t, p, r);
+            (s_hi, p_hi, r_hi, t_hi) = (t, p, r, r);
             if side == 1 {
                 r_lo *= 0.5;
             }
             side = 1;
         } else {
-            (s_lo, p_lo, r_lo) = (t, p, r);
+            (s_lo, p_lo, r_lo, t_lo) = (t, p, r, r);
             if side == -1 {
                 r_hi *= 0.5;
             }
@@ -324,14 +392,14 @@ pub fn valley_edge(obj: &Objective, x0: &[f64], v: &[f64], stiff: &[Stiff], budg
         }
     }
     // The end: the last point within budget; the slope over a tenth of the way.
-    let (s_e, p_e) = if r_lo.abs() <= r_hi.abs() || side == 0 {
+    let (s_e, p_e) = if t_lo.abs() <= t_hi.abs() || side == 0 {
         (s_lo, p_lo)
     } else {
         (s_hi, p_hi)
     };
     // A last correction: the end lies on the valley floor as exactly as the
     // optimum does.
-    let p_e = correct(obj, &p_e, stiff, FINAL_CORRECTIONS - CORRECTIONS).0;
+    let p_e = correct(obj, &p_e, stiff, FINAL_CORRECTIONS + 1 - EDGE_CORRECTIONS).0;
     let back = (0.1 * s_e).max(0.01);
     let (p_b, r_b) = probe(&p_e, s_e, s_e - back);
     let r_e = obj.d_at(&p_e) - d0 - budget;
