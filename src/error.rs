@@ -39,9 +39,19 @@ impl fmt::Display for Location {
     }
 }
 
+/// A number as the user would have written it: plain between 10⁻³ and 10⁶,
+/// scientific outside (`1e308`, not 309 digits).
+fn short(x: f64) -> String {
+    if x == 0.0 || !x.is_finite() || (1e-3..1e6).contains(&x.abs()) {
+        format!("{x}")
+    } else {
+        format!("{x:e}")
+    }
+}
+
 /// A distribution parameter outside its family's domain (raised by `dist`).
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
-#[error("{family}: parameter `{param}` = {value} is invalid: {reason}")]
+#[error("{family}: parameter `{param}` = {} is invalid: {reason}", short(*.value))]
 pub struct DistError {
     pub family: &'static str,
     pub param: &'static str,

@@ -381,3 +381,35 @@ fn fit_searches_out_of_range() {
         &["fit.searches", "searches = 0 must be between 1 and 64"],
     );
 }
+
+/// Parameters beyond the range where a family's CDF and quantile can be
+/// computed are refused with the reason, instead of `check` never returning
+/// (statrs 0.19's inverse regularised beta looped at α = 1e8 and 5e-324; its
+/// regularised gamma at shape 1e8; Student-t at df = 1e8).
+#[test]
+fn extreme_parameters_are_refused_not_computed_forever() {
+    let beta = "distribution = { family = \"beta\", alpha = 12, beta = 18 }";
+    for (alpha, shown) in [("1e308", "1e308"), ("5e-324", "5e-324"), ("1e8", "1e8")] {
+        assert_bad(
+            &variant(
+                beta,
+                &format!("distribution = {{ family = \"beta\", alpha = {alpha}, beta = 2 }}"),
+            ),
+            3,
+            &[":43", "distribution.alpha", shown, "[1e-4, 1e6]"],
+        );
+    }
+    let median = "distribution = { family = \"lognormal\", meanlog = 3.0, sdlog = 0.4 }";
+    for (dist, key, shown) in [
+        ("family = \"gamma\", shape = 1e8, rate = 1", "shape", "1e8"),
+        ("family = \"inverse-gamma\", shape = 1e8, scale = 1", "shape", "1e8"),
+        ("family = \"half-student-t\", df = 1e8, scale = 1", "df", "1e8"),
+        ("family = \"half-student-t\", df = 1e-300, scale = 1", "df", "1e-300"),
+    ] {
+        assert_bad(
+            &variant(median, &format!("distribution = {{ {dist} }}")),
+            3,
+            &[":47", &format!("distribution.{key}"), shown, "must lie in"],
+        );
+    }
+}

@@ -5,7 +5,7 @@ use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
-use super::{positive, Base, Continuous, DistError, FamilyInfo, Support};
+use super::{computable, Base, Continuous, DistError, FamilyInfo, Support};
 use statrs::distribution::{Continuous as _, ContinuousCDF};
 
 #[derive(Debug, Clone)]
@@ -17,8 +17,8 @@ pub struct Beta {
 
 impl Beta {
     pub fn new(alpha: f64, beta: f64) -> Result<Self, DistError> {
-        let alpha = positive("beta", "alpha", alpha)?;
-        let beta = positive("beta", "beta", beta)?;
+        let alpha = computable("beta", "alpha", alpha, RANGE, WHY)?;
+        let beta = computable("beta", "beta", beta, RANGE, WHY)?;
         let inner = statrs::distribution::Beta::new(alpha, beta).map_err(|_| DistError {
             family: "beta",
             param: "alpha",
@@ -28,6 +28,13 @@ impl Beta {
         Ok(Self { alpha, beta, inner })
     }
 }
+
+/// Where α and β keep the CDF and quantile computable ([`computable`]).
+const RANGE: (f64, f64) = (1e-4, 1e6);
+const WHY: &str = "must lie in [1e-4, 1e6], where the beta CDF and quantile can be computed; \
+outside it the distribution is a point mass to display precision (at 0 or 1 below 1e-4, an sd \
+under 5e-4 above 1e6): state it as an atom (`atoms = [{ at = …, mass = … }]`) or use smaller α \
+and β with the same mean";
 
 const PARAMS: [Param; 2] = [
     Param::positive("alpha", Start::Offset),

@@ -6,7 +6,8 @@ use super::forms::{Args, Forms, PymcForm, StanForm};
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
 use super::student_t::StudentT;
-use super::{positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
+use super::student_t::{DF_RANGE, DF_WHY};
+use super::{computable, positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
 
 #[derive(Debug, Clone)]
 pub struct HalfStudentT {
@@ -17,7 +18,7 @@ pub struct HalfStudentT {
 
 impl HalfStudentT {
     pub fn new(df: f64, scale: f64) -> Result<Self, DistError> {
-        let df = positive("half-student-t", "df", df)?;
+        let df = computable("half-student-t", "df", df, DF_RANGE, DF_WHY)?;
         let scale = positive("half-student-t", "scale", scale)?;
         Ok(Self {
             df,

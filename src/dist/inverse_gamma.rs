@@ -6,7 +6,7 @@ use super::gamma::Gamma;
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
-use super::{positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
+use super::{computable, positive, Base, Continuous, DistError, FamilyInfo, Role, Support};
 
 #[derive(Debug, Clone)]
 pub struct InverseGamma {
@@ -17,7 +17,7 @@ pub struct InverseGamma {
 
 impl InverseGamma {
     pub fn new(shape: f64, scale: f64) -> Result<Self, DistError> {
-        let shape = positive("inverse-gamma", "shape", shape)?;
+        let shape = computable("inverse-gamma", "shape", shape, RANGE, WHY)?;
         let scale = positive("inverse-gamma", "scale", scale)?;
         Ok(Self {
             shape,
@@ -26,6 +26,12 @@ impl InverseGamma {
         })
     }
 }
+
+/// Where the shape keeps the CDF and quantile computable ([`computable`]).
+const RANGE: (f64, f64) = (1e-4, 1e5);
+const WHY: &str = "must lie in [1e-4, 1e5], where the inverse-gamma CDF and quantile can be computed \
+(a shape of 1e5 already has a coefficient of variation of 0.3 %: for a narrower belief use a \
+normal or lognormal)";
 
 const PARAMS: [Param; 2] = [
     Param::positive("shape", Start::Offset),

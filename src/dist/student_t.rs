@@ -5,7 +5,7 @@ use super::forms::{Args, Forms, PymcForm, StanForm};
 #[cfg(test)]
 use super::invariants::Reference;
 use super::params::{names, Param, Start};
-use super::{finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
+use super::{computable, finite, positive, Base, Continuous, DistError, FamilyInfo, Support};
 use statrs::distribution::{Continuous as _, ContinuousCDF};
 
 #[derive(Debug, Clone)]
@@ -18,7 +18,7 @@ pub struct StudentT {
 
 impl StudentT {
     pub fn new(df: f64, location: f64, scale: f64) -> Result<Self, DistError> {
-        let df = positive("student-t", "df", df)?;
+        let df = computable("student-t", "df", df, DF_RANGE, DF_WHY)?;
         let location = finite("student-t", "location", location)?;
         let scale = positive("student-t", "scale", scale)?;
         let inner =
@@ -36,6 +36,12 @@ impl StudentT {
         })
     }
 }
+
+/// Where the degrees of freedom keep the CDF and quantile computable
+/// ([`computable`]); shared with the half-Student-t.
+pub(crate) const DF_RANGE: (f64, f64) = (1e-3, 1e6);
+pub(crate) const DF_WHY: &str = "must lie in [1e-3, 1e6], where the Student-t CDF and quantile \
+can be computed (beyond 1e6 it is a normal to every printed digit: use the normal family)";
 
 const PARAMS: [Param; 3] = [
     Param::positive("df", Start::Offset),
