@@ -57,7 +57,7 @@ pub fn check_fit(
         ));
     }
     let fit = crate::fit::record::read(fit_path)?;
-    let spec_text = std::fs::read_to_string(spec_path).map_err(|e| Error::io(spec_path, e))?;
+    let spec_text = crate::limits::read_text(spec_path, crate::limits::TEXT_BYTES, "belief file")?;
     let mut table = spec::parse_table(&spec_text, Some(spec_path))?;
     if fit.spec_digest != spec::digest(&table) {
         return Err(crate::fit::record::bad(

@@ -413,3 +413,41 @@ fn extreme_parameters_are_refused_not_computed_forever() {
         );
     }
 }
+
+/// Files that are not text, never end, or hold more than is read: refused with
+/// the file, the line and byte (not UTF-8), or the cap, before any work.
+#[test]
+fn unreadable_endless_and_oversized_belief_files() {
+    let d = tempfile::tempdir().unwrap();
+    let mut bytes = EXAMPLE.replacen("title = \"", "title = \"\u{0}", 1).into_bytes();
+    let at = bytes.iter().position(|b| *b == 0).unwrap();
+    bytes[at] = 0xff;
+    let spec = d.path().join("latin1.toml");
+    std::fs::write(&spec, &bytes).unwrap();
+    assert_rejected(
+        d.path(),
+        &spec,
+        "latin1.toml:4",
+        3,
+        &["not UTF-8", "0xff", &format!("byte {at}")],
+    );
+    // A device that never ends stops at the cap (exit 5: a limit).
+    if std::path::Path::new("/dev/zero").exists() {
+        let r = run(&["check", "/dev/zero"]);
+        assert_eq!(r.status.code(), Some(5), "{}", stderr(&r));
+        assert!(stderr(&r).contains("/dev/zero") && stderr(&r).contains("16 MB"));
+    }
+    let one = "\n[[belief]]\nquantity = \"cure_fraction\"\ndistribution = { family = \"beta\", alpha = 12, beta = 18 }\n";
+    let many = format!("{EXAMPLE}{}", one.repeat(501));
+    assert_bad(&many, 3, &["belief[501]", "at most 500"]);
+    let pool = format!(
+        "{EXAMPLE}\n[[belief]]\nquantity = \"cure_fraction\"\nexperts = [{}]\n",
+        vec!["{ distribution = { family = \"beta\", alpha = 2, beta = 5 } }"; 101].join(", ")
+    );
+    assert_bad(&pool, 3, &["experts[101]", "at most 100"]);
+    assert_bad(
+        &variant("[fit]\n", "[fit]\nreplicates = 1000000\n"),
+        3,
+        &["fit.replicates", "1000000", "between 0 and 100"],
+    );
+}

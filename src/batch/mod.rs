@@ -185,7 +185,7 @@ pub fn shard_range(total: usize, shard: Option<(usize, usize)>) -> std::ops::Ran
 
 /// Read the base file and the table and apply every row (no validation yet).
 pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan> {
-    let base_text = std::fs::read_to_string(base_path).map_err(|e| Error::io(base_path, e))?;
+    let base_text = crate::limits::read_text(base_path, crate::limits::TEXT_BYTES, "base belief file")?;
     let base = spec::parse_table(&base_text, Some(base_path))?;
     let t = table::read(table_path)?;
     let budget = crate::limits::budget_mb(ov.max_memory_mb);
@@ -650,7 +650,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result
     let mut man: Option<Manifest> = None;
     for d in dirs {
         let p = d.join("batch.json");
-        let text = std::fs::read_to_string(&p).map_err(|e| Error::io(&p, e))?;
+        let text = crate::limits::read_text(&p, crate::limits::TEXT_BYTES, "batch manifest")?;
         let m: Manifest = serde_json::from_str(&text).map_err(|e| {
             Error::input(
                 Location {

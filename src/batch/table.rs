@@ -231,7 +231,7 @@ fn table_err(path: &Path, line: Option<u64>, msg: String) -> Error {
 /// column name, ragged rows) are errors; problems of one row are left to the
 /// row (see [`super::plan`]).
 pub fn read(path: &Path) -> Result<Table> {
-    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    let bytes = crate::limits::read_capped(path, crate::limits::TABLE_BYTES, "batch table")?;
     let mut rdr = csv::ReaderBuilder::new()
         .has_headers(true)
         .comment(Some(b'#'))

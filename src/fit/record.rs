@@ -43,7 +43,7 @@ pub fn to_json(r: &FitResult) -> Result<String> {
 
 /// Read the fit record at `path` (a fit.json).
 pub fn read(path: &Path) -> Result<FitResult> {
-    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    let text = crate::limits::read_text(path, crate::limits::TEXT_BYTES, "fit record")?;
     parse(&text, path)
 }
 

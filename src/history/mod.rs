@@ -48,7 +48,7 @@ fn header_line_of(lines: &[usize]) -> Option<usize> {
 /// columns (and an `arm` column when `arm` is given: only rows of that arm are kept).
 /// `event` is 1/0 (also true/false). Errors name the file, line, column and value.
 pub fn read_csv(path: &Path, arm: Option<&str>) -> Result<Vec<Obs>> {
-    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    let text = crate::limits::read_text(path, crate::limits::TABLE_BYTES, "history table")?;
     parse_csv(&text, path, arm)
 }
 

@@ -93,7 +93,7 @@ pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<Bel
 
 /// Columns 2.. of draws.csv (column 1 is the draw number), `n` of them.
 pub fn read_draws(path: &Path, n: usize) -> Result<Vec<Vec<f64>>> {
-    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    let text = crate::limits::read_text(path, crate::limits::TABLE_BYTES, "draws table")?;
     let bad = |line: usize, msg: String| {
         Error::input(
             crate::error::Location {

@@ -424,6 +424,18 @@ pub fn validate(
         if experts.is_empty() {
             return Err(ctx.err(&sub(&path, "experts"), "`experts` is empty"));
         }
+        if experts.len() > crate::limits::MAX_EXPERTS {
+            let mut at = sub(&path, "experts");
+            at.push(Seg::Index(crate::limits::MAX_EXPERTS));
+            return Err(ctx.err(
+                &at,
+                format!(
+                    "{} experts: a pool takes at most {}",
+                    experts.len(),
+                    crate::limits::MAX_EXPERTS
+                ),
+            ));
+        }
         let mut parts = Vec::new();
         for (e, ex) in experts.iter().enumerate() {
             let mut ep = sub(&path, "experts");

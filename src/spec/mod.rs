@@ -72,6 +72,9 @@ pub struct FitOptions {
     pub cancel: crate::cancel::Cancel,
 }
 
+/// Most replicate refits `[fit] replicates` may ask for (each is a whole fit).
+pub const MAX_REPLICATES: usize = 100;
+
 /// Local searches of the global stage unless `[fit] searches` says otherwise.
 /// Three: on the 60-row multi-endpoint demo and ten seeds of the relapse-free
 /// demo a fourth changed no optimum and cost 13 % of the evaluations; a row of
@@ -200,7 +203,7 @@ fn parse_error(file: Option<&Path>, e: toml::de::Error, text: &str) -> Error {
 
 /// Read and validate a belief file from disk.
 pub fn load(path: &Path, ov: &Overrides) -> Result<Spec> {
-    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    let text = crate::limits::read_text(path, crate::limits::TEXT_BYTES, "belief file")?;
     parse(&text, Some(path), ov)
 }
 
@@ -384,7 +387,16 @@ fn fit_options(ctx: &Ctx, raw: &RawSpec, model: &dyn Model, ov: &Overrides) -> R
         None => false,
     };
     let replicates = match f.and_then(|f| f.replicates.as_ref()) {
-        Some(v) => ctx.count(&fp("replicates"), v)? as usize,
+        Some(v) => {
+            let n = ctx.count(&fp("replicates"), v)?;
+            if n > MAX_REPLICATES as u64 {
+                return Err(ctx.err(
+                    &fp("replicates"),
+                    format!("replicates = {n} must be between 0 and {MAX_REPLICATES} (each is a whole refit)"),
+                ));
+            }
+            n as usize
+        }
         None => 0,
     };
 
@@ -509,6 +521,18 @@ pub fn from_table(
                 "add at least one, e.g.\n  [[belief]]\n  quantity = \"{}\"\n  distribution = {{ family = \"beta\", alpha = 2, beta = 5 }}",
                 info.quantities.first().map(|q| q.name).unwrap_or("…")
             )));
+    }
+    if raw.belief.len() > crate::limits::MAX_BELIEFS {
+        return Err(ctx
+            .err(
+                &[key("belief"), Seg::Index(crate::limits::MAX_BELIEFS)],
+                format!(
+                    "{} [[belief]] tables: at most {} are read",
+                    raw.belief.len(),
+                    crate::limits::MAX_BELIEFS
+                ),
+            )
+            .with_hint("each belief is tabulated and matched on every evaluation; pool experts' views of one quantity with `experts = [...]`, or split the file into a batch"));
     }
     let mut beliefs = Vec::new();
     for (i, rb) in raw.belief.iter().enumerate() {
