@@ -115,6 +115,13 @@ fn bad_scales_and_bounds() {
         3,
         &["prior.cure_logit.sd.start", "9"],
     );
+    // Used to pass `check`, then fail unnamed ("the objective is undefined at
+    // every start"): hi − lo overflows.
+    assert_bad(
+        &variant("mean = { fit = [-4.0, 4.0] }", "mean = { fit = [-1e308, 1e308] }"),
+        3,
+        &[":21", "prior.cure_logit.mean.fit", "-1e308", "±1e15"],
+    );
 }
 
 #[test]

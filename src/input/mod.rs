@@ -42,6 +42,10 @@ fn value_str(v: &toml::Value) -> String {
     }
 }
 
+/// Largest magnitude of a free hyperparameter's bound (far beyond any prior's
+/// needs; wider bounds overflow the optimiser's map of (0, 1) onto them).
+pub const MAX_BOUND: f64 = 1e15;
+
 impl<'a> Ctx<'a> {
     /// A context over the parsed file `raw` (text located by `map`); relative
     /// paths resolve against the belief file's folder (the working folder for text).
@@ -190,6 +194,19 @@ impl<'a> Ctx<'a> {
                         &fp,
                         format!("bounds [{lo}, {hi}]: the lower bound must be below the upper"),
                     ));
+                }
+                // The optimiser maps (0, 1) onto [lo, hi] linearly unless the bounds
+                // are positive and span ≥ 100× (then on the log scale): hi − lo
+                // must be a finite number.
+                if !(hi - lo).is_finite() || lo.abs() > MAX_BOUND || hi.abs() > MAX_BOUND {
+                    return Err(self
+                        .err(
+                            &fp,
+                            format!(
+                                "bounds [{lo:e}, {hi:e}] are too wide to search: each bound must lie within ±1e15"
+                            ),
+                        )
+                        .with_hint("give the range you would accept for this hyperparameter, e.g. [-10, 10] for a location on the logit scale"));
                 }
                 let start = match t.get("start") {
                     Some(s) => {
