@@ -130,12 +130,17 @@ mod tests {
         let d = tempfile::tempdir().unwrap();
         let p = d.path().join("big.toml");
         std::fs::write(&p, vec![b'#'; 101]).unwrap();
-        assert!(matches!(read_capped(&p, 100, "belief file"), Err(crate::Error::Limit(m)) if m.contains("big.toml")));
+        assert!(
+            matches!(read_capped(&p, 100, "belief file"), Err(crate::Error::Limit(m)) if m.contains("big.toml"))
+        );
         assert_eq!(read_capped(&p, 101, "x").unwrap().len(), 101);
         // /dev/zero never ends and reports no length.
         let z = std::path::Path::new("/dev/zero");
         if z.exists() {
-            assert!(matches!(read_capped(z, 1000, "belief file"), Err(crate::Error::Limit(_))));
+            assert!(matches!(
+                read_capped(z, 1000, "belief file"),
+                Err(crate::Error::Limit(_))
+            ));
         }
     }
 
@@ -145,6 +150,9 @@ mod tests {
         let p = d.path().join("b.toml");
         std::fs::write(&p, b"a = 1\nb = \"\xff\"\n").unwrap();
         let e = read_text(&p, 1000, "belief file").unwrap_err().to_string();
-        assert!(e.contains("b.toml:2") && e.contains("byte 11") && e.contains("0xff"), "{e}");
+        assert!(
+            e.contains("b.toml:2") && e.contains("byte 11") && e.contains("0xff"),
+            "{e}"
+        );
     }
 }

@@ -118,7 +118,10 @@ fn bad_scales_and_bounds() {
     // Used to pass `check`, then fail unnamed ("the objective is undefined at
     // every start"): hi − lo overflows.
     assert_bad(
-        &variant("mean = { fit = [-4.0, 4.0] }", "mean = { fit = [-1e308, 1e308] }"),
+        &variant(
+            "mean = { fit = [-4.0, 4.0] }",
+            "mean = { fit = [-1e308, 1e308] }",
+        ),
         3,
         &[":21", "prior.cure_logit.mean.fit", "-1e308", "±1e15"],
     );
@@ -409,9 +412,21 @@ fn extreme_parameters_are_refused_not_computed_forever() {
     let median = "distribution = { family = \"lognormal\", meanlog = 3.0, sdlog = 0.4 }";
     for (dist, key, shown) in [
         ("family = \"gamma\", shape = 1e8, rate = 1", "shape", "1e8"),
-        ("family = \"inverse-gamma\", shape = 1e8, scale = 1", "shape", "1e8"),
-        ("family = \"half-student-t\", df = 1e8, scale = 1", "df", "1e8"),
-        ("family = \"half-student-t\", df = 1e-300, scale = 1", "df", "1e-300"),
+        (
+            "family = \"inverse-gamma\", shape = 1e8, scale = 1",
+            "shape",
+            "1e8",
+        ),
+        (
+            "family = \"half-student-t\", df = 1e8, scale = 1",
+            "df",
+            "1e8",
+        ),
+        (
+            "family = \"half-student-t\", df = 1e-300, scale = 1",
+            "df",
+            "1e-300",
+        ),
     ] {
         assert_bad(
             &variant(median, &format!("distribution = {{ {dist} }}")),
@@ -426,7 +441,9 @@ fn extreme_parameters_are_refused_not_computed_forever() {
 #[test]
 fn unreadable_endless_and_oversized_belief_files() {
     let d = tempfile::tempdir().unwrap();
-    let mut bytes = EXAMPLE.replacen("title = \"", "title = \"\u{0}", 1).into_bytes();
+    let mut bytes = EXAMPLE
+        .replacen("title = \"", "title = \"\u{0}", 1)
+        .into_bytes();
     let at = bytes.iter().position(|b| *b == 0).unwrap();
     bytes[at] = 0xff;
     let spec = d.path().join("latin1.toml");

@@ -120,6 +120,26 @@ fn bad_history_input_names_file_line_and_value() {
     ]);
     assert_eq!(r.status.code(), Some(3));
     assert!(stderr(&r).contains("placebo"), "{}", stderr(&r));
+    // A column named twice used to be read from its first copy.
+    let f = write(
+        d.path(),
+        "twice.csv",
+        "# invented\ntime,event,Time\n3,1,4\n",
+    );
+    let r = run(&[
+        "history",
+        f.to_str().unwrap(),
+        "--summary",
+        "plateau",
+        "--discount",
+        "0.5",
+    ]);
+    let err = stderr(&r);
+    assert_eq!(r.status.code(), Some(3), "{err}");
+    assert!(
+        err.contains("twice.csv:2") && err.contains("`Time` appears twice"),
+        "{err}"
+    );
 }
 
 fn demo_spec(dir: &std::path::Path, draws: &str) -> PathBuf {

@@ -185,7 +185,8 @@ pub fn shard_range(total: usize, shard: Option<(usize, usize)>) -> std::ops::Ran
 
 /// Read the base file and the table and apply every row (no validation yet).
 pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan> {
-    let base_text = crate::limits::read_text(base_path, crate::limits::TEXT_BYTES, "base belief file")?;
+    let base_text =
+        crate::limits::read_text(base_path, crate::limits::TEXT_BYTES, "base belief file")?;
     let base = spec::parse_table(&base_text, Some(base_path))?;
     let t = table::read(table_path)?;
     let budget = crate::limits::budget_mb(ov.max_memory_mb);

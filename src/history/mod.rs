@@ -79,6 +79,26 @@ pub fn parse_csv(text: &str, path: &Path, arm: Option<&str>) -> Result<Vec<Obs>>
             )
         })?
         .clone();
+    // A column named twice would be read from its first copy only: refuse it.
+    for (j, h) in header.iter().enumerate() {
+        if let Some(first) = header
+            .iter()
+            .take(j)
+            .position(|g| g.eq_ignore_ascii_case(h))
+        {
+            return Err(bad(
+                path,
+                header_line_of(&lines),
+                "header",
+                format!(
+                    "column `{h}` appears twice (columns {} and {}): which one holds the data?",
+                    first + 1,
+                    j + 1
+                ),
+            )
+            .with_hint("rename or remove one of them"));
+        }
+    }
     let col = |name: &str| header.iter().position(|h| h.eq_ignore_ascii_case(name));
     let (ti, ei) = match (col("time"), col("event")) {
         (Some(t), Some(e)) => (t, e),
