@@ -2,7 +2,9 @@
 //! draws (the relapse-free demo beliefs, one row per seed), through
 //! `batch::run` exactly as the `batch` command runs it (fits, per-model folders,
 //! row records, combined tables), on a 2-thread pool: with the default lean
-//! model folders, and with `--model-files full` (draws.csv and held profiles).
+//! model folders, and with `--model-files full` (draws.csv and held profiles);
+//! and with the demo's own base file, which leaves the draws to precision mode,
+//! so that rows fit at `batch::BATCH_DRAWS` points.
 
 use criterion::{criterion_group, criterion_main, BatchSize, Criterion, Throughput};
 use priorsmith::batch::{self, ModelFiles, RunOptions};
@@ -29,17 +31,27 @@ fn bench(c: &mut Criterion) {
     }
     std::fs::write(&table, t).unwrap();
     let plan = batch::plan(&base, &table, &Overrides::default()).unwrap();
+    let own = d.path().join("own.toml");
+    std::fs::write(&own, include_str!("../demo-data/relapse-free-cure.toml")).unwrap();
+    let own_plan = batch::plan(&own, &table, &Overrides::default()).unwrap();
     let mut g = c.benchmark_group("batch");
     g.sample_size(10);
     g.throughput(Throughput::Elements(ROWS as u64));
-    for (name, files) in [
+    for (name, files, plan) in [
         (
             "mixture-cure 10k draws, 2 threads, lean folders",
             ModelFiles::Lean,
+            &plan,
         ),
         (
             "mixture-cure 10k draws, 2 threads, full folders",
             ModelFiles::Full,
+            &plan,
+        ),
+        (
+            "mixture-cure batch draws (4,096), 2 threads, lean folders",
+            ModelFiles::Lean,
+            &own_plan,
         ),
     ] {
         let opts = RunOptions {
@@ -50,7 +62,7 @@ fn bench(c: &mut Criterion) {
             b.iter_batched(
                 || tempfile::tempdir().unwrap(),
                 |out| {
-                    let r = batch::run(&plan, out.path(), &opts, &|_, _| {}).unwrap();
+                    let r = batch::run(plan, out.path(), &opts, &|_, _| {}).unwrap();
                     assert_eq!(r.fitted, ROWS);
                     out
                 },

@@ -422,3 +422,32 @@ fn cancelled_batch_resumes_to_the_same_table() {
         read(&whole.join("results.csv"))
     );
 }
+
+/// A base file without `draws` (precision mode) fits each row at
+/// `batch::BATCH_DRAWS` scrambled Sobol points, and the row's spec.toml says so:
+/// `fit models/<id>/spec.toml` gives the row's hyperparameters to the last bit.
+#[test]
+fn rows_left_to_precision_mode_fit_at_batch_draws_and_refit_the_same() {
+    let d = tempfile::tempdir().unwrap();
+    let base = d.path().join("base.toml");
+    std::fs::write(&base, fill(0.25, 12, 36, 1).replace("draws = 2000\n", "")).unwrap();
+    let table = d.path().join("t.csv");
+    std::fs::write(&table, "id,simulation.seed\nr1,5\n").unwrap();
+    let out = d.path().join("b");
+    let o = batch(&base, &table, &out, &[]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let m = out.join("models").join("r1");
+    let v: serde_json::Value = serde_json::from_str(&read(&m.join("fit.json"))).unwrap();
+    assert_eq!(v["draws"], priorsmith::batch::BATCH_DRAWS as u64);
+    assert!(read(&m.join("spec.toml")).contains(&format!("draws = {}", priorsmith::batch::BATCH_DRAWS)));
+    let refit = d.path().join("refit");
+    let st = common::bin()
+        .args(["-q", "fit"])
+        .arg(m.join("spec.toml"))
+        .arg("--out")
+        .arg(&refit)
+        .status()
+        .unwrap();
+    assert!(st.success());
+    assert_eq!(hypers(&refit.join("fit.json")), hypers(&m.join("fit.json")));
+}

@@ -418,10 +418,13 @@ fn run_row(
         Err(reason) => err_record(r, RowStage::Input, reason, started.elapsed().as_secs_f64()),
         Ok(mut spec) => {
             spec.fit.profiles = files == ModelFiles::Full;
-            // Batches fit at a fixed number of draws (the base file's, or 8,192
-            // scrambled Sobol points): precision mode would multiply the cost of
-            // a row. Lean folders skip the Monte Carlo errors as well.
-            spec.precision = None;
+            // Batches fit at a fixed number of draws (the base file's, or
+            // BATCH_DRAWS scrambled Sobol points when it leaves them to precision
+            // mode, which would multiply the cost of a row; the row's spec.toml
+            // states them). Lean folders skip the Monte Carlo errors as well.
+            if spec.precision.take().is_some() {
+                spec.draws = BATCH_DRAWS;
+            }
             spec.fit.mc_errors = files == ModelFiles::Full;
             let fitted = fit::fit(&spec, None);
             match fitted {
@@ -438,13 +441,15 @@ fn run_row(
                     clean_tmp(&mdir);
                     output::write_fit_files(&mdir, &res, files == ModelFiles::Full)?;
                     if let Ok(tab) = &r.table {
+                        let mut tab = tab.clone();
+                        pin_draws(&mut tab, res.draws);
                         let text = format!(
                         "# The belief file of batch row {} (id \"{}\"): {} with the row's changes.\n\
                          # Relative paths resolve against the base file's folder.\n{}",
                         r.number,
                         r.id,
                         plan.base_path.display(),
-                        toml::to_string(tab).unwrap_or_default()
+                        toml::to_string(&tab).unwrap_or_default()
                     );
                         write_atomic(&mdir.join("spec.toml"), text.as_bytes())?;
                     }
@@ -456,6 +461,25 @@ fn run_row(
     let json = serde_json::to_string_pretty(&rec).map_err(|e| Error::Internal(e.to_string()))?;
     write_atomic(&record_path(dir, r.number), json.as_bytes())?;
     Ok((rec, false))
+}
+
+/// Draws of a batch row whose belief file leaves them to precision mode: 2¹²
+/// scrambled Sobol points. A row then fits in about 0.18 s against 0.22 s at
+/// 2¹³ (BENCHMARKS.md, "Batch throughput"), and its hyperparameters vary less
+/// from seed to seed than they did at 10,000 independent draws.
+pub const BATCH_DRAWS: usize = 1 << 12;
+
+/// Write the draws a row was fitted with into its table (in place of precision
+/// mode, or of the file's value when `--draws` overrode it), so that
+/// `fit models/<id>/spec.toml` refits the same row.
+fn pin_draws(tab: &mut toml::Table, draws: usize) {
+    let sim = tab
+        .entry("simulation")
+        .or_insert_with(|| toml::Value::Table(toml::Table::new()));
+    if let toml::Value::Table(sim) = sim {
+        sim.remove("precision");
+        sim.insert("draws".into(), toml::Value::Integer(draws as i64));
+    }
 }
 
 /// The manifest `batch.json`: where the batch came from, for `merge`.
