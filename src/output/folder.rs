@@ -1,0 +1,312 @@
+//! Output folders replaced as a whole.
+//!
+//! `fit`, `sweep` and `report` build their whole output in a sibling staging
+//! folder `.<name>.new-<pid>` and then swap it in, so that after any
+//! interruption (an error, Ctrl-C, SIGKILL, a full disk) the folder holds the
+//! whole previous set of files or the whole new set, never a mix and never
+//! temporary files:
+//!
+//! 1. **Lock.** `.<name>.lock` beside the folder is locked exclusively
+//!    (`File::try_lock`, an advisory `flock` on Linux); a second writer to the
+//!    same folder is refused with a clear error instead of silently replacing
+//!    the first one's result. The lock dies with its process.
+//! 2. **Recover.** Holding the lock, staging folders left by an interrupted run
+//!    are removed; when the folder itself is missing but a previous set is kept
+//!    (an interruption between the two renames of the fallback below), the
+//!    previous set is put back.
+//! 3. **Stage.** The caller writes every file into the staging folder.
+//! 4. **Swap.** On Linux, `renameat2(RENAME_EXCHANGE)` exchanges the staging
+//!    folder and the old folder in one step (atomic: a reader sees one set or the
+//!    other); elsewhere, or on a file system without it, two renames: old →
+//!    `.<name>.previous`, staging → the folder (an interruption between them is
+//!    repaired by step 2 of the next run). The previous set is then kept as
+//!    `.<name>.previous` (one generation), so writing over an earlier result never
+//!    loses it: rename it back to recover it.
+//!
+//! Dropping a [`Staging`] without [`Staging::commit`] removes the staging folder.
+
+use crate::error::{Error, Result};
+use std::fs::{self, File};
+use std::path::{Path, PathBuf};
+
+/// A folder being rebuilt in a sibling staging folder.
+pub struct Staging {
+    target: PathBuf,
+    staging: PathBuf,
+    previous: PathBuf,
+    committed: bool,
+    _lock: File,
+}
+
+/// Sibling path `.<name>.<suffix>` of `target`.
+fn sibling(target: &Path, suffix: &str) -> PathBuf {
+    let name = target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "out".into());
+    parent_of(target).join(format!(".{name}.{suffix}"))
+}
+
+fn parent_of(target: &Path) -> PathBuf {
+    target
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .map_or_else(|| PathBuf::from("."), Path::to_path_buf)
+}
+
+/// Where the previous set of files of `target` is kept after a replacement.
+pub fn previous_of(target: &Path) -> PathBuf {
+    sibling(target, "previous")
+}
+
+impl Staging {
+    /// Lock `target`, repair what an interrupted run left, and create an empty
+    /// staging folder. `target` may exist (a folder: it will be replaced) or
+    /// not; anything else there (a file, a dangling link) is refused.
+    pub fn begin(target: &Path) -> Result<Staging> {
+        if let Ok(m) = fs::symlink_metadata(target) {
+            let is_dir = m.is_dir() || (m.file_type().is_symlink() && target.is_dir());
+            if !is_dir {
+                let what = if m.file_type().is_symlink() {
+                    "a link that leads to no folder"
+                } else {
+                    "a file, not a folder"
+                };
+                return Err(Error::io(
+                    target,
+                    std::io::Error::other(format!("the output path is {what}; choose another --out")),
+                ));
+            }
+        }
+        let parent = parent_of(target);
+        fs::create_dir_all(&parent).map_err(|e| Error::io(&parent, e))?;
+        let lock_path = sibling(target, "lock");
+        let lock = File::options()
+            .create(true)
+            .truncate(false)
+            .write(true)
+            .open(&lock_path)
+            .map_err(|e| Error::io(&lock_path, e))?;
+        match lock.try_lock() {
+            Ok(()) => {}
+            Err(fs::TryLockError::WouldBlock) => {
+                return Err(Error::io(
+                    target,
+                    std::io::Error::other(
+                        "another priorsmith process is writing this folder; wait for it to \
+                         finish, or choose another --out",
+                    ),
+                ))
+            }
+            Err(fs::TryLockError::Error(e)) => return Err(Error::io(&lock_path, e)),
+        }
+        let previous = previous_of(target);
+        recover(target, &previous)?;
+        let staging = sibling(target, &format!("new-{}", std::process::id()));
+        fs::create_dir(&staging).map_err(|e| Error::io(&staging, e))?;
+        Ok(Staging {
+            target: target.to_path_buf(),
+            staging,
+            previous,
+            committed: false,
+            _lock: lock,
+        })
+    }
+
+    /// The folder to write into.
+    pub fn path(&self) -> &Path {
+        &self.staging
+    }
+
+    /// The folder that will be replaced.
+    pub fn target(&self) -> &Path {
+        &self.target
+    }
+
+    /// Swap the staged folder in. Returns where the previous set of files is
+    /// kept, when there was one.
+    pub fn commit(mut self) -> Result<Option<PathBuf>> {
+        sync_dir(&self.staging);
+        let had_old = self.target.is_dir();
+        let result = if had_old {
+            self.swap_in()
+        } else {
+            fs::rename(&self.staging, &self.target).map_err(|e| Error::io(&self.target, e))
+        };
+        result?;
+        self.committed = true;
+        sync_dir(&parent_of(&self.target));
+        Ok(had_old.then(|| self.previous.clone()))
+    }
+
+    fn swap_in(&self) -> Result<()> {
+        let t = &self.target;
+        if exchange(&self.staging, t).is_ok() {
+            // The staging path now holds the old set: keep it as the previous one.
+            remove_all(&self.previous)?;
+            return fs::rename(&self.staging, &self.previous).map_err(|e| Error::io(t, e));
+        }
+        // Two renames; `recover` repairs an interruption between them.
+        remove_all(&self.previous)?;
+        fs::rename(t, &self.previous).map_err(|e| Error::io(t, e))?;
+        fs::rename(&self.staging, t).map_err(|e| Error::io(t, e))
+    }
+}
+
+impl Drop for Staging {
+    fn drop(&mut self) {
+        if !self.committed {
+            let _ = fs::remove_dir_all(&self.staging);
+        }
+    }
+}
+
+/// Remove staging folders of interrupted runs (the lock is held, so none is in
+/// use) and put a kept previous set back when the folder itself is missing.
+fn recover(target: &Path, previous: &Path) -> Result<()> {
+    let parent = parent_of(target);
+    let name = target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let prefix = format!(".{name}.new-");
+    if let Ok(entries) = fs::read_dir(&parent) {
+        for e in entries.flatten() {
+            if e.file_name().to_string_lossy().starts_with(&prefix) {
+                remove_all(&e.path())?;
+            }
+        }
+    }
+    if !target.exists() && previous.is_dir() {
+        fs::rename(previous, target).map_err(|e| Error::io(target, e))?;
+    }
+    Ok(())
+}
+
+fn remove_all(p: &Path) -> Result<()> {
+    match fs::remove_dir_all(p) {
+        Ok(()) => Ok(()),
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => Ok(()),
+        Err(e) => Err(Error::io(p, e)),
+    }
+}
+
+/// Flush a folder's entries to disk (best effort: not every platform can).
+fn sync_dir(p: &Path) {
+    if let Ok(f) = File::open(p) {
+        let _ = f.sync_all();
+    }
+}
+
+/// Exchange two paths atomically (Linux `renameat2` with `RENAME_EXCHANGE`).
+#[cfg(target_os = "linux")]
+fn exchange(a: &Path, b: &Path) -> std::io::Result<()> {
+    use std::ffi::CString;
+    use std::os::unix::ffi::OsStrExt;
+    let ca = CString::new(a.as_os_str().as_bytes())?;
+    let cb = CString::new(b.as_os_str().as_bytes())?;
+    // SAFETY: both are valid NUL-terminated paths; AT_FDCWD resolves them from
+    // the current folder as `rename` would.
+    let r = unsafe {
+        libc::renameat2(
+            libc::AT_FDCWD,
+            ca.as_ptr(),
+            libc::AT_FDCWD,
+            cb.as_ptr(),
+            libc::RENAME_EXCHANGE,
+        )
+    };
+    if r == 0 {
+        Ok(())
+    } else {
+        Err(std::io::Error::last_os_error())
+    }
+}
+
+#[cfg(not(target_os = "linux"))]
+fn exchange(_a: &Path, _b: &Path) -> std::io::Result<()> {
+    Err(std::io::Error::from(std::io::ErrorKind::Unsupported))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn files(p: &Path) -> Vec<String> {
+        let mut v: Vec<String> = fs::read_dir(p)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        v.sort();
+        v
+    }
+
+    #[test]
+    fn a_new_set_replaces_the_old_as_a_whole_and_the_old_is_kept() {
+        let d = tempfile::tempdir().unwrap();
+        let out = d.path().join("out");
+        let s = Staging::begin(&out).unwrap();
+        fs::write(s.path().join("fit.json"), "1").unwrap();
+        fs::write(s.path().join("pareto.csv"), "1").unwrap();
+        assert_eq!(s.commit().unwrap(), None);
+        assert_eq!(files(&out), ["fit.json", "pareto.csv"]);
+        let s = Staging::begin(&out).unwrap();
+        fs::write(s.path().join("fit.json"), "2").unwrap();
+        let kept = s.commit().unwrap().unwrap();
+        // No stale pareto.csv beside the new fit; the old set is whole.
+        assert_eq!(files(&out), ["fit.json"]);
+        assert_eq!(fs::read_to_string(out.join("fit.json")).unwrap(), "2");
+        assert_eq!(files(&kept), ["fit.json", "pareto.csv"]);
+        assert_eq!(fs::read_to_string(kept.join("fit.json")).unwrap(), "1");
+        // Only the folder, its kept previous set and the lock are left.
+        assert_eq!(files(d.path()), [".out.lock", ".out.previous", "out"]);
+    }
+
+    #[test]
+    fn an_interrupted_run_leaves_the_old_set_and_is_cleaned_up_next_time() {
+        let d = tempfile::tempdir().unwrap();
+        let out = d.path().join("out");
+        fs::create_dir(&out).unwrap();
+        fs::write(out.join("fit.json"), "old").unwrap();
+        {
+            let s = Staging::begin(&out).unwrap();
+            fs::write(s.path().join("fit.json"), "half").unwrap();
+            // Dropped without commit: an error in the middle.
+        }
+        assert_eq!(fs::read_to_string(out.join("fit.json")).unwrap(), "old");
+        assert_eq!(files(d.path()), [".out.lock", "out"]);
+        // A killed run leaves its staging folder: the next run removes it.
+        fs::create_dir(d.path().join(".out.new-999999")).unwrap();
+        // …and a kill between the fallback's two renames leaves no folder but
+        // the previous set: the next run puts it back first.
+        fs::rename(&out, d.path().join(".out.previous")).unwrap();
+        let s = Staging::begin(&out).unwrap();
+        assert_eq!(fs::read_to_string(out.join("fit.json")).unwrap(), "old");
+        assert!(!d.path().join(".out.new-999999").exists());
+        drop(s);
+    }
+
+    #[test]
+    fn a_second_writer_is_refused_while_the_first_holds_the_folder() {
+        let d = tempfile::tempdir().unwrap();
+        let out = d.path().join("out");
+        let first = Staging::begin(&out).unwrap();
+        let e = Staging::begin(&out).err().unwrap().to_string();
+        assert!(e.contains("another priorsmith process"), "{e}");
+        drop(first);
+        assert!(Staging::begin(&out).is_ok());
+    }
+
+    #[test]
+    fn a_file_or_a_dangling_link_as_the_folder_is_refused_clearly() {
+        let d = tempfile::tempdir().unwrap();
+        let f = d.path().join("plain");
+        fs::write(&f, "x").unwrap();
+        let e = Staging::begin(&f).err().unwrap().to_string();
+        assert!(e.contains("a file, not a folder"), "{e}");
+        let l = d.path().join("link");
+        std::os::unix::fs::symlink(d.path().join("nowhere"), &l).unwrap();
+        let e = Staging::begin(&l).err().unwrap().to_string();
+        assert!(e.contains("leads to no folder"), "{e}");
+    }
+}
