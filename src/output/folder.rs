@@ -7,7 +7,7 @@
 //! temporary files:
 //!
 //! 1. **Lock.** `.<name>.lock` beside the folder is locked exclusively
-//!    (`File::try_lock`, an advisory `flock` on Linux); a second writer to the
+//!    (an advisory `flock`); a second writer to the
 //!    same folder is refused with a clear error instead of silently replacing
 //!    the first one's result. The lock dies with its process.
 //! 2. **Recover.** Holding the lock, staging folders left by an interrupted run
@@ -87,9 +87,9 @@ impl Staging {
             .write(true)
             .open(&lock_path)
             .map_err(|e| Error::io(&lock_path, e))?;
-        match lock.try_lock() {
-            Ok(()) => {}
-            Err(fs::TryLockError::WouldBlock) => {
+        match try_lock(&lock) {
+            Ok(true) => {}
+            Ok(false) => {
                 return Err(Error::io(
                     target,
                     std::io::Error::other(
@@ -98,7 +98,7 @@ impl Staging {
                     ),
                 ))
             }
-            Err(fs::TryLockError::Error(e)) => return Err(Error::io(&lock_path, e)),
+            Err(e) => return Err(Error::io(&lock_path, e)),
         }
         let previous = previous_of(target);
         recover(target, &previous)?;
@@ -196,6 +196,28 @@ fn sync_dir(p: &Path) {
     if let Ok(f) = File::open(p) {
         let _ = f.sync_all();
     }
+}
+
+/// Take an exclusive advisory lock on `f` without waiting: `Ok(false)` when
+/// another process holds it.
+#[cfg(unix)]
+fn try_lock(f: &File) -> std::io::Result<bool> {
+    use std::os::unix::io::AsRawFd;
+    // SAFETY: a valid open descriptor; flock does not touch memory.
+    if unsafe { libc::flock(f.as_raw_fd(), libc::LOCK_EX | libc::LOCK_NB) } == 0 {
+        return Ok(true);
+    }
+    let e = std::io::Error::last_os_error();
+    if e.kind() == std::io::ErrorKind::WouldBlock {
+        Ok(false)
+    } else {
+        Err(e)
+    }
+}
+
+#[cfg(not(unix))]
+fn try_lock(_f: &File) -> std::io::Result<bool> {
+    Ok(true)
 }
 
 /// Exchange two paths atomically (Linux `renameat2` with `RENAME_EXCHANGE`).
