@@ -399,12 +399,12 @@ fn cancelled_batch_resumes_to_the_same_table() {
     let opts = RunOptions::default();
     let whole = d.path().join("whole");
     let plan = batch::plan(&base, &table, &ov(Cancel::new())).unwrap();
-    batch::run(&plan, &whole, &opts, &|_, _| {}).unwrap();
+    batch::run(&plan, &whole, &opts, &|_| {}).unwrap();
 
     let cut = d.path().join("cut");
     // About two rows' worth of evaluations.
     let plan = batch::plan(&base, &table, &ov(Cancel::after(1500))).unwrap();
-    let e = batch::run(&plan, &cut, &opts, &|_, _| {}).unwrap_err();
+    let e = batch::run(&plan, &cut, &opts, &|_| {}).unwrap_err();
     assert!(matches!(e, priorsmith::Error::Cancelled), "{e}");
     assert!(!cut.join("results.csv").exists());
     let records = std::fs::read_dir(cut.join("rows")).unwrap().count();
@@ -415,7 +415,7 @@ fn cancelled_batch_resumes_to_the_same_table() {
         assert!(text.contains("\"status\": \"ok\""), "{text}");
     }
     let plan = batch::plan(&base, &table, &ov(Cancel::new())).unwrap();
-    let rep = batch::run(&plan, &cut, &opts, &|_, _| {}).unwrap();
+    let rep = batch::run(&plan, &cut, &opts, &|_| {}).unwrap();
     assert_eq!(rep.skipped, records);
     assert_eq!(
         read(&cut.join("results.csv")),

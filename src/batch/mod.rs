@@ -136,6 +136,26 @@ impl ModelFiles {
     }
 }
 
+/// Where a run stands, for progress displays: rows done of the shard's total,
+/// and among them rows found done earlier, rows judged "not met", rows failed.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct Tally {
+    pub done: usize,
+    pub total: usize,
+    pub skipped: usize,
+    pub not_met: usize,
+    pub failed: usize,
+}
+
+/// Whether a row's record says its fit is "not met".
+pub fn row_not_met(rec: &RowRecord) -> bool {
+    rec.status == RowStatus::Ok
+        && rec
+            .stats
+            .iter()
+            .any(|(k, v)| k == "verdict" && v == crate::fit::Verdict::NotMet.words())
+}
+
 /// Summary of a run.
 #[derive(Debug, Clone, Default)]
 pub struct RunReport {
@@ -143,6 +163,10 @@ pub struct RunReport {
     pub fitted: usize,
     pub skipped: usize,
     pub failed: usize,
+    /// Rows fitted (now or earlier) whose verdict is "not met".
+    pub not_met: usize,
+    /// Ids of those rows, in table order.
+    pub not_met_ids: Vec<String>,
     /// Files written at the end (relative names).
     pub tables: Vec<String>,
 }
@@ -471,12 +495,12 @@ fn abs(p: &Path) -> PathBuf {
     std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf())
 }
 
-/// Run (the shard of) a batch into `dir`. `tick(done, total)` after each row.
+/// Run (the shard of) a batch into `dir`. `tick` after each row.
 pub fn run(
     plan: &Plan,
     dir: &Path,
     opts: &RunOptions,
-    tick: &(dyn Fn(usize, usize) + Sync),
+    tick: &(dyn Fn(&Tally) + Sync),
 ) -> Result<RunReport> {
     output::ensure_dir(dir)?;
     output::ensure_dir(&dir.join("rows"))?;
@@ -493,7 +517,10 @@ pub fn run(
     write_atomic(&dir.join("batch.json"), mj.as_bytes())?;
     let range = shard_range(plan.rows.len(), opts.shard);
     let mine = &plan.rows[range.clone()];
-    let done = std::sync::atomic::AtomicUsize::new(0);
+    let tally = std::sync::Mutex::new(Tally {
+        total: mine.len(),
+        ..Tally::default()
+    });
     let fitted = std::sync::atomic::AtomicUsize::new(0);
     let out: Vec<Result<(RowRecord, bool)>> = mine
         .par_iter()
@@ -505,8 +532,22 @@ pub fn run(
                     std::process::abort();
                 }
             }
-            let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
-            tick(k, mine.len());
+            // A poisoned lock only loses the display's count, never a row.
+            let now = tally.lock().ok().map(|mut t| {
+                t.done += 1;
+                match &x {
+                    Ok((rec, skipped)) => {
+                        t.skipped += usize::from(*skipped);
+                        t.failed += usize::from(rec.status != RowStatus::Ok);
+                        t.not_met += usize::from(row_not_met(rec));
+                    }
+                    Err(_) => t.failed += 1,
+                }
+                *t
+            });
+            if let Some(t) = now {
+                tick(&t);
+            }
             x
         })
         .collect();
@@ -524,6 +565,10 @@ pub fn run(
         }
         if rec.status != RowStatus::Ok {
             rep.failed += 1;
+        }
+        if row_not_met(&rec) {
+            rep.not_met += 1;
+            rep.not_met_ids.push(rec.id.clone());
         }
         recs.insert(rec.row, rec);
     }
@@ -717,6 +762,12 @@ pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result
     let mut rep = RunReport {
         rows: plan.rows.len(),
         failed: recs.values().filter(|x| x.status != RowStatus::Ok).count(),
+        not_met: recs.values().filter(|x| row_not_met(x)).count(),
+        not_met_ids: recs
+            .values()
+            .filter(|x| row_not_met(x))
+            .map(|x| x.id.clone())
+            .collect(),
         ..Default::default()
     };
     for (name, bytes) in [

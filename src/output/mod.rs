@@ -3,6 +3,7 @@
 //! place, so a reader never sees a half-written file, and a failed run leaves no
 //! partial output behind.
 
+pub mod explain;
 pub mod plots;
 pub mod summary;
 pub mod svg;

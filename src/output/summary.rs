@@ -1,6 +1,7 @@
 //! `summary.txt`: a plain-text table of the fitted hyperparameters and of how
 //! well each belief is met.
 
+use super::explain;
 use crate::fit::verdict::fmt_num;
 use crate::fit::FitResult;
 use std::fmt::Write;
@@ -40,6 +41,15 @@ pub fn render(r: &FitResult) -> String {
         r.discrepancy.name(),
         &r.spec_digest[..12.min(r.spec_digest.len())]
     );
+    let _ = writeln!(s, "Verdict: {}", explain::overall_words(r));
+    let und = explain::undetermined(r);
+    if !und.is_empty() {
+        let _ = writeln!(
+            s,
+            "Undetermined by the beliefs (value chosen by the tie-break, not by the beliefs): {}",
+            und.join(", ")
+        );
+    }
     let _ = writeln!(s);
     let _ = writeln!(
         s,
@@ -95,10 +105,18 @@ pub fn render(r: &FitResult) -> String {
             b.noise_floor,
             b.ratio,
             b.rms_cdf_gap,
-            b.verdict.words()
+            explain::verdict_words(b, r.tolerance)
         );
+        let largest = explain::largest_difference_line(b);
         for h in &b.how {
+            // The generic "shape differs" line says less than the largest difference.
+            if largest.is_some() && h.starts_with("shape differs") {
+                continue;
+            }
             let _ = writeln!(s, "  {:<lw$}    ↳ {h}", "");
+        }
+        if let Some(l) = largest {
+            let _ = writeln!(s, "  {:<lw$}    ↳ {l}", "");
         }
     }
     let _ = writeln!(
@@ -109,8 +127,11 @@ pub fn render(r: &FitResult) -> String {
         r.total.noise_floor,
         r.total.fresh / r.total.noise_floor,
         "",
-        r.verdict.words()
+        explain::overall_words(r)
     );
+    if r.verdict == crate::fit::Verdict::NotMet {
+        let _ = writeln!(s, "  {}", explain::NEXT_STEP_NOT_MET);
+    }
     let _ = writeln!(s);
     let _ = writeln!(s, "Believed vs implied quantiles");
     let probs: Vec<String> = r

@@ -281,13 +281,19 @@ fn simulation(ctx: &Ctx, raw: &RawSpec, ov: &Overrides) -> Result<Simulation> {
             .with_hint("use at least 100; 10,000–50,000 is typical"));
     }
     if draws > cap {
+        // A resource limit (exit 5), blamed on where the value came from.
         let mb = draws as f64 * 8.0 * 12.0 / 1e6;
-        return Err(ctx
-            .err(
-                &sp("draws"),
-                format!("draws = {draws} exceeds the limit of {cap} (about {mb:.0} MB of working memory)"),
-            )
-            .with_hint("lower it, or raise the limit deliberately with --max-draws"));
+        let what = format!(
+            "{draws} draws exceed the limit of {cap} (about {mb:.0} MB of working memory)\n  \
+             hint: lower it, or raise the limit deliberately with --max-draws"
+        );
+        return Err(Error::Limit(match ov.draws {
+            Some(_) => format!("option `--draws`: {what}"),
+            None => match ctx.err(&sp("draws"), "") {
+                Error::Input { loc, .. } => format!("{loc}: {what}"),
+                other => format!("{other}: {what}"),
+            },
+        }));
     }
     let seed = match (ov.seed, sim.and_then(|s| s.seed.as_ref())) {
         (Some(s), _) => s,
