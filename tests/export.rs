@@ -636,10 +636,10 @@ fn fit_writes_a_self_contained_report_with_every_plot() {
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     // Two beliefs × (CDF + density) + hyperparameters.
     for id in [
-        "belief-0-cdf",
-        "belief-0-density",
         "belief-1-cdf",
         "belief-1-density",
+        "belief-2-cdf",
+        "belief-2-density",
         "hyperparameters",
     ] {
         assert!(html.contains(&format!("id=\"{id}\"")), "{id} missing");
@@ -668,7 +668,10 @@ fn report_renders_optional_diagnostics_when_present() {
     // rule the fit traces one and the report plots it.
     let (_d, out) = fit_small();
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(!html.contains("id=\"diag-pareto\""));
+    assert!(!html.contains("id=\"pareto\""));
+    assert!(html.contains("No Pareto front was traced"));
+    assert!(!html.contains(">null<"), "raw null shown");
+    assert!(html.contains("class=\"directions\""), "no directions table");
     assert!(html.contains("identifiability (as recorded in fit.json)"));
     let d = tempfile::tempdir().unwrap();
     let spec = d.path().join("spec.toml");
@@ -678,8 +681,9 @@ fn report_renders_optional_diagnostics_when_present() {
     ok(&["fit", s, "--draws", "2000", "-q", "-o", o]);
     ok(&["report", o, "-q"]);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(html.contains("id=\"diag-pareto\""));
-    assert!(out.join("plots/diag-pareto.svg").exists());
+    assert!(html.contains("id=\"pareto\""));
+    assert!(html.contains("one noise floor above the best"));
+    assert!(out.join("plots/pareto.svg").exists());
     assert!(!html.contains("Sensitivity sweep"));
 }
 
