@@ -422,3 +422,34 @@ fn cancelled_batch_resumes_to_the_same_table() {
         read(&whole.join("results.csv"))
     );
 }
+
+/// A misspelt column stops the batch before any fit, naming the column, with
+/// "did you mean"; no output folder is created.
+#[test]
+fn misspelt_column_is_refused_before_any_fit() {
+    let d = tempfile::tempdir().unwrap();
+    let base = d.path().join("base.toml");
+    std::fs::write(&base, common::EXAMPLE).unwrap();
+    for (col, want) in [
+        ("simulaton.seed", "did you mean `simulation`"),
+        ("prior.cure_logt.sd", "did you mean `cure_logit`"),
+    ] {
+        let table = d.path().join("t.csv");
+        std::fs::write(&table, format!("id,{col}\na,3\nb,4\n")).unwrap();
+        let out = d.path().join("o");
+        let o = common::run(&[
+            "batch",
+            table.to_str().unwrap(),
+            "--spec",
+            base.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ]);
+        let err = common::stderr(&o);
+        assert_eq!(o.status.code(), Some(3), "{err}");
+        assert!(err.contains(&format!("column `{col}`")), "{err}");
+        assert!(err.contains(want), "{err}");
+        assert!(err.contains("before any row was fitted"), "{err}");
+        assert!(!out.exists(), "{col}: output folder created");
+    }
+}

@@ -284,13 +284,68 @@ pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan>
             digest,
         });
     }
-    Ok(Plan {
+    let plan = Plan {
         base_path: base_path.to_path_buf(),
         base_text,
         table_path: table_path.to_path_buf(),
         overrides: ov.clone(),
         rows,
-    })
+    };
+    check_columns(&plan, &t.columns)?;
+    Ok(plan)
+}
+
+/// Refuse the whole batch, before any fit, when a column names no key of the
+/// belief file (a misspelt `simulaton.seed`, `prior.cure_logt.sd`): otherwise
+/// every row would fail separately with the same error. Each column is checked
+/// by validating the first row that sets it; the column is misspelt when the
+/// validation error is an unknown name with a "did you mean" hint, located
+/// above the column's key path (a bad *value* is the row's own error and is
+/// left to that row).
+fn check_columns(plan: &Plan, columns: &[String]) -> Result<()> {
+    let mut checked: Vec<&str> = Vec::new();
+    for r in &plan.rows {
+        let Ok(tab) = &r.table else { continue };
+        if r.applied.iter().all(|(c, _, _)| checked.contains(&c.as_str())) {
+            continue;
+        }
+        checked.extend(r.applied.iter().map(|(c, _, _)| c.as_str()));
+        let Err(Error::Input { loc, msg, hint }) = spec::from_table(
+            tab.clone(),
+            &plan.base_text,
+            Some(&plan.base_path),
+            &plan.overrides,
+        ) else {
+            continue;
+        };
+        let Some(h) = hint.filter(|h| h.contains("did you mean")) else {
+            continue;
+        };
+        let bad = r.applied.iter().find(|(col, _, p)| match &loc.key {
+            Some(k) => p.starts_with(&format!("{k}.")) || p.starts_with(&format!("{k}[")),
+            None => {
+                let first = col.split('.').next().unwrap_or(col);
+                msg.contains(&format!("unknown field `{first}`"))
+            }
+        });
+        if let Some((col, _, _)) = bad {
+            return Err(Error::input(
+                Location {
+                    file: Some(plan.table_path.clone()),
+                    line: None,
+                    key: Some(col.clone()),
+                },
+                format!(
+                    "column `{col}` names no key of the belief file {}: {msg} \
+                     (checked before any row was fitted; columns: {})",
+                    plan.base_path.display(),
+                    columns.join(", ")
+                ),
+            )
+            .with_hint(h));
+        }
+    }
+    Ok(())
 }
 
 fn one_line(s: &str) -> String {
