@@ -516,13 +516,17 @@ fn run_row(
                     clean_tmp(&mdir);
                     output::write_fit_files(&mdir, &res, files == ModelFiles::Full)?;
                     if let Ok(tab) = &r.table {
+                        // Data paths rewritten to resolve from the model folder,
+                        // so `fit models/<id>/spec.toml` reproduces the row.
+                        let mut tab = tab.clone();
+                        spec::rebase_paths(&mut tab, &spec::base_dir(Some(&plan.base_path)), &mdir);
                         let text = format!(
                         "# The belief file of batch row {} (id \"{}\"): {} with the row's changes.\n\
-                         # Relative paths resolve against the base file's folder.\n{}",
+                         # Data paths are rewritten to resolve from this folder.\n{}",
                         r.number,
                         r.id,
                         plan.base_path.display(),
-                        toml::to_string(tab).unwrap_or_default()
+                        toml::to_string(&tab).unwrap_or_default()
                     );
                         write_atomic(&mdir.join("spec.toml"), text.as_bytes())?;
                     }

@@ -422,14 +422,58 @@ fn cmd_fit(
         spec.fit.replicates = k;
     }
     let r = fit_and_write(&spec, out, quiet)?;
+    let copied = write_spec_copy(a, out)?;
     if !quiet {
         print!("{}", output::summary::render(&r));
         println!(
-            "\nwrote {}/fit.json, summary.txt, draws.csv, report.html",
-            out.display()
+            "\nwrote {}/fit.json, summary.txt, draws.csv, report.html{}",
+            out.display(),
+            if copied { ", spec.toml" } else { "" }
         );
     }
     escalate(&format!("fit of {}", a.spec.display()), &r, quiet, require_met)
+}
+
+/// Write the belief file that was fitted as OUT/spec.toml: normalised (the
+/// parsed table; its digest is the record's `spec_digest`), with relative data
+/// paths rewritten to resolve from OUT, so `priorsmith fit OUT/spec.toml`
+/// refits it and `priorsmith conflict OUT` finds it. Nothing is written when
+/// OUT/spec.toml is the fitted file itself. Returns whether it was written.
+fn write_spec_copy(a: &SpecArgs, out: &Path) -> Result<bool> {
+    let target = out.join("spec.toml");
+    if let (Ok(x), Ok(y)) = (a.spec.canonicalize(), target.canonicalize()) {
+        if x == y {
+            return Ok(false);
+        }
+    }
+    let text = std::fs::read_to_string(&a.spec).map_err(|e| Error::io(&a.spec, e))?;
+    let mut table = spec::parse_table(&text, Some(&a.spec))?;
+    spec::rebase_paths(&mut table, &spec::base_dir(Some(&a.spec)), out);
+    let body = toml::to_string(&table)
+        .map_err(|e| Error::Internal(format!("writing spec.toml: {e}")))?;
+    let mut overrides = Vec::new();
+    if let Some(s) = a.seed {
+        overrides.push(format!("--seed {s}"));
+    }
+    if let Some(d) = a.draws {
+        overrides.push(format!("--draws {d}"));
+    }
+    let note = if overrides.is_empty() {
+        String::new()
+    } else {
+        format!(
+            "# Fitted with {} (fit.json records the seed and draws used).\n",
+            overrides.join(" ")
+        )
+    };
+    let head = format!(
+        "# The belief file fitted into this folder: {} as parsed (comments dropped,\n\
+         # data paths rewritten to resolve from here). `priorsmith fit` on this file\n\
+         # refits it; `priorsmith conflict` reads it by default.\n{note}",
+        a.spec.display()
+    );
+    output::write_atomic(&target, format!("{head}{body}").as_bytes())?;
+    Ok(true)
 }
 
 fn cmd_check(path: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
