@@ -178,7 +178,7 @@ pub fn undetermined(r: &FitResult) -> Vec<&str> {
 
 /// "belief 2 (median survival)": beliefs are numbered from 1 everywhere.
 pub fn belief_name(i: usize, b: &BeliefReport) -> String {
-    format!("belief {} ({})", i + 1, b.label)
+    format!("belief {} ({})", i + 1, super::labels::belief(b))
 }
 
 /// What to do after a fit that is not met, in one sentence.

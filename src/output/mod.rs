@@ -4,6 +4,7 @@
 //! partial output behind.
 
 pub mod explain;
+pub mod labels;
 pub mod plots;
 pub mod summary;
 pub mod svg;

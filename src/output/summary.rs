@@ -1,7 +1,7 @@
 //! `summary.txt`: a plain-text table of the fitted hyperparameters and of how
 //! well each belief is met.
 
-use super::explain;
+use super::{explain, labels};
 use crate::fit::verdict::fmt_num;
 use crate::fit::FitResult;
 use std::fmt::Write;
@@ -87,7 +87,7 @@ pub fn render(r: &FitResult) -> String {
     let lw = r
         .beliefs
         .iter()
-        .map(|b| b.label.len())
+        .map(|b| labels::belief(b).chars().count())
         .max()
         .unwrap_or(10)
         .max(10);
@@ -100,7 +100,7 @@ pub fn render(r: &FitResult) -> String {
         let _ = writeln!(
             s,
             "  {:<lw$}  {:>11.3e}  {:>11.3e}  {:>7.2}  {:>8.4}  {}",
-            b.label,
+            labels::belief(b),
             b.fresh,
             b.noise_floor,
             b.ratio,
@@ -154,7 +154,7 @@ pub fn render(r: &FitResult) -> String {
         let _ = writeln!(
             s,
             "  {:<lw$}  {:>8} {}",
-            b.label,
+            labels::belief(b),
             "believed",
             row(&b.believed_quantiles)
         );
@@ -199,7 +199,7 @@ pub fn render(r: &FitResult) -> String {
             let _ = writeln!(
                 s,
                 "  {:<lw$}  {:>10}  {:>10}",
-                b.label,
+                labels::belief(b),
                 f(b.believed_ess),
                 f(b.ess)
             );

@@ -10,7 +10,7 @@ use crate::numerics::format::html as fnum;
 use crate::fit::profile::Call;
 use crate::fit::{SetBy, Verdict};
 use crate::numerics::format::sig;
-use crate::output::explain;
+use crate::output::{explain, labels};
 use crate::output::summary::CAUTION;
 use serde_json::Value;
 use std::fmt::Write;
@@ -101,7 +101,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         let _ = writeln!(
             html,
             "<tr><td><a href=\"#belief-{n}\">{n}. {}</a></td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"v {}\"><span class=\"mark\">{}</span> {}</td><td>{}</td><td>{}</td></tr>",
-            esc(&b.r.label), esc(&b.r.stated_as), sig(b.r.weight, 3), sig(b.r.fresh, 3), sig(b.r.noise_floor, 3), sig(b.r.ratio, 3), sig(b.r.rms_cdf_gap, 3), b.r.verdict.code(), mark(b.r.verdict.code()), esc(&explain::verdict_words(&b.r, fit.tolerance)), ess(b.r.believed_ess), ess(b.r.ess),
+            esc(&labels::belief(&b.r)), esc(&b.r.stated_as), sig(b.r.weight, 3), sig(b.r.fresh, 3), sig(b.r.noise_floor, 3), sig(b.r.ratio, 3), sig(b.r.rms_cdf_gap, 3), b.r.verdict.code(), mark(b.r.verdict.code()), esc(&explain::verdict_words(&b.r, fit.tolerance)), ess(b.r.believed_ess), ess(b.r.ess),
             n = k + 1
         );
     }
@@ -117,7 +117,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         let _ = writeln!(html, "<section class=\"belief\" id=\"belief-{}\">\n<h2>Belief {}: {}</h2>\n<p class=\"sub\">quantity <code>{}</code>{} · stated as {} · <span class=\"v {}\"><span class=\"mark\">{}</span> {}</span></p>",
             k + 1,
             k + 1,
-            esc(&b.r.label),
+            esc(&labels::belief(&b.r)),
             esc(&b.r.quantity),
             b.r.unit.as_ref().map(|u| format!(" in {}", esc(u))).unwrap_or_default(),
             esc(&b.r.stated_as),

@@ -54,10 +54,7 @@ pub(super) fn x_range(b: &BeliefView) -> (f64, f64) {
 }
 
 pub(super) fn axis_label(b: &BeliefView) -> String {
-    match &b.r.unit {
-        Some(u) => format!("{} ({u})", b.r.label),
-        None => b.r.label.clone(),
-    }
+    crate::output::labels::with_unit(&b.r)
 }
 
 pub(super) const INF_COL: f64 = 104.0;
@@ -71,7 +68,7 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         id,
         &format!(
             "{}: believed and implied cumulative distribution",
-            b.r.label
+            crate::output::labels::belief(&b.r)
         ),
         (lo, hi, false),
         (0.0, 1.0),
@@ -265,14 +262,14 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
         id,
         &format!(
             "{}: believed density and histogram of the implied draws",
-            b.r.label
+            crate::output::labels::belief(&b.r)
         ),
         (lo, hi, false),
         (0.0, ymax * 1.1),
         0.0,
     );
     let ylab = match &b.r.unit {
-        Some(u) => format!("density (per {u})"),
+        Some(u) => format!("density ({})", crate::output::labels::per_unit(u)),
         None => "density".into(),
     };
     p.axes(&axis_label(b), &ylab);
