@@ -390,7 +390,7 @@ pub fn escalate(what: &str, r: &fit::FitResult, quiet: bool, require_met: bool) 
 /// Fit and write outputs; shared by `fit` and `demo`.
 pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitResult> {
     output::ensure_dir(out)?;
-    let pb = progress::Progress::new(quiet, "fitting: local searches");
+    let pb = progress::Progress::new(quiet, "fitting");
     let cb = |done: usize, total: usize| {
         if let Some(pb) = &pb {
             pb.update(done, total, "");
