@@ -6,7 +6,8 @@
 //!   scientific outside [0.001, 100 000); "inf" / "-inf");
 //! * [`html`]: as `display`, with "∞", "−∞" and "—" (not a number) for the report;
 //! * [`sig`]: `n` significant digits, trailing zeros dropped, scientific
-//!   ("2.83e-5") outside [0.0001, 1 000 000): the explanations of verdicts;
+//!   ("2.83e-5") outside [0.001, 1 000 000): the explanations of verdicts, the
+//!   report's tables;
 //! * [`csv`]: every digit (shortest round-trip form), "inf" / "-inf", for tables
 //!   that are read back.
 
@@ -62,7 +63,7 @@ pub fn sig(x: f64, digits: usize) -> String {
             s
         }
     };
-    if (-4..6).contains(&e) {
+    if (-3..6).contains(&e) {
         let decimals = (digits as i32 - 1 - e).max(0) as usize;
         trim(format!("{r:.decimals$}"))
     } else {
