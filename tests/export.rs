@@ -775,3 +775,30 @@ fn report_renders_in_headless_chromium() {
         "some plots did not render"
     );
 }
+
+/// A belief on the uncured median alone leaves hyperparameters to the
+/// tie-break: the summary, the report's headline and caution box, and the
+/// terminal say so, though the belief is met.
+#[test]
+fn undetermined_fit_is_named_in_headline_summary_and_terminal() {
+    let d = tempfile::tempdir().unwrap();
+    let base = include_str!("../model-templates/mixture-cure.toml");
+    let i = base.find("[[belief]]").unwrap();
+    let spec_text = format!(
+        "{}[[belief]]\nquantity = \"median_uncured\"\ndistribution = {{ family = \"lognormal\", meanlog = 2.5, sdlog = 0.3 }}\n",
+        &base[..i]
+    );
+    let spec = d.path().join("und.toml");
+    std::fs::write(&spec, spec_text).unwrap();
+    let out = d.path().join("out");
+    let o = run(&["fit", spec.to_str().unwrap(), "--draws", "4000", "-o", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(err.contains("undetermined; the tie-break set"), "{err}");
+    let summary = std::fs::read_to_string(out.join("summary.txt")).unwrap();
+    assert!(summary.contains("Undetermined by the beliefs"), "{summary}");
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("undetermined by them (chosen by the tie-break)"));
+    assert!(html.contains("<b>Undetermined.</b>"));
+    assert!(html.contains("the tie-break (the beliefs leave it undetermined)"));
+}
