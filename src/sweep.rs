@@ -232,7 +232,11 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
         return Err(Error::Numeric("empty sweep".into()));
     };
     // The beliefs as stated (width 1) name the sweep; otherwise the first width.
-    let r0 = &points.iter().find(|p| p.width == 1.0).unwrap_or(first).result;
+    let r0 = &points
+        .iter()
+        .find(|p| p.width == 1.0)
+        .unwrap_or(first)
+        .result;
     let title = r0
         .title
         .split(" (beliefs widened ×")
@@ -248,7 +252,13 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
         .collect();
     let ws = |v: &[f64]| v.iter().map(|w| sig(*w, 3)).collect::<Vec<_>>().join(", ");
     // (label, colour, dash, values per width, marked per width)
-    type Series = (String, &'static str, Option<&'static str>, Vec<f64>, Vec<bool>);
+    type Series = (
+        String,
+        &'static str,
+        Option<&'static str>,
+        Vec<f64>,
+        Vec<bool>,
+    );
     // (caption, note under the caption, series)
     let mut panels: Vec<(String, String, Vec<Series>)> = Vec::new();
     for n in &r0.order {
@@ -315,7 +325,11 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
             }
         }
         panels.push((
-            format!("belief {}: {} — 5, 50, 95 % quantiles", i + 1, labels::with_unit(b)),
+            format!(
+                "belief {}: {} — 5, 50, 95 % quantiles",
+                i + 1,
+                labels::with_unit(b)
+            ),
             if infinite.is_empty() {
                 String::new()
             } else {
@@ -343,11 +357,15 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
         (BLUE, None, "believed (median)".into()),
         (VERMILLION, None, "implied (median)".into()),
         (GREY, Some("2 3"), "5 % and 95 %".into()),
-        (GREY, Some("6 4"), if not_met.is_empty() {
-            "no width is not met".into()
-        } else {
-            format!("not met at width {}", ws(&not_met))
-        }),
+        (
+            GREY,
+            Some("6 4"),
+            if not_met.is_empty() {
+                "no width is not met".into()
+            } else {
+                format!("not met at width {}", ws(&not_met))
+            },
+        ),
     ];
     for (c, dash, label) in &legend {
         let _ = writeln!(
@@ -367,7 +385,13 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
         p.set_x_ticks(&xs);
         p.axes("width factor (log scale)", "");
         for &w in &not_met {
-            p.line(&[(w, yr.0), (w, yr.1)], GREY, 1.0, Some("6 4"), "not met at this width");
+            p.line(
+                &[(w, yr.0), (w, yr.1)],
+                GREY,
+                1.0,
+                Some("6 4"),
+                "not met at this width",
+            );
         }
         for (label, col, dash, vals, marks) in ser {
             let pts: Vec<(f64, f64, bool)> = xs
@@ -378,10 +402,22 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
                 .map(|((x, v), m)| (*x, *v, *m))
                 .collect();
             let line: Vec<(f64, f64)> = pts.iter().map(|(x, y, _)| (*x, *y)).collect();
-            p.line(&line, col, if dash.is_some() { 1.5 } else { 2.2 }, *dash, label);
+            p.line(
+                &line,
+                col,
+                if dash.is_some() { 1.5 } else { 2.2 },
+                *dash,
+                label,
+            );
             for (x, y, m) in &pts {
                 let (c, r) = if *m { (ORANGE, 5.0) } else { (*col, 3.0) };
-                p.point(*x, *y, c, r, &format!("{label} at width {}: {}", sig(*x, 3), sig(*y, 4)));
+                p.point(
+                    *x,
+                    *y,
+                    c,
+                    r,
+                    &format!("{label} at width {}: {}", sig(*x, 3), sig(*y, 4)),
+                );
             }
         }
         let _ = writeln!(

@@ -15,7 +15,10 @@ use std::path::Path;
 fn not_met_spec() -> String {
     let s = include_str!("../model-templates/linear.toml");
     let r2d2 = "family = \"r2d2\"\na = { fit = [0.2, 30.0] }\nb = { fit = [0.2, 30.0] }\nconcentration = 0.5";
-    assert!(s.contains(r2d2), "test setup: r2d2 block not in the starter");
+    assert!(
+        s.contains(r2d2),
+        "test setup: r2d2 block not in the starter"
+    );
     s.replace(
         r2d2,
         "family = \"horseshoe\"\nglobal = \"half-cauchy\"\nglobal_scale = { fit = [0.0001, 1.0] }\n#",
@@ -47,10 +50,16 @@ fn success_is_0() {
 fn command_line_arguments_and_values_are_2() {
     let d = tempfile::tempdir().unwrap();
     let spec = write(d.path(), "mc.toml", EXAMPLE);
-    let hist = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/history/historical.csv");
+    let hist = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/demo-data/history/historical.csv"
+    );
     let out = d.path().join("o");
     let cases: Vec<(Vec<&str>, &str)> = vec![
-        (vec!["fit", s(&spec), "--no-such-option"], "--no-such-option"),
+        (
+            vec!["fit", s(&spec), "--no-such-option"],
+            "--no-such-option",
+        ),
         (
             vec!["fit", s(&spec), "--replicates", "0", "--out", s(&out)],
             "--replicates 0",
@@ -71,7 +80,10 @@ fn command_line_arguments_and_values_are_2() {
             vec!["simulate", s(&spec), "--set", "cure_logit.mean"],
             "expected NAME=VALUE",
         ),
-        (vec!["history", hist, "--discount", "0.5"], "needs --horizon"),
+        (
+            vec!["history", hist, "--discount", "0.5"],
+            "needs --horizon",
+        ),
         (
             vec!["history", hist, "--discount", "0.5", "--horizon", "1e9"],
             "--horizon 1000000000",
@@ -79,12 +91,18 @@ fn command_line_arguments_and_values_are_2() {
         (vec!["history", "--discount", "0.5"], "give a DATA.csv"),
         (vec!["new", "mixture-cur"], "did you mean `mixture-cure`"),
         (vec!["templates", "lineer"], "did you mean `linear`"),
-        (vec!["--max-memory", "0", "check", s(&spec)], "--max-memory 0"),
+        (
+            vec!["--max-memory", "0", "check", s(&spec)],
+            "--max-memory 0",
+        ),
     ];
     for (args, needle) in cases {
         let (c, err) = code(&args);
         assert_eq!(c, Some(2), "{args:?}: {err}");
-        assert!(err.contains(needle), "{args:?}: expected {needle:?} in {err}");
+        assert!(
+            err.contains(needle),
+            "{args:?}: expected {needle:?} in {err}"
+        );
     }
     assert!(!out.exists(), "a usage error created the output folder");
 }
@@ -117,7 +135,11 @@ fn io_is_4_and_printed_once() {
     let file = write(d.path(), "a-file", "");
     let (c, err) = code(&["fit", s(&spec), "--out", s(&file.join("sub"))]);
     assert_eq!(c, Some(4), "{err}");
-    assert_eq!(err.lines().filter(|l| l.contains("a-file")).count(), 1, "{err}");
+    assert_eq!(
+        err.lines().filter(|l| l.contains("a-file")).count(),
+        1,
+        "{err}"
+    );
 }
 
 /// Draws over the cap are a resource limit, blamed on where the value came
@@ -129,7 +151,10 @@ fn resource_limits_are_5_and_name_their_source() {
     let out = d.path().join("o");
     let (c, err) = code(&["fit", s(&spec), "--draws", "3000000", "--out", s(&out)]);
     assert_eq!(c, Some(5), "{err}");
-    assert!(err.contains("option `--draws`") && err.contains("--max-draws"), "{err}");
+    assert!(
+        err.contains("option `--draws`") && err.contains("--max-draws"),
+        "{err}"
+    );
     assert!(!err.contains("mc.toml"), "blamed the file: {err}");
     let in_file = write(
         d.path(),
@@ -138,7 +163,10 @@ fn resource_limits_are_5_and_name_their_source() {
     );
     let (c, err) = code(&["check", s(&in_file)]);
     assert_eq!(c, Some(5), "{err}");
-    assert!(err.contains("big.toml") && err.contains("simulation.draws"), "{err}");
+    assert!(
+        err.contains("big.toml") && err.contains("simulation.draws"),
+        "{err}"
+    );
     assert!(!out.exists());
 }
 
@@ -170,7 +198,10 @@ fn not_met_warns_and_is_6_under_require_met() {
     let (c, err) = code(&["--require-met", "fit", s(&spec), "--out", s(&strict)]);
     assert_eq!(c, Some(6), "{err}");
     assert!(err.contains("--require-met"), "{err}");
-    assert!(strict.join("fit.json").exists(), "outputs are written first");
+    assert!(
+        strict.join("fit.json").exists(),
+        "outputs are written first"
+    );
 
     let o = run(&["export", s(&out), "--to", "stan"]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
@@ -182,7 +213,13 @@ fn not_met_warns_and_is_6_under_require_met() {
 
     // A met fit passes the flag.
     let ok = write(d.path(), "mc.toml", EXAMPLE);
-    let (c, err) = code(&["--require-met", "fit", s(&ok), "--out", s(&d.path().join("ok"))]);
+    let (c, err) = code(&[
+        "--require-met",
+        "fit",
+        s(&ok),
+        "--out",
+        s(&d.path().join("ok")),
+    ]);
     assert_eq!(c, Some(0), "{err}");
 }
 
@@ -196,12 +233,31 @@ fn batch_counts_not_met_rows() {
     let o = run(&["batch", s(&table), "--spec", s(&spec), "--out", s(&out)]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     assert!(stdout(&o).contains("2 not met, 0 failed"), "{}", stdout(&o));
-    assert!(stderr(&o).contains("2 of 2 models are not met: a, b"), "{}", stderr(&o));
-    assert!(!stdout(&o).contains("draws.csv"), "lean folders have no draws.csv");
+    assert!(
+        stderr(&o).contains("2 of 2 models are not met: a, b"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(
+        !stdout(&o).contains("draws.csv"),
+        "lean folders have no draws.csv"
+    );
     // Resumed (nothing refitted): still counted, and 6 under the flag.
-    let o = run(&["--require-met", "batch", s(&table), "--spec", s(&spec), "--out", s(&out)]);
+    let o = run(&[
+        "--require-met",
+        "batch",
+        s(&table),
+        "--spec",
+        s(&spec),
+        "--out",
+        s(&out),
+    ]);
     assert_eq!(o.status.code(), Some(6), "{}", stderr(&o));
-    assert!(stdout(&o).contains("2 already done (skipped), 2 not met"), "{}", stdout(&o));
+    assert!(
+        stdout(&o).contains("2 already done (skipped), 2 not met"),
+        "{}",
+        stdout(&o)
+    );
 }
 
 /// Writing into a pipe whose reader has gone ends the program without a
@@ -229,5 +285,9 @@ fn closed_pipe_ends_silently() {
         .output()
         .unwrap();
     assert_eq!(o.status.signal(), Some(libc::SIGPIPE), "{:?}", o.status);
-    assert!(o.stderr.is_empty(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(
+        o.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
 }

@@ -791,7 +791,14 @@ fn undetermined_fit_is_named_in_headline_summary_and_terminal() {
     let spec = d.path().join("und.toml");
     std::fs::write(&spec, spec_text).unwrap();
     let out = d.path().join("out");
-    let o = run(&["fit", spec.to_str().unwrap(), "--draws", "4000", "-o", out.to_str().unwrap()]);
+    let o = run(&[
+        "fit",
+        spec.to_str().unwrap(),
+        "--draws",
+        "4000",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let err = String::from_utf8_lossy(&o.stderr);
     assert!(err.contains("undetermined; the tie-break set"), "{err}");

@@ -273,12 +273,27 @@ fn fit_and_batch_write_a_spec_toml_that_refits() {
     std::fs::create_dir(&data_dir).unwrap();
     let spec = demo_spec(&data_dir, "4000");
     let out = d.path().join("results").join("fit");
-    let o = run(&["fit", spec.to_str().unwrap(), "--out", out.to_str().unwrap(), "-q"]);
+    let o = run(&[
+        "fit",
+        spec.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let copy = std::fs::read_to_string(out.join("spec.toml")).unwrap();
-    assert!(copy.contains("data = \"../../inputs/historical.csv\""), "{copy}");
+    assert!(
+        copy.contains("data = \"../../inputs/historical.csv\""),
+        "{copy}"
+    );
     let again = d.path().join("again");
-    let o = run(&["fit", out.join("spec.toml").to_str().unwrap(), "--out", again.to_str().unwrap(), "-q"]);
+    let o = run(&[
+        "fit",
+        out.join("spec.toml").to_str().unwrap(),
+        "--out",
+        again.to_str().unwrap(),
+        "-q",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let (a, b) = (json(&out.join("fit.json")), json(&again.join("fit.json")));
     assert_eq!(a["hyperparameters"], b["hyperparameters"]);
@@ -295,11 +310,25 @@ fn fit_and_batch_write_a_spec_toml_that_refits() {
 
     let table = write(d.path(), "t.csv", "id,simulation.seed\nrow-a,5\n");
     let bo = d.path().join("batch");
-    let o = run(&["batch", table.to_str().unwrap(), "--spec", spec.to_str().unwrap(), "--out", bo.to_str().unwrap(), "-q"]);
+    let o = run(&[
+        "batch",
+        table.to_str().unwrap(),
+        "--spec",
+        spec.to_str().unwrap(),
+        "--out",
+        bo.to_str().unwrap(),
+        "-q",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let row = bo.join("models").join("row-a");
     let refit = d.path().join("refit");
-    let o = run(&["fit", row.join("spec.toml").to_str().unwrap(), "--out", refit.to_str().unwrap(), "-q"]);
+    let o = run(&[
+        "fit",
+        row.join("spec.toml").to_str().unwrap(),
+        "--out",
+        refit.to_str().unwrap(),
+        "-q",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let (a, b) = (json(&row.join("fit.json")), json(&refit.join("fit.json")));
     assert_eq!(a["hyperparameters"], b["hyperparameters"]);

@@ -100,7 +100,10 @@ fn wider_cure_belief_widens_cure_sd_and_width_one_is_fit() {
     // Titled by the beliefs as stated, with every width named and labelled on
     // the axis; believed blue and implied vermillion, as in the report.
     assert!(!svg.contains("widened ×"), "title of one width");
-    assert!(svg.contains("widths 0.5, 0.75, 1, 1.5, 2"), "widths not named");
+    assert!(
+        svg.contains("widths 0.5, 0.75, 1, 1.5, 2"),
+        "widths not named"
+    );
     for w in ["0.5", "0.75", "1.5"] {
         assert!(
             svg.contains(&format!("text-anchor=\"middle\">{w}</text>")),

@@ -306,7 +306,10 @@ fn check_columns(plan: &Plan, columns: &[String]) -> Result<()> {
     let mut checked: Vec<&str> = Vec::new();
     for r in &plan.rows {
         let Ok(tab) = &r.table else { continue };
-        if r.applied.iter().all(|(c, _, _)| checked.contains(&c.as_str())) {
+        if r.applied
+            .iter()
+            .all(|(c, _, _)| checked.contains(&c.as_str()))
+        {
             continue;
         }
         checked.extend(r.applied.iter().map(|(c, _, _)| c.as_str()));

@@ -56,7 +56,10 @@ pub fn run(a: &HistoryArgs) -> Result<()> {
             }
             let obs = read_csv(path, a.arm.as_deref())?;
             let km = KaplanMeier::new(&obs);
-            if let Some(h) = a.horizon.filter(|_| summary == belief::Summary::SurvivalProb) {
+            if let Some(h) = a
+                .horizon
+                .filter(|_| summary == belief::Summary::SurvivalProb)
+            {
                 if !(h > 0.0 && h <= km.last_time) {
                     return Err(usage(format!(
                         "--horizon {h}: must lie in (0, {}], the follow-up of {}",
@@ -96,11 +99,7 @@ pub fn run(a: &HistoryArgs) -> Result<()> {
         }
         (None, Some(e), Some(n)) => belief::HistBelief::from_binary(e, n, a.horizon, d)
             .map_err(|m| usage(format!("--events/--total: {m}")))?,
-        _ => {
-            return Err(usage(
-                "give a DATA.csv, or --events and --total (not both)",
-            ))
-        }
+        _ => return Err(usage("give a DATA.csv, or --events and --total (not both)")),
     };
     print!("{}", hb.toml_block());
     Ok(())

@@ -431,7 +431,12 @@ fn cmd_fit(
             if copied { ", spec.toml" } else { "" }
         );
     }
-    escalate(&format!("fit of {}", a.spec.display()), &r, quiet, require_met)
+    escalate(
+        &format!("fit of {}", a.spec.display()),
+        &r,
+        quiet,
+        require_met,
+    )
 }
 
 /// Write the belief file that was fitted as OUT/spec.toml: normalised (the
@@ -449,8 +454,8 @@ fn write_spec_copy(a: &SpecArgs, out: &Path) -> Result<bool> {
     let text = std::fs::read_to_string(&a.spec).map_err(|e| Error::io(&a.spec, e))?;
     let mut table = spec::parse_table(&text, Some(&a.spec))?;
     spec::rebase_paths(&mut table, &spec::base_dir(Some(&a.spec)), out);
-    let body = toml::to_string(&table)
-        .map_err(|e| Error::Internal(format!("writing spec.toml: {e}")))?;
+    let body =
+        toml::to_string(&table).map_err(|e| Error::Internal(format!("writing spec.toml: {e}")))?;
     let mut overrides = Vec::new();
     if let Some(s) = a.seed {
         overrides.push(format!("--seed {s}"));
@@ -697,8 +702,14 @@ mod tests {
         let io = || std::io::Error::new(std::io::ErrorKind::NotFound, "gone");
         let cases: Vec<(anyhow::Error, i32)> = vec![
             (usage("--widths 0"), 2),
-            (Error::input(loc(None, "--horizon"), "must be > 0").into(), 2),
-            (Error::input(loc(Some("a.toml"), "fit.tolerance"), "bad").into(), 3),
+            (
+                Error::input(loc(None, "--horizon"), "must be > 0").into(),
+                2,
+            ),
+            (
+                Error::input(loc(Some("a.toml"), "fit.tolerance"), "bad").into(),
+                3,
+            ),
             (Error::io("a.toml", io()).into(), 4),
             (anyhow::Error::new(io()), 4),
             (Error::Limit("too many".into()).into(), 5),
@@ -708,7 +719,10 @@ mod tests {
             (anyhow::anyhow!("an error of no known kind"), 70),
             (Error::Cancelled.into(), 130),
             // The kind is found under added context.
-            (anyhow::Error::from(Error::Limit("x".into())).context("demo scenario"), 5),
+            (
+                anyhow::Error::from(Error::Limit("x".into())).context("demo scenario"),
+                5,
+            ),
         ];
         for (e, want) in cases {
             assert_eq!(exit_code(&e), want, "{e:#}");

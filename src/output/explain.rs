@@ -88,12 +88,24 @@ fn believed_cdf(b: &BeliefReport, x: f64) -> Option<f64> {
     }
     if x == f64::INFINITY {
         // Everything but an atom at +∞.
-        let at_inf: f64 = c.atoms.iter().filter(|a| a.at.is_infinite()).map(|a| a.mass).sum();
+        let at_inf: f64 = c
+            .atoms
+            .iter()
+            .filter(|a| a.at.is_infinite())
+            .map(|a| a.mass)
+            .sum();
         return Some(1.0 - at_inf);
     }
     let k = c.x.partition_point(|v| *v <= x);
     Some(if k == 0 {
-        0.0_f64.max(c.cdf[0] - c.atoms.iter().filter(|a| a.at == c.x[0]).map(|a| a.mass).sum::<f64>())
+        0.0_f64.max(
+            c.cdf[0]
+                - c.atoms
+                    .iter()
+                    .filter(|a| a.at == c.x[0])
+                    .map(|a| a.mass)
+                    .sum::<f64>(),
+        )
     } else if k == c.x.len() {
         c.cdf[k - 1]
     } else {
@@ -206,11 +218,7 @@ pub fn warnings(what: &str, r: &FitResult) -> Vec<String> {
             if b.verdict != Verdict::NotMet {
                 continue;
             }
-            let mut line = format!(
-                "  {}: {}",
-                belief_name(i, b),
-                verdict_words(b, r.tolerance)
-            );
+            let mut line = format!("  {}: {}", belief_name(i, b), verdict_words(b, r.tolerance));
             if !is_borderline(b, r.tolerance) {
                 line.push_str(&format!(
                     " — CDF gap {} against a tolerance of {}",
@@ -281,7 +289,10 @@ mod tests {
     /// belief met within noise.
     #[test]
     fn borderline_band() {
-        let q = crate::fit::verdict::PROBS.iter().map(|p| 10.0 * p).collect::<Vec<_>>();
+        let q = crate::fit::verdict::PROBS
+            .iter()
+            .map(|p| 10.0 * p)
+            .collect::<Vec<_>>();
         for (gap, v, want) in [
             (0.0202, Verdict::NotMet, true),
             (0.0239, Verdict::NotMet, true),
@@ -306,12 +317,20 @@ mod tests {
     #[test]
     fn names_the_largest_quantile_or_atom_difference() {
         // Implied 75 % quantile at 8.6: F = 0.86, 11 points; the others exact.
-        let mut q: Vec<f64> = crate::fit::verdict::PROBS.iter().map(|p| 10.0 * p).collect();
+        let mut q: Vec<f64> = crate::fit::verdict::PROBS
+            .iter()
+            .map(|p| 10.0 * p)
+            .collect();
         q[4] = 8.6;
         let b = report(q.clone(), vec![], 0.05, Verdict::NotMet);
         let d = largest_difference(&b).unwrap();
         assert!((d.gap - 0.11).abs() < 1e-9, "{d:?}");
-        assert!(d.words.starts_with("75 % quantile: believed 7.5, implied 8.6"), "{}", d.words);
+        assert!(
+            d.words
+                .starts_with("75 % quantile: believed 7.5, implied 8.6"),
+            "{}",
+            d.words
+        );
         // A never-reached mass 15 % believed vs 2.5 % implied (12.5 points) wins.
         let atoms = vec![AtomCheck {
             at: f64::INFINITY,
@@ -321,7 +340,12 @@ mod tests {
         let b = report(q, atoms, 0.05, Verdict::NotMet);
         let d = largest_difference(&b).unwrap();
         assert!((d.gap - 0.125).abs() < 1e-9, "{d:?}");
-        assert!(d.words.starts_with("never-reached mass (at ∞): believed 15 %, implied 2.5 %"), "{}", d.words);
+        assert!(
+            d.words
+                .starts_with("never-reached mass (at ∞): believed 15 %, implied 2.5 %"),
+            "{}",
+            d.words
+        );
         // Met within noise: no line.
         let ok = report(vec![0.0; 7], vec![], 0.0, Verdict::MetWithinNoise);
         assert_eq!(largest_difference_line(&ok), None);

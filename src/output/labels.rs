@@ -23,7 +23,10 @@ pub const NAMES: &[(&str, &str)] = &[
     ("r2", "R²"),
     ("r2_marginal", "marginal R²"),
     ("r2_latent", "latent-scale R²"),
-    ("effective_nonzero", "effective number of non-zero coefficients"),
+    (
+        "effective_nonzero",
+        "effective number of non-zero coefficients",
+    ),
     ("mean_response", "mean response"),
     ("rate", "event rate"),
     ("prevalence", "prevalence"),
@@ -62,7 +65,10 @@ pub fn with_unit(b: &BeliefReport) -> String {
 /// "per month" from a plural unit "months" (an English plural "s" dropped;
 /// other units kept as written).
 pub fn per_unit(unit: &str) -> String {
-    let one = unit.strip_suffix('s').filter(|s| s.len() > 1).unwrap_or(unit);
+    let one = unit
+        .strip_suffix('s')
+        .filter(|s| s.len() > 1)
+        .unwrap_or(unit);
     format!("per {one}")
 }
 

@@ -6,12 +6,12 @@ use super::svg::{self, esc};
 use super::view::*;
 use crate::error::Result;
 use crate::export::record;
-use crate::numerics::format::html as fnum;
 use crate::fit::profile::Call;
 use crate::fit::{SetBy, Verdict};
+use crate::numerics::format::html as fnum;
 use crate::numerics::format::sig;
-use crate::output::{explain, labels};
 use crate::output::summary::CAUTION;
+use crate::output::{explain, labels};
 use serde_json::Value;
 use std::fmt::Write;
 use std::path::{Path, PathBuf};
@@ -208,14 +208,17 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         let set_by = match fit.set_by.get(name) {
             Some(SetBy::Beliefs) => "the beliefs".to_string(),
             Some(SetBy::TieBreak) => "the tie-break (the beliefs leave it undetermined)".into(),
-            Some(SetBy::Bound) => "a bound (the beliefs push it there, or the tie-break ran to it)".into(),
-            Some(SetBy::Undetermined) => "nothing: undetermined and no tie-break (arbitrary)".into(),
+            Some(SetBy::Bound) => {
+                "a bound (the beliefs push it there, or the tie-break ran to it)".into()
+            }
+            Some(SetBy::Undetermined) => {
+                "nothing: undetermined and no tie-break (arbitrary)".into()
+            }
             Some(SetBy::Fixed) | None => "fixed in the belief file".into(),
         };
-        let range = fit
-            .bounds
-            .get(name)
-            .map_or(String::new(), |&(lo, hi)| format!("[{}, {}]", sig(lo, 4), sig(hi, 4)));
+        let range = fit.bounds.get(name).map_or(String::new(), |&(lo, hi)| {
+            format!("[{}, {}]", sig(lo, 4), sig(hi, 4))
+        });
         let mc = match fit.mc_error.get(name) {
             Some(Some(e)) => sig(*e, 2),
             Some(None) => "—".into(),
@@ -256,12 +259,15 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
             }
         }
         None => {
-            let _ = writeln!(html, "<p class=\"help\">No Pareto front was traced: {}.</p>",
+            let _ = writeln!(
+                html,
+                "<p class=\"help\">No Pareto front was traced: {}.</p>",
                 if fit.tie_break == crate::fit::TieBreakUsed::Widest {
                     "the tie-break solved for the widest prior directly, which needs no front (set <code>[fit] trace_front = true</code> to trace one for this report)"
                 } else {
                     "no direction was flat enough for a tie-break, or the tie-break was set off or to a fixed κ (set <code>[fit] trace_front = true</code> to trace one)"
-                });
+                }
+            );
         }
     }
     let mut diag: Vec<(&str, Value)> = vec![("identifiability", as_value(&fit.identifiability))];
@@ -270,7 +276,11 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     }
     for (key, v) in diag {
         let pretty = serde_json::to_string_pretty(&v).unwrap_or_default();
-        let _ = writeln!(html, "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>", esc(&pretty));
+        let _ = writeln!(
+            html,
+            "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>",
+            esc(&pretty)
+        );
     }
     html.push_str("</section>\n");
     let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder; the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
@@ -311,7 +321,9 @@ fn directions_table(fit: &crate::fit::FitResult) -> String {
     let _ = writeln!(h, "<p class=\"help\">Along each direction of the free hyperparameters (on the optimiser's unbounded scale), the share of the allowed range over which the discrepancy stays within one reference floor ({}) of the best: 0.10 or less is <i>determined</i>, 0.15 or more <i>undetermined</i> (the tie-break chooses there), between them <i>borderline</i>. δ* is how far one can move before the discrepancy rises by one noise floor.</p>", sig(id.reference_floor, 3));
     h.push_str("<table class=\"directions\"><thead><tr><th>direction</th><th>call</th><th>flat share</th><th>δ*</th><th>in words</th></tr></thead><tbody>\n");
     for d in &id.directions {
-        let share = d.width.map_or("below 0.10 (steep)".to_string(), |w| sig(w, 3));
+        let share = d
+            .width
+            .map_or("below 0.10 (steep)".to_string(), |w| sig(w, 3));
         let words = match d.call {
             Call::Determined => "the beliefs fix this combination",
             Call::Borderline => "the beliefs barely fix this combination; the tie-break settles it",
