@@ -183,7 +183,7 @@ fn not_met_warns_and_is_6_under_require_met() {
     for n in [
         "warning:",
         "not met",
-        "belief 1 (r2)",
+        "belief 1 (R²)",
         "tolerance of 0.02",
         "largest difference",
         "next:",
@@ -290,4 +290,36 @@ fn closed_pipe_ends_silently() {
         "{}",
         String::from_utf8_lossy(&o.stderr)
     );
+}
+
+/// Every argument of every command has help text (`--help` lists none bare).
+#[test]
+fn every_argument_has_help() {
+    for c in [
+        "fit",
+        "simulate",
+        "check",
+        "templates",
+        "new",
+        "export",
+        "report",
+        "sweep",
+        "batch",
+        "merge",
+        "history",
+        "conflict",
+        "demo",
+    ] {
+        let o = run(&[c, "--help"]);
+        assert!(o.status.success(), "{c}");
+        for l in stdout(&o).lines() {
+            let t = l.trim_start();
+            let is_arg = l.starts_with("  ")
+                && (t.starts_with('-') || t.starts_with('[') || t.starts_with('<'));
+            assert!(
+                !(is_arg && t.split_whitespace().count() <= 3 && !t.contains("  ")),
+                "{c}: no help for `{t}`"
+            );
+        }
+    }
 }

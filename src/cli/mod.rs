@@ -156,11 +156,18 @@ pub enum Command {
         json: bool,
     },
     /// Validate a belief file without fitting.
-    Check { spec: PathBuf },
+    Check {
+        /// Belief file (TOML).
+        spec: PathBuf,
+    },
     /// List templates, or describe one.
-    Templates { name: Option<String> },
+    Templates {
+        /// A template to describe (its parameters and quantities).
+        name: Option<String>,
+    },
     /// Write a commented starter belief file for a template.
     New {
+        /// Template name (see `priorsmith templates`).
         template: String,
         /// Where to write it (default: <template>.toml; '-' for standard output).
         #[arg(long, short)]
