@@ -530,9 +530,17 @@ fn cmd_simulate(a: &SpecArgs, set: &[String], json: bool) -> Result<()> {
             .map_err(|_| usage(format!("--set {s}: `{v}` is not a number")))?;
         h[i] = x;
     }
-    // Validate the values by building the priors.
+    // Validate the values by building the priors: the file validated, so a
+    // failure here comes from a --set value (a command-line value, exit 2).
     spec.model
-        .simulate(&h, &spec.model.draw_base(100, &spec.plan()), &[], &mut [])?;
+        .simulate(&h, &spec.model.draw_base(100, &spec.plan()), &[], &mut [])
+        .map_err(|e| {
+            if set.is_empty() {
+                anyhow::Error::from(e)
+            } else {
+                usage(format!("--set {}: {e}", set.join(" --set ")))
+            }
+        })?;
     let sums = simulate::summarise(&spec, &h)?;
     if json {
         let names: Vec<&str> = spec.hypers().iter().map(|x| x.name.as_str()).collect();
