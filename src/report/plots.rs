@@ -356,7 +356,9 @@ pub fn hyper_plot(id: &str, fit: &FitResult) -> Option<String> {
             (v - lo) / (hi - lo)
         };
         let px = x0 + t.clamp(0.0, 1.0) * (x1 - x0);
-        let near = !(0.001..=0.999).contains(&t);
+        // One rule for "at a bound" everywhere: the record's set_by (as in
+        // summary.txt, the hyperparameter table and fit.json).
+        let near = fit.set_by.get(name.as_str()) == Some(&crate::fit::SetBy::Bound);
         let _ = writeln!(
             b,
             "<text x=\"10\" y=\"{:.1}\">{}</text>",
