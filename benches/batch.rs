@@ -62,7 +62,7 @@ fn bench(c: &mut Criterion) {
             b.iter_batched(
                 || tempfile::tempdir().unwrap(),
                 |out| {
-                    let r = batch::run(plan, out.path(), &opts, &|_, _| {}).unwrap();
+                    let r = batch::run(plan, out.path(), &opts, &|_| {}).unwrap();
                     assert_eq!(r.fitted, ROWS);
                     out
                 },

@@ -59,7 +59,7 @@ pub fn check_fit(
     let fit = crate::fit::record::read(fit_path)?;
     let spec_text = crate::limits::read_text(spec_path, crate::limits::TEXT_BYTES, "belief file")?;
     let mut table = spec::parse_table(&spec_text, Some(spec_path))?;
-    if fit.spec_digest != spec::digest(&table) {
+    if fit.spec_digest != spec::digest(&table, &spec::base_dir(Some(spec_path))) {
         return Err(crate::fit::record::bad(
             fit_path,
             "spec_digest",

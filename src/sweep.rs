@@ -222,33 +222,75 @@ pub fn table_csv(points: &[SweepPoint]) -> Result<Vec<u8>> {
 /// belief (believed and implied 5 %, 50 %, 95 % quantiles against width), with a
 /// logarithmic width axis; panels drawn with `output::svg`, three to a row.
 pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
+    use crate::fit::SetBy;
+    use crate::numerics::format::sig;
+    use crate::output::labels;
     use crate::output::plots::padded_range;
-    use crate::output::svg::{esc, Plot, BLUE, GREY, H, STANDALONE_STYLE, VERMILLION, W};
+    use crate::output::svg::{esc, Plot, BLUE, GREY, H, ORANGE, STANDALONE_STYLE, VERMILLION, W};
     use std::fmt::Write;
     let Some(first) = points.first() else {
         return Err(Error::Numeric("empty sweep".into()));
     };
-    let r0 = &first.result;
+    // The beliefs as stated (width 1) name the sweep; otherwise the first width.
+    let r0 = &points
+        .iter()
+        .find(|p| p.width == 1.0)
+        .unwrap_or(first)
+        .result;
+    let title = r0
+        .title
+        .split(" (beliefs widened ×")
+        .next()
+        .unwrap_or(&r0.title)
+        .to_string();
     let xs: Vec<f64> = points.iter().map(|p| p.width).collect();
     let (xlo, xhi) = (xs[0] / 1.15, xs[xs.len() - 1] * 1.15);
-    // (caption, series: (label, colour, dash, values per width))
-    type Series = (String, &'static str, Option<&'static str>, Vec<f64>);
-    let mut panels: Vec<(String, Vec<Series>)> = Vec::new();
+    let not_met: Vec<f64> = points
+        .iter()
+        .filter(|p| p.result.verdict == crate::fit::Verdict::NotMet)
+        .map(|p| p.width)
+        .collect();
+    let ws = |v: &[f64]| v.iter().map(|w| sig(*w, 3)).collect::<Vec<_>>().join(", ");
+    // (label, colour, dash, values per width, marked per width)
+    type Series = (
+        String,
+        &'static str,
+        Option<&'static str>,
+        Vec<f64>,
+        Vec<bool>,
+    );
+    // (caption, note under the caption, series)
+    let mut panels: Vec<(String, String, Vec<Series>)> = Vec::new();
     for n in &r0.order {
         let v: Vec<f64> = points.iter().map(|p| p.result.hyperparameters[n]).collect();
+        let at_bound: Vec<bool> = points
+            .iter()
+            .map(|p| p.result.set_by.get(n) == Some(&SetBy::Bound))
+            .collect();
         let fixed = !r0.free.contains(n);
+        let tb = points
+            .iter()
+            .any(|p| p.result.set_by.get(n) == Some(&SetBy::TieBreak));
+        let note = match (at_bound.iter().any(|b| *b), tb) {
+            (true, _) => "orange: at a bound of its range".to_string(),
+            (false, true) => "set by the tie-break at some widths".to_string(),
+            _ => String::new(),
+        };
         panels.push((
             format!("{n}{}", if fixed { " (fixed)" } else { "" }),
-            vec![("fitted".into(), BLUE, None, v)],
+            note,
+            vec![("fitted".into(), GREY, None, v, at_bound)],
         ));
     }
     let qi = [0usize, 3, 6]; // 5 %, 50 %, 95 % in PROBS
     for (i, b) in r0.beliefs.iter().enumerate() {
         let mut ser = Vec::new();
-        for (who, col) in [("believed", VERMILLION), ("implied", BLUE)] {
+        let mut infinite: Vec<String> = Vec::new();
+        // The report's colours: believed blue, implied vermillion.
+        for (who, col) in [("believed", BLUE), ("implied", VERMILLION)] {
             for &j in &qi {
-                let dash = (j != 3).then_some("5 3");
-                let vals = points
+                let dash = (j != 3).then_some("2 3");
+                let vals: Vec<f64> = points
                     .iter()
                     .map(|p| {
                         let r = &p.result.beliefs[i];
@@ -259,44 +301,124 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
                         }
                     })
                     .collect();
-                ser.push((format!("{who} {} %", PROBS[j] * 100.0), col, dash, vals));
+                let inf: Vec<f64> = xs
+                    .iter()
+                    .zip(&vals)
+                    .filter(|(_, v)| !v.is_finite())
+                    .map(|(w, _)| *w)
+                    .collect();
+                if !inf.is_empty() {
+                    infinite.push(format!(
+                        "{who} {} % infinite at width {}",
+                        sig(PROBS[j] * 100.0, 2),
+                        ws(&inf)
+                    ));
+                }
+                let marks = vec![false; vals.len()];
+                ser.push((
+                    format!("{who} {} %", sig(PROBS[j] * 100.0, 2)),
+                    col,
+                    dash,
+                    vals,
+                    marks,
+                ));
             }
         }
-        panels.push((format!("{}: quantiles", b.label), ser));
+        panels.push((
+            format!(
+                "belief {}: {} — 5, 50, 95 % quantiles",
+                i + 1,
+                labels::with_unit(b)
+            ),
+            if infinite.is_empty() {
+                String::new()
+            } else {
+                format!("not drawn: {}", infinite.join("; "))
+            },
+            ser,
+        ));
     }
     let cols = panels.len().clamp(1, 3);
     let rows = panels.len().div_ceil(cols);
-    let (head, cap) = (34.0, 22.0);
+    let (head, cap) = (58.0, 36.0);
     let (tw, th) = (W * cols as f64, head + rows as f64 * (H + cap));
     let mut out = String::new();
     let _ = writeln!(
         out,
         "<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {tw} {th}\" width=\"{tw}\" height=\"{th}\" font-family=\"system-ui, -apple-system, 'Segoe UI', Roboto, 'DejaVu Sans', sans-serif\">\n{STANDALONE_STYLE}<rect x=\"0\" y=\"0\" width=\"{tw}\" height=\"{th}\" fill=\"#fff\"/>\n<text class=\"label\" x=\"12\" y=\"22\">{}</text>",
-        esc(&format!("{} — sensitivity to belief width", r0.title))
+        esc(&format!(
+            "{title} — sensitivity to belief width (widths {}; 1 = the beliefs as stated)",
+            ws(&xs)
+        ))
     );
-    for (k, (caption, ser)) in panels.iter().enumerate() {
+    // One legend for the figure, above the panels (never over the data).
+    let mut lx = 12.0;
+    let legend: Vec<(&str, Option<&str>, String)> = vec![
+        (BLUE, None, "believed (median)".into()),
+        (VERMILLION, None, "implied (median)".into()),
+        (GREY, Some("2 3"), "5 % and 95 %".into()),
+        (
+            GREY,
+            Some("6 4"),
+            if not_met.is_empty() {
+                "no width is not met".into()
+            } else {
+                format!("not met at width {}", ws(&not_met))
+            },
+        ),
+    ];
+    for (c, dash, label) in &legend {
+        let _ = writeln!(
+            out,
+            "<line x1=\"{lx:.1}\" y1=\"42\" x2=\"{:.1}\" y2=\"42\" stroke=\"{c}\" stroke-width=\"2.5\"{}/><text class=\"legend\" x=\"{:.1}\" y=\"46\">{}</text>",
+            lx + 22.0,
+            dash.map(|d| format!(" stroke-dasharray=\"{d}\"")).unwrap_or_default(),
+            lx + 27.0,
+            esc(label)
+        );
+        lx += 40.0 + 6.4 * label.chars().count() as f64;
+    }
+    for (k, (caption, note, ser)) in panels.iter().enumerate() {
         let (x0, y0) = (W * (k % cols) as f64, head + (H + cap) * (k / cols) as f64);
         let yr = padded_range(ser.iter().flat_map(|s| s.3.iter().copied())).unwrap_or((0.0, 1.0));
         let mut p = Plot::new(&format!("sweep-{k}"), caption, (xlo, xhi, true), yr, 0.0);
-        p.axes("width factor", "");
-        for (label, col, dash, vals) in ser {
-            let pts: Vec<(f64, f64)> = xs
+        p.set_x_ticks(&xs);
+        p.axes("width factor (log scale)", "");
+        for &w in &not_met {
+            p.line(
+                &[(w, yr.0), (w, yr.1)],
+                GREY,
+                1.0,
+                Some("6 4"),
+                "not met at this width",
+            );
+        }
+        for (label, col, dash, vals, marks) in ser {
+            let pts: Vec<(f64, f64, bool)> = xs
                 .iter()
                 .zip(vals)
-                .filter(|(_, v)| v.is_finite())
-                .map(|(x, v)| (*x, *v))
+                .zip(marks)
+                .filter(|((_, v), _)| v.is_finite())
+                .map(|((x, v), m)| (*x, *v, *m))
                 .collect();
-            p.line(&pts, col, 2.0, *dash, label);
-            for (x, y) in &pts {
-                p.point(*x, *y, col, 3.0, label);
+            let line: Vec<(f64, f64)> = pts.iter().map(|(x, y, _)| (*x, *y)).collect();
+            p.line(
+                &line,
+                col,
+                if dash.is_some() { 1.5 } else { 2.2 },
+                *dash,
+                label,
+            );
+            for (x, y, m) in &pts {
+                let (c, r) = if *m { (ORANGE, 5.0) } else { (*col, 3.0) };
+                p.point(
+                    *x,
+                    *y,
+                    c,
+                    r,
+                    &format!("{label} at width {}: {}", sig(*x, 3), sig(*y, 4)),
+                );
             }
-        }
-        if ser.len() > 1 {
-            p.legend(&[
-                (VERMILLION, None, "believed"),
-                (BLUE, None, "implied"),
-                (GREY, Some("5 3"), "5 % and 95 %"),
-            ]);
         }
         let _ = writeln!(
             out,
@@ -305,6 +427,15 @@ pub fn plot_svg(points: &[SweepPoint]) -> Result<String> {
             y0 + 16.0,
             esc(caption)
         );
+        if !note.is_empty() {
+            let _ = writeln!(
+                out,
+                "<text class=\"note\" x=\"{:.1}\" y=\"{:.1}\">{}</text>",
+                x0 + 12.0,
+                y0 + 30.0,
+                esc(note)
+            );
+        }
         let panel = p.finish(false).replacen(
             "<svg ",
             &format!("<svg x=\"{x0}\" y=\"{:.1}\" ", y0 + cap),

@@ -306,10 +306,11 @@ fn draws_limits() {
         3,
         &["simulation.draws", "draws = 0"],
     );
+    // Over the cap: a resource limit (exit 5), located in the file.
     assert_bad(
         &variant("draws = 20000", "draws = 1000000000000"),
-        3,
-        &["simulation.draws", "exceeds the limit", "MB", "--max-draws"],
+        5,
+        &["simulation.draws", "exceed the limit", "MB", "--max-draws"],
     );
     assert_bad(
         &variant("draws = 20000", "draws = -5"),

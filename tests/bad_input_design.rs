@@ -281,10 +281,10 @@ fn regression_memory_cap_names_draws_columns_and_megabytes() {
     // twice (fit + fresh): 2,000,000 draws need ~13 GB, over the 4,096 MB default.
     let d = tempfile::tempdir().unwrap();
     let rhs = LINEAR.replace(
-        "family = \"horseshoe\"",
-        "family = \"regularised-horseshoe\"\nslab_scale = 2.0\nslab_df = 4",
+        "family = \"r2d2\"\na = { fit = [0.2, 30.0] }\nb = { fit = [0.2, 30.0] }\nconcentration = 0.5",
+        "family = \"regularised-horseshoe\"\nglobal_scale = { fit = [0.0001, 1.0] }\nslab_scale = 2.0\nslab_df = 4\n#",
     );
-    assert_ne!(rhs, LINEAR, "test setup: horseshoe line not in the starter");
+    assert_ne!(rhs, LINEAR, "test setup: r2d2 block not in the starter");
     let spec = write(d.path(), "beliefs.toml", &rhs);
     let out = d.path().join("out");
     let r = run(&[

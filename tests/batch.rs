@@ -399,12 +399,12 @@ fn cancelled_batch_resumes_to_the_same_table() {
     let opts = RunOptions::default();
     let whole = d.path().join("whole");
     let plan = batch::plan(&base, &table, &ov(Cancel::new())).unwrap();
-    batch::run(&plan, &whole, &opts, &|_, _| {}).unwrap();
+    batch::run(&plan, &whole, &opts, &|_| {}).unwrap();
 
     let cut = d.path().join("cut");
     // About two rows' worth of evaluations.
     let plan = batch::plan(&base, &table, &ov(Cancel::after(1500))).unwrap();
-    let e = batch::run(&plan, &cut, &opts, &|_, _| {}).unwrap_err();
+    let e = batch::run(&plan, &cut, &opts, &|_| {}).unwrap_err();
     assert!(matches!(e, priorsmith::Error::Cancelled), "{e}");
     assert!(!cut.join("results.csv").exists());
     let records = std::fs::read_dir(cut.join("rows")).unwrap().count();
@@ -415,7 +415,7 @@ fn cancelled_batch_resumes_to_the_same_table() {
         assert!(text.contains("\"status\": \"ok\""), "{text}");
     }
     let plan = batch::plan(&base, &table, &ov(Cancel::new())).unwrap();
-    let rep = batch::run(&plan, &cut, &opts, &|_, _| {}).unwrap();
+    let rep = batch::run(&plan, &cut, &opts, &|_| {}).unwrap();
     assert_eq!(rep.skipped, records);
     assert_eq!(
         read(&cut.join("results.csv")),
@@ -450,4 +450,35 @@ fn rows_left_to_precision_mode_fit_at_batch_draws_and_refit_the_same() {
         .unwrap();
     assert!(st.success());
     assert_eq!(hypers(&refit.join("fit.json")), hypers(&m.join("fit.json")));
+}
+
+/// A misspelt column stops the batch before any fit, naming the column, with
+/// "did you mean"; no output folder is created.
+#[test]
+fn misspelt_column_is_refused_before_any_fit() {
+    let d = tempfile::tempdir().unwrap();
+    let base = d.path().join("base.toml");
+    std::fs::write(&base, common::EXAMPLE).unwrap();
+    for (col, want) in [
+        ("simulaton.seed", "did you mean `simulation`"),
+        ("prior.cure_logt.sd", "did you mean `cure_logit`"),
+    ] {
+        let table = d.path().join("t.csv");
+        std::fs::write(&table, format!("id,{col}\na,3\nb,4\n")).unwrap();
+        let out = d.path().join("o");
+        let o = common::run(&[
+            "batch",
+            table.to_str().unwrap(),
+            "--spec",
+            base.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ]);
+        let err = common::stderr(&o);
+        assert_eq!(o.status.code(), Some(3), "{err}");
+        assert!(err.contains(&format!("column `{col}`")), "{err}");
+        assert!(err.contains(want), "{err}");
+        assert!(err.contains("before any row was fitted"), "{err}");
+        assert!(!out.exists(), "{col}: output folder created");
+    }
 }

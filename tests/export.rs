@@ -636,10 +636,10 @@ fn fit_writes_a_self_contained_report_with_every_plot() {
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     // Two beliefs × (CDF + density) + hyperparameters.
     for id in [
-        "belief-0-cdf",
-        "belief-0-density",
         "belief-1-cdf",
         "belief-1-density",
+        "belief-2-cdf",
+        "belief-2-density",
         "hyperparameters",
     ] {
         assert!(html.contains(&format!("id=\"{id}\"")), "{id} missing");
@@ -668,7 +668,10 @@ fn report_renders_optional_diagnostics_when_present() {
     // rule the fit traces one and the report plots it.
     let (_d, out) = fit_small();
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(!html.contains("id=\"diag-pareto\""));
+    assert!(!html.contains("id=\"pareto\""));
+    assert!(html.contains("No Pareto front was traced"));
+    assert!(!html.contains(">null<"), "raw null shown");
+    assert!(html.contains("class=\"directions\""), "no directions table");
     assert!(html.contains("identifiability (as recorded in fit.json)"));
     let d = tempfile::tempdir().unwrap();
     let spec = d.path().join("spec.toml");
@@ -678,8 +681,9 @@ fn report_renders_optional_diagnostics_when_present() {
     ok(&["fit", s, "--draws", "2000", "-q", "-o", o]);
     ok(&["report", o, "-q"]);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(html.contains("id=\"diag-pareto\""));
-    assert!(out.join("plots/diag-pareto.svg").exists());
+    assert!(html.contains("id=\"pareto\""));
+    assert!(html.contains("one noise floor above the best"));
+    assert!(out.join("plots/pareto.svg").exists());
     assert!(!html.contains("Sensitivity sweep"));
 }
 
@@ -770,4 +774,38 @@ fn report_renders_in_headless_chromium() {
         Some(plots.as_str()),
         "some plots did not render"
     );
+}
+
+/// A belief on the uncured median alone leaves hyperparameters to the
+/// tie-break: the summary, the report's headline and caution box, and the
+/// terminal say so, though the belief is met.
+#[test]
+fn undetermined_fit_is_named_in_headline_summary_and_terminal() {
+    let d = tempfile::tempdir().unwrap();
+    let base = include_str!("../model-templates/mixture-cure.toml");
+    let i = base.find("[[belief]]").unwrap();
+    let spec_text = format!(
+        "{}[[belief]]\nquantity = \"median_uncured\"\ndistribution = {{ family = \"lognormal\", meanlog = 2.5, sdlog = 0.3 }}\n",
+        &base[..i]
+    );
+    let spec = d.path().join("und.toml");
+    std::fs::write(&spec, spec_text).unwrap();
+    let out = d.path().join("out");
+    let o = run(&[
+        "fit",
+        spec.to_str().unwrap(),
+        "--draws",
+        "4000",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(err.contains("undetermined; the tie-break set"), "{err}");
+    let summary = std::fs::read_to_string(out.join("summary.txt")).unwrap();
+    assert!(summary.contains("Undetermined by the beliefs"), "{summary}");
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("undetermined by them (chosen by the tie-break)"));
+    assert!(html.contains("<b>Undetermined.</b>"));
+    assert!(html.contains("the tie-break (the beliefs leave it undetermined)"));
 }

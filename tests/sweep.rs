@@ -97,6 +97,21 @@ fn wider_cure_belief_widens_cure_sd_and_width_one_is_fit() {
     }
     let svg = std::fs::read_to_string(out.join("sweep.svg")).unwrap();
     assert!(svg.contains("<svg") && svg.contains("cure_logit.sd"));
+    // Titled by the beliefs as stated, with every width named and labelled on
+    // the axis; believed blue and implied vermillion, as in the report.
+    assert!(!svg.contains("widened ×"), "title of one width");
+    assert!(
+        svg.contains("widths 0.5, 0.75, 1, 1.5, 2"),
+        "widths not named"
+    );
+    for w in ["0.5", "0.75", "1.5"] {
+        assert!(
+            svg.contains(&format!("text-anchor=\"middle\">{w}</text>")),
+            "width {w} not labelled"
+        );
+    }
+    assert!(svg.contains("believed (median)") && svg.contains("#0072B2"));
+    assert!(svg.contains("belief 1: cure fraction"), "readable label");
 }
 
 #[test]
@@ -116,7 +131,7 @@ fn bad_widths_are_rejected() {
             .arg(d.path().join("o"))
             .output()
             .unwrap();
-        assert!(!o.status.success());
+        assert_eq!(o.status.code(), Some(2), "usage error");
         let e = String::from_utf8_lossy(&o.stderr);
         assert!(e.contains(msg), "{w}: {e}");
     }

@@ -136,6 +136,26 @@ impl ModelFiles {
     }
 }
 
+/// Where a run stands, for progress displays: rows done of the shard's total,
+/// and among them rows found done earlier, rows judged "not met", rows failed.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct Tally {
+    pub done: usize,
+    pub total: usize,
+    pub skipped: usize,
+    pub not_met: usize,
+    pub failed: usize,
+}
+
+/// Whether a row's record says its fit is "not met".
+pub fn row_not_met(rec: &RowRecord) -> bool {
+    rec.status == RowStatus::Ok
+        && rec
+            .stats
+            .iter()
+            .any(|(k, v)| k == "verdict" && v == crate::fit::Verdict::NotMet.words())
+}
+
 /// Summary of a run.
 #[derive(Debug, Clone, Default)]
 pub struct RunReport {
@@ -143,6 +163,10 @@ pub struct RunReport {
     pub fitted: usize,
     pub skipped: usize,
     pub failed: usize,
+    /// Rows fitted (now or earlier) whose verdict is "not met".
+    pub not_met: usize,
+    /// Ids of those rows, in table order.
+    pub not_met_ids: Vec<String>,
     /// Files written at the end (relative names).
     pub tables: Vec<String>,
 }
@@ -261,13 +285,71 @@ pub fn plan(base_path: &Path, table_path: &Path, ov: &Overrides) -> Result<Plan>
             digest,
         });
     }
-    Ok(Plan {
+    let plan = Plan {
         base_path: base_path.to_path_buf(),
         base_text,
         table_path: table_path.to_path_buf(),
         overrides: ov.clone(),
         rows,
-    })
+    };
+    check_columns(&plan, &t.columns)?;
+    Ok(plan)
+}
+
+/// Refuse the whole batch, before any fit, when a column names no key of the
+/// belief file (a misspelt `simulaton.seed`, `prior.cure_logt.sd`): otherwise
+/// every row would fail separately with the same error. Each column is checked
+/// by validating the first row that sets it; the column is misspelt when the
+/// validation error is an unknown name with a "did you mean" hint, located
+/// above the column's key path (a bad *value* is the row's own error and is
+/// left to that row).
+fn check_columns(plan: &Plan, columns: &[String]) -> Result<()> {
+    let mut checked: Vec<&str> = Vec::new();
+    for r in &plan.rows {
+        let Ok(tab) = &r.table else { continue };
+        if r.applied
+            .iter()
+            .all(|(c, _, _)| checked.contains(&c.as_str()))
+        {
+            continue;
+        }
+        checked.extend(r.applied.iter().map(|(c, _, _)| c.as_str()));
+        let Err(Error::Input { loc, msg, hint }) = spec::from_table(
+            tab.clone(),
+            &plan.base_text,
+            Some(&plan.base_path),
+            &plan.overrides,
+        ) else {
+            continue;
+        };
+        let Some(h) = hint.filter(|h| h.contains("did you mean")) else {
+            continue;
+        };
+        let bad = r.applied.iter().find(|(col, _, p)| match &loc.key {
+            Some(k) => p.starts_with(&format!("{k}.")) || p.starts_with(&format!("{k}[")),
+            None => {
+                let first = col.split('.').next().unwrap_or(col);
+                msg.contains(&format!("unknown field `{first}`"))
+            }
+        });
+        if let Some((col, _, _)) = bad {
+            return Err(Error::input(
+                Location {
+                    file: Some(plan.table_path.clone()),
+                    line: None,
+                    key: Some(col.clone()),
+                },
+                format!(
+                    "column `{col}` names no key of the belief file {}: {msg} \
+                     (checked before any row was fitted; columns: {})",
+                    plan.base_path.display(),
+                    columns.join(", ")
+                ),
+            )
+            .with_hint(h));
+        }
+    }
+    Ok(())
 }
 
 fn one_line(s: &str) -> String {
@@ -441,11 +523,15 @@ fn run_row(
                     clean_tmp(&mdir);
                     output::write_fit_files(&mdir, &res, files == ModelFiles::Full)?;
                     if let Ok(tab) = &r.table {
+                        // Data paths rewritten to resolve from the model folder,
+                        // and the draws it was fitted with stated, so `fit
+                        // models/<id>/spec.toml` reproduces the row.
                         let mut tab = tab.clone();
+                        spec::rebase_paths(&mut tab, &spec::base_dir(Some(&plan.base_path)), &mdir);
                         pin_draws(&mut tab, res.draws);
                         let text = format!(
                         "# The belief file of batch row {} (id \"{}\"): {} with the row's changes.\n\
-                         # Relative paths resolve against the base file's folder.\n{}",
+                         # Data paths are rewritten to resolve from this folder.\n{}",
                         r.number,
                         r.id,
                         plan.base_path.display(),
@@ -496,12 +582,12 @@ fn abs(p: &Path) -> PathBuf {
     std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf())
 }
 
-/// Run (the shard of) a batch into `dir`. `tick(done, total)` after each row.
+/// Run (the shard of) a batch into `dir`. `tick` after each row.
 pub fn run(
     plan: &Plan,
     dir: &Path,
     opts: &RunOptions,
-    tick: &(dyn Fn(usize, usize) + Sync),
+    tick: &(dyn Fn(&Tally) + Sync),
 ) -> Result<RunReport> {
     output::ensure_dir(dir)?;
     output::ensure_dir(&dir.join("rows"))?;
@@ -518,7 +604,10 @@ pub fn run(
     write_atomic(&dir.join("batch.json"), mj.as_bytes())?;
     let range = shard_range(plan.rows.len(), opts.shard);
     let mine = &plan.rows[range.clone()];
-    let done = std::sync::atomic::AtomicUsize::new(0);
+    let tally = std::sync::Mutex::new(Tally {
+        total: mine.len(),
+        ..Tally::default()
+    });
     let fitted = std::sync::atomic::AtomicUsize::new(0);
     let out: Vec<Result<(RowRecord, bool)>> = mine
         .par_iter()
@@ -530,8 +619,22 @@ pub fn run(
                     std::process::abort();
                 }
             }
-            let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
-            tick(k, mine.len());
+            // A poisoned lock only loses the display's count, never a row.
+            let now = tally.lock().ok().map(|mut t| {
+                t.done += 1;
+                match &x {
+                    Ok((rec, skipped)) => {
+                        t.skipped += usize::from(*skipped);
+                        t.failed += usize::from(rec.status != RowStatus::Ok);
+                        t.not_met += usize::from(row_not_met(rec));
+                    }
+                    Err(_) => t.failed += 1,
+                }
+                *t
+            });
+            if let Some(t) = now {
+                tick(&t);
+            }
             x
         })
         .collect();
@@ -549,6 +652,10 @@ pub fn run(
         }
         if rec.status != RowStatus::Ok {
             rep.failed += 1;
+        }
+        if row_not_met(&rec) {
+            rep.not_met += 1;
+            rep.not_met_ids.push(rec.id.clone());
         }
         recs.insert(rec.row, rec);
     }
@@ -742,6 +849,12 @@ pub fn merge(dirs: &[PathBuf], out: &Path, max_memory_mb: Option<u64>) -> Result
     let mut rep = RunReport {
         rows: plan.rows.len(),
         failed: recs.values().filter(|x| x.status != RowStatus::Ok).count(),
+        not_met: recs.values().filter(|x| row_not_met(x)).count(),
+        not_met_ids: recs
+            .values()
+            .filter(|x| row_not_met(x))
+            .map(|x| x.id.clone())
+            .collect(),
         ..Default::default()
     };
     for (name, bytes) in [

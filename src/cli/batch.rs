@@ -1,8 +1,8 @@
 //! `priorsmith batch` and `priorsmith merge`: many models from one base belief
 //! file and a table of changes (see [`priorsmith::batch`] and docs/sweep-and-batch.md).
 
-use super::progress_bar;
-use anyhow::{anyhow, Result};
+use super::{progress::Progress, usage, NotMet};
+use anyhow::Result;
 use priorsmith::batch::{self, ModelFiles, RunOptions};
 use priorsmith::error::Error;
 use priorsmith::output;
@@ -51,9 +51,18 @@ pub struct MergeArgs {
     pub max_memory: Option<u64>,
 }
 
-pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
+/// Rows committed in `out/rows/` (finished records), for the Ctrl-C message.
+fn committed_rows(out: &std::path::Path) -> usize {
+    std::fs::read_dir(out.join("rows")).map_or(0, |d| {
+        d.filter_map(|e| e.ok())
+            .filter(|e| e.path().extension().is_some_and(|x| x == "json"))
+            .count()
+    })
+}
+
+pub fn cmd_batch(a: &BatchArgs, quiet: bool, require_met: bool) -> Result<()> {
     let shard = match &a.shard {
-        Some(s) => Some(batch::parse_shard(s).map_err(|m| anyhow!(m))?),
+        Some(s) => Some(batch::parse_shard(s).map_err(usage)?),
         None => None,
     };
     let ov = Overrides {
@@ -63,17 +72,23 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         ..a.session.clone()
     };
     let model_files = ModelFiles::parse(&a.model_files).ok_or_else(|| {
-        anyhow!(
+        usage(format!(
             "--model-files: expected lean or full, found \"{}\"",
             a.model_files
-        )
+        ))
     })?;
     let plan = batch::plan(&a.spec, &a.table, &ov)?;
-    let pb = progress_bar(quiet, "models");
-    let tick = |done: usize, total: usize| {
+    let pb = Progress::new(quiet, "models");
+    let tick = |t: &batch::Tally| {
         if let Some(pb) = &pb {
-            pb.set_length(total as u64);
-            pb.set_position(done as u64);
+            let mut extra = vec![
+                format!("{} not met", t.not_met),
+                format!("{} failed", t.failed),
+            ];
+            if t.skipped > 0 {
+                extra.push(format!("{} done earlier", t.skipped));
+            }
+            pb.update(t.done, t.total, &extra.join(", "));
         }
     };
     // Fault injection for the crash-and-resume test (tests/batch.rs).
@@ -85,25 +100,61 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         model_files,
         abort_after,
     };
-    let rep = batch::run(&plan, &a.out, &opts, &tick)?;
+    let rep = match batch::run(&plan, &a.out, &opts, &tick) {
+        Ok(r) => r,
+        Err(Error::Cancelled) => {
+            if let Some(pb) = pb {
+                pb.finish();
+            }
+            eprintln!(
+                "interrupted: {} row(s) are committed in {}; run the same command again to \
+                 resume (finished rows are kept, the rows cut short are fitted again)",
+                committed_rows(&a.out),
+                a.out.join("rows").display()
+            );
+            return Err(Error::Cancelled.into());
+        }
+        Err(e) => return Err(e.into()),
+    };
     if let Some(pb) = pb {
-        pb.finish_and_clear();
+        pb.finish();
     }
     if !quiet {
         println!(
-            "{} rows{}: {} fitted, {} already done (skipped), {} failed",
+            "{} rows{}: {} fitted, {} already done (skipped), {} not met, {} failed",
             rep.rows,
             shard.map_or(String::new(), |(i, n)| format!(" (shard {i} of {n})")),
             rep.fitted,
             rep.skipped,
+            rep.not_met,
             rep.failed
         );
         println!(
-            "wrote {}/{} and models/<id>/ (fit.json, summary.txt, draws.csv, spec.toml)",
+            "wrote {}/{} and models/<id>/ ({})",
             a.out.display(),
-            rep.tables.join(", ")
+            rep.tables.join(", "),
+            match model_files {
+                ModelFiles::Lean => "fit.json, summary.txt, spec.toml",
+                ModelFiles::Full => "fit.json, summary.txt, draws.csv, spec.toml",
+            }
         );
         println!("{}", output::summary::CAUTION);
+    }
+    if rep.not_met > 0 && !quiet {
+        const SHOWN: usize = 10;
+        let mut ids = rep.not_met_ids[..rep.not_met_ids.len().min(SHOWN)].join(", ");
+        if rep.not_met_ids.len() > SHOWN {
+            ids.push_str(&format!(", … ({} more)", rep.not_met_ids.len() - SHOWN));
+        }
+        eprintln!(
+            "warning: {} of {} models are not met: {ids}; see the `verdict` column of {}/{} \
+             and models/<id>/summary.txt",
+            rep.not_met,
+            rep.rows,
+            a.out.display(),
+            rep.tables.first().map_or("results.csv", String::as_str)
+        );
+        eprintln!("  {}", output::explain::NEXT_STEP_NOT_MET);
     }
     if rep.failed > 0 {
         return Err(Error::input(
@@ -121,6 +172,12 @@ pub fn cmd_batch(a: &BatchArgs, quiet: bool) -> Result<()> {
         )
         .into());
     }
+    if require_met && rep.not_met > 0 {
+        return Err(anyhow::Error::new(NotMet(format!(
+            "{} of {} models are not met, and --require-met was given",
+            rep.not_met, rep.rows
+        ))));
+    }
     Ok(())
 }
 
@@ -129,9 +186,10 @@ pub fn cmd_merge(a: &MergeArgs, quiet: bool) -> Result<()> {
     let rep = batch::merge(&a.dirs, &out, a.max_memory)?;
     if !quiet {
         println!(
-            "merged {} rows from {} folder(s) ({} failed): wrote {}/{}",
+            "merged {} rows from {} folder(s) ({} not met, {} failed): wrote {}/{}",
             rep.rows,
             a.dirs.len(),
+            rep.not_met,
             rep.failed,
             out.display(),
             rep.tables.join(", ")

@@ -10,12 +10,13 @@ use std::path::PathBuf;
 pub struct ConflictArgs {
     /// Output folder of `priorsmith fit`.
     pub dir: PathBuf,
-    /// The belief file that was fitted (default DIR/spec.toml).
+    /// The belief file that was fitted (default DIR/spec.toml, which `fit` writes).
     #[arg(long)]
     pub spec: Option<PathBuf>,
     /// New data: CSV with `time`, `event` (and `arm` with --arm).
     #[arg(long)]
     pub data: PathBuf,
+    /// Keep only rows of the new data whose `arm` column equals this.
     #[arg(long)]
     pub arm: Option<String>,
     /// Horizon at which Kaplan–Meier survival is compared.

@@ -6,8 +6,15 @@ use priorsmith::export::{self, Lang};
 use priorsmith::output;
 use std::path::Path;
 
-pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool) -> Result<()> {
+pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool, require_met: bool) -> Result<()> {
     let text = export::export_dir(dir, to)?;
+    // The code carries the verdict as a comment only: say it where it is seen.
+    let rec = priorsmith::fit::record::read(&dir.join("fit.json"))?;
+    let what = format!("export of {}", dir.display());
+    if require_met && rec.verdict == priorsmith::fit::Verdict::NotMet {
+        // Nothing is written for a pipeline that asked for met fits only.
+        return super::escalate(&what, &rec, quiet, true);
+    }
     match out {
         Some(p) if p != Path::new("-") => {
             output::write_atomic(p, text.as_bytes())?;
@@ -22,5 +29,5 @@ pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool) -> Result<()> 
         }
         _ => print!("{text}"),
     }
-    Ok(())
+    super::escalate(&what, &rec, quiet, false)
 }

@@ -1,7 +1,9 @@
 //! `priorsmith history`: historical survival data (or events/total) → a
 //! discounted `[[belief]]` block to paste into a belief file (see `history::belief`).
 
-use anyhow::{bail, Result};
+use super::usage;
+use anyhow::Result;
+use priorsmith::error::{Error, Location};
 use priorsmith::history::{belief, km::KaplanMeier, read_csv};
 use std::path::PathBuf;
 
@@ -36,18 +38,36 @@ pub struct HistoryArgs {
 }
 
 pub fn run(a: &HistoryArgs) -> Result<()> {
-    let d = belief::Discount::new(a.discount, a.extra_sd).map_err(|m| anyhow::anyhow!("--{m}"))?;
+    let d = belief::Discount::new(a.discount, a.extra_sd).map_err(|m| usage(format!("--{m}")))?;
     let hb = match (&a.data, a.events, a.total) {
         (Some(path), None, None) => {
             let summary = belief::Summary::parse(&a.summary).ok_or_else(|| {
-                anyhow::anyhow!(
+                usage(format!(
                     "--summary {}: {}",
                     a.summary,
                     priorsmith::error::choice_hint(&a.summary, &belief::SUMMARIES)
-                )
+                ))
             })?;
+            if summary == belief::Summary::SurvivalProb && a.horizon.is_none() {
+                return Err(usage(
+                    "--summary survival_prob needs --horizon (the time at which survival is read), \
+                     e.g. --horizon 24",
+                ));
+            }
             let obs = read_csv(path, a.arm.as_deref())?;
             let km = KaplanMeier::new(&obs);
+            if let Some(h) = a
+                .horizon
+                .filter(|_| summary == belief::Summary::SurvivalProb)
+            {
+                if !(h > 0.0 && h <= km.last_time) {
+                    return Err(usage(format!(
+                        "--horizon {h}: must lie in (0, {}], the follow-up of {}",
+                        km.last_time,
+                        path.display()
+                    )));
+                }
+            }
             if a.table {
                 println!(
                     "# Kaplan–Meier of {} ({} rows, {} events)",
@@ -66,12 +86,20 @@ pub fn run(a: &HistoryArgs) -> Result<()> {
                     );
                 }
             }
-            belief::HistBelief::from_km(&km, summary, a.horizon, d)
-                .map_err(|m| anyhow::anyhow!("{}: {m}", path.display()))?
+            // What remains is about the data (no events, median not reached).
+            belief::HistBelief::from_km(&km, summary, a.horizon, d).map_err(|m| {
+                Error::input(
+                    Location {
+                        file: Some(path.clone()),
+                        ..Location::default()
+                    },
+                    m,
+                )
+            })?
         }
         (None, Some(e), Some(n)) => belief::HistBelief::from_binary(e, n, a.horizon, d)
-            .map_err(|m| anyhow::anyhow!("--events/--total: {m}"))?,
-        _ => bail!("give a DATA.csv, or --events and --total (not both)"),
+            .map_err(|m| usage(format!("--events/--total: {m}")))?,
+        _ => return Err(usage("give a DATA.csv, or --events and --total (not both)")),
     };
     print!("{}", hb.toml_block());
     Ok(())

@@ -1,13 +1,18 @@
 //! The command line: clap definitions and one function per command. Errors are
-//! printed once, as a chain, independent of RUST_BACKTRACE.
+//! printed once, as a chain without repeated text, independent of RUST_BACKTRACE.
 //!
-//! Exit codes: 0 success; 1 numerical failure; 2 command-line usage error;
-//! 3 invalid input (belief file, table, design); 4 a file could not be read or
-//! written; 5 a resource limit would be exceeded.
+//! Exit codes (the table in README.md, tested in tests/exit_codes.rs): 0 success;
+//! 2 a command-line argument or value ([`Usage`], clap's own errors, and library
+//! input errors located at an option `--x`); 3 the contents of a file (belief
+//! file, table, design, fit.json); 4 a file could not be read or written; 5 a
+//! resource limit would be exceeded; 6 a fit judged "not met" under
+//! `--require-met` ([`NotMet`]); 70 an internal fault (a numerical failure the
+//! input does not explain, or a bug; 70 is EX_SOFTWARE of BSD sysexits.h);
+//! 130 interrupted by Ctrl-C. A closed output pipe ends the program silently,
+//! by SIGPIPE as for other Unix filters (the shell reports 141).
 
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand};
-use indicatif::{ProgressBar, ProgressStyle};
 use priorsmith::error::Error;
 use priorsmith::fit::verdict::fmt_num;
 use priorsmith::spec::{self, Overrides, Spec};
@@ -18,8 +23,38 @@ mod batch;
 mod conflict;
 mod export;
 mod history;
+mod progress;
 mod report;
 mod sweep;
+
+/// A command-line argument or value the command cannot use (exit 2).
+#[derive(Debug)]
+pub struct Usage(pub String);
+
+impl std::fmt::Display for Usage {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for Usage {}
+
+/// A usage error as an `anyhow::Error`.
+pub fn usage(msg: impl Into<String>) -> anyhow::Error {
+    anyhow::Error::new(Usage(msg.into()))
+}
+
+/// A fit judged "not met" while `--require-met` was given (exit 6).
+#[derive(Debug)]
+pub struct NotMet(pub String);
+
+impl std::fmt::Display for NotMet {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for NotMet {}
 
 #[derive(Parser, Debug)]
 #[command(
@@ -37,6 +72,10 @@ pub struct Cli {
     /// Working-memory budget in MB (default 4096); work estimated above it is refused.
     #[arg(long, global = true, value_name = "MB")]
     pub max_memory: Option<u64>,
+    /// Exit with code 6 when a fit (fit, sweep, batch, demo) or the fit.json
+    /// being exported is judged "not met" (for pipelines); outputs are still written.
+    #[arg(long, global = true)]
+    pub require_met: bool,
     #[command(subcommand)]
     pub command: Command,
 }
@@ -117,11 +156,18 @@ pub enum Command {
         json: bool,
     },
     /// Validate a belief file without fitting.
-    Check { spec: PathBuf },
+    Check {
+        /// Belief file (TOML).
+        spec: PathBuf,
+    },
     /// List templates, or describe one.
-    Templates { name: Option<String> },
+    Templates {
+        /// A template to describe (its parameters and quantities).
+        name: Option<String>,
+    },
     /// Write a commented starter belief file for a template.
     New {
+        /// Template name (see `priorsmith templates`).
         template: String,
         /// Where to write it (default: <template>.toml; '-' for standard output).
         #[arg(long, short)]
@@ -176,24 +222,71 @@ pub enum Command {
     },
 }
 
-/// Exit code for an error chain.
+/// Exit code for an error chain (see the module documentation).
 pub fn exit_code(e: &anyhow::Error) -> i32 {
     for c in e.chain() {
+        if c.downcast_ref::<Usage>().is_some() {
+            return 2;
+        }
+        if c.downcast_ref::<NotMet>().is_some() {
+            return 6;
+        }
         if let Some(err) = c.downcast_ref::<Error>() {
             return match err {
+                // An input error located at an option (`--horizon`) has no file.
+                Error::Input { loc, .. }
+                    if loc.file.is_none()
+                        && loc.key.as_deref().is_some_and(|k| k.starts_with("--")) =>
+                {
+                    2
+                }
                 Error::Input { .. } | Error::Dist(_) => 3,
                 Error::Io { .. } => 4,
                 Error::Limit(_) => 5,
-                Error::Numeric(_) | Error::Internal(_) => 1,
+                Error::Numeric(_) | Error::Internal(_) => 70,
                 // 128 + SIGINT, as shells report an interrupted command (common practice).
                 Error::Cancelled => 130,
             };
         }
+        if c.downcast_ref::<std::io::Error>().is_some() {
+            return 4;
+        }
     }
-    1
+    70
+}
+
+/// The error chain as printed: the first message, then each cause whose text
+/// the messages before it do not already contain (an I/O error's text is part
+/// of `Error::Io`'s message and is not repeated).
+pub fn error_text(e: &anyhow::Error) -> String {
+    let mut out = format!("error: {e}");
+    let mut seen = e.to_string();
+    for c in e.chain().skip(1) {
+        let t = c.to_string();
+        if t.is_empty() || seen.contains(&t) {
+            continue;
+        }
+        out.push_str(&format!("\n  caused by: {t}"));
+        seen.push_str(&t);
+    }
+    out
+}
+
+/// Restore the default action of SIGPIPE (Rust ignores it, which turns a
+/// closed output pipe into a panic inside `println!`): the program then ends
+/// silently when, say, `priorsmith templates | head -1` closes the pipe. Files
+/// are always written whole before anything is printed about them.
+fn end_quietly_on_closed_pipe() {
+    #[cfg(unix)]
+    // SAFETY: setting a signal's disposition to SIG_DFL at start-up, before any
+    // thread exists, has no preconditions.
+    unsafe {
+        libc::signal(libc::SIGPIPE, libc::SIG_DFL);
+    }
 }
 
 pub fn main() -> i32 {
+    end_quietly_on_closed_pipe();
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
@@ -204,10 +297,7 @@ pub fn main() -> i32 {
     match run(cli) {
         Ok(()) => 0,
         Err(e) => {
-            eprintln!("error: {e}");
-            for c in e.chain().skip(1) {
-                eprintln!("  caused by: {c}");
-            }
+            eprintln!("{}", error_text(&e));
             exit_code(&e)
         }
     }
@@ -222,9 +312,12 @@ pub fn run(cli: Cli) -> Result<()> {
     }
     let mem = cli.max_memory;
     if mem == Some(0) {
-        anyhow::bail!("--max-memory 0: give the budget in MB, e.g. --max-memory 8192");
+        return Err(usage(
+            "--max-memory 0: give the budget in MB, e.g. --max-memory 8192",
+        ));
     }
     let quiet = cli.quiet;
+    let require_met = cli.require_met;
     // Ctrl-C asks the work to stop (see `priorsmith::cancel`): a fit stops
     // between evaluations and writes nothing; a batch keeps its finished rows.
     let cancel = priorsmith::cancel::Cancel::new();
@@ -253,7 +346,7 @@ pub fn run(cli: Cli) -> Result<()> {
             spec,
             out,
             replicates,
-        } => cmd_fit(&spec, &out, replicates, quiet),
+        } => cmd_fit(&spec, &out, replicates, quiet, require_met),
         Command::Simulate { spec, set, json } => cmd_simulate(&spec, &set, json),
         Command::Check { spec } => cmd_check(&spec, quiet, &mem_only),
         Command::Templates { name } => cmd_templates(name.as_deref()),
@@ -262,16 +355,18 @@ pub fn run(cli: Cli) -> Result<()> {
             out,
             force,
         } => cmd_new(&template, out.as_deref(), force, quiet),
-        Command::Demo { out } => cmd_demo(&out, quiet, &mem_only),
-        Command::Export { dir, to, out } => export::run(&dir, to.into(), out.as_deref(), quiet),
+        Command::Demo { out } => cmd_demo(&out, quiet, require_met, &mem_only),
+        Command::Export { dir, to, out } => {
+            export::run(&dir, to.into(), out.as_deref(), quiet, require_met)
+        }
         Command::Report { dir } => report::run(&dir, quiet),
         Command::Sweep {
             spec,
             widths,
             beliefs,
             out,
-        } => sweep::cmd_sweep(&spec, &widths, beliefs.as_deref(), &out, quiet),
-        Command::Batch(a) => batch::cmd_batch(&a, quiet),
+        } => sweep::cmd_sweep(&spec, &widths, beliefs.as_deref(), &out, quiet, require_met),
+        Command::Batch(a) => batch::cmd_batch(&a, quiet, require_met),
         Command::Merge(a) => batch::cmd_merge(&a, quiet),
         Command::History(a) => history::run(&a),
         Command::Conflict(a) => conflict::run(&a, &mem_only),
@@ -282,58 +377,115 @@ fn load(a: &SpecArgs) -> Result<Spec> {
     Ok(spec::load(&a.spec, &a.overrides())?)
 }
 
-fn progress_bar(quiet: bool, what: &str) -> Option<ProgressBar> {
-    if quiet {
-        return None;
+/// Print a fit's warnings (not met, undetermined) on standard error, unless
+/// quiet; under `--require-met` a not-met fit becomes exit 6.
+pub fn escalate(what: &str, r: &fit::FitResult, quiet: bool, require_met: bool) -> Result<()> {
+    if !quiet {
+        for l in output::explain::warnings(what, r) {
+            eprintln!("{l}");
+        }
     }
-    let pb = ProgressBar::new(0);
-    pb.set_style(
-        ProgressStyle::with_template("{spinner} {msg} [{bar:30}] {pos}/{len} ({elapsed})")
-            .unwrap_or_else(|_| ProgressStyle::default_bar())
-            .progress_chars("=> "),
-    );
-    pb.set_message(what.to_string());
-    // Only show when the work lasts longer than a second.
-    pb.enable_steady_tick(std::time::Duration::from_millis(1000));
-    Some(pb)
+    if require_met && r.verdict == fit::Verdict::NotMet {
+        return Err(anyhow::Error::new(NotMet(format!(
+            "{what}: not met ({}), and --require-met was given",
+            output::explain::overall_words(r)
+        ))));
+    }
+    Ok(())
 }
 
 /// Fit and write outputs; shared by `fit` and `demo`.
 pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitResult> {
     output::ensure_dir(out)?;
-    let pb = progress_bar(quiet, "fitting");
+    let pb = progress::Progress::new(quiet, "fitting");
     let cb = |done: usize, total: usize| {
         if let Some(pb) = &pb {
-            pb.set_length(total as u64);
-            pb.set_position(done as u64);
+            pb.update(done, total, "");
         }
     };
     let r = fit::fit(spec, Some(&cb))?;
     if let Some(pb) = pb {
-        pb.finish_and_clear();
+        pb.finish();
     }
     output::write_fit(out, &r)?;
     priorsmith::report::write(out)?;
     Ok(r)
 }
 
-fn cmd_fit(a: &SpecArgs, out: &Path, replicates: Option<usize>, quiet: bool) -> Result<()> {
+fn cmd_fit(
+    a: &SpecArgs,
+    out: &Path,
+    replicates: Option<usize>,
+    quiet: bool,
+    require_met: bool,
+) -> Result<()> {
     let mut spec = load(a)?;
     if let Some(k) = replicates {
         if !(2..=100).contains(&k) {
-            anyhow::bail!("--replicates {k}: use between 2 and 100 seeds");
+            return Err(usage(format!(
+                "--replicates {k}: use between 2 and 100 seeds"
+            )));
         }
         spec.fit.replicates = k;
     }
     let r = fit_and_write(&spec, out, quiet)?;
+    let copied = write_spec_copy(a, out)?;
     if !quiet {
         print!("{}", output::summary::render(&r));
         println!(
-            "\nwrote {}/fit.json, summary.txt, draws.csv, report.html",
-            out.display()
+            "\nwrote {}/fit.json, summary.txt, draws.csv, report.html{}",
+            out.display(),
+            if copied { ", spec.toml" } else { "" }
         );
     }
-    Ok(())
+    escalate(
+        &format!("fit of {}", a.spec.display()),
+        &r,
+        quiet,
+        require_met,
+    )
+}
+
+/// Write the belief file that was fitted as OUT/spec.toml: normalised (the
+/// parsed table; its digest is the record's `spec_digest`), with relative data
+/// paths rewritten to resolve from OUT, so `priorsmith fit OUT/spec.toml`
+/// refits it and `priorsmith conflict OUT` finds it. Nothing is written when
+/// OUT/spec.toml is the fitted file itself. Returns whether it was written.
+fn write_spec_copy(a: &SpecArgs, out: &Path) -> Result<bool> {
+    let target = out.join("spec.toml");
+    if let (Ok(x), Ok(y)) = (a.spec.canonicalize(), target.canonicalize()) {
+        if x == y {
+            return Ok(false);
+        }
+    }
+    let text = std::fs::read_to_string(&a.spec).map_err(|e| Error::io(&a.spec, e))?;
+    let mut table = spec::parse_table(&text, Some(&a.spec))?;
+    spec::rebase_paths(&mut table, &spec::base_dir(Some(&a.spec)), out);
+    let body =
+        toml::to_string(&table).map_err(|e| Error::Internal(format!("writing spec.toml: {e}")))?;
+    let mut overrides = Vec::new();
+    if let Some(s) = a.seed {
+        overrides.push(format!("--seed {s}"));
+    }
+    if let Some(d) = a.draws {
+        overrides.push(format!("--draws {d}"));
+    }
+    let note = if overrides.is_empty() {
+        String::new()
+    } else {
+        format!(
+            "# Fitted with {} (fit.json records the seed and draws used).\n",
+            overrides.join(" ")
+        )
+    };
+    let head = format!(
+        "# The belief file fitted into this folder: {} as parsed (comments dropped,\n\
+         # data paths rewritten to resolve from here). `priorsmith fit` on this file\n\
+         # refits it; `priorsmith conflict` reads it by default.\n{note}",
+        a.spec.display()
+    );
+    output::write_atomic(&target, format!("{head}{body}").as_bytes())?;
+    Ok(true)
 }
 
 fn cmd_check(path: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
@@ -361,24 +513,34 @@ fn cmd_simulate(a: &SpecArgs, set: &[String], json: bool) -> Result<()> {
     let mut h: Vec<f64> = spec.hypers().iter().map(|x| x.default_value()).collect();
     for s in set {
         let (k, v) = s.split_once('=').ok_or_else(|| {
-            anyhow::anyhow!("--set {s}: expected NAME=VALUE, e.g. cure_logit.mean=-1.2")
+            usage(format!(
+                "--set {s}: expected NAME=VALUE, e.g. cure_logit.mean=-1.2"
+            ))
         })?;
         let names: Vec<&str> = spec.hypers().iter().map(|x| x.name.as_str()).collect();
         let i = names.iter().position(|n| *n == k.trim()).ok_or_else(|| {
-            anyhow::anyhow!(
+            usage(format!(
                 "--set {s}: unknown hyperparameter `{k}`; {}",
                 priorsmith::error::choice_hint(k, &names)
-            )
+            ))
         })?;
         let x: f64 = v
             .trim()
             .parse()
-            .map_err(|_| anyhow::anyhow!("--set {s}: `{v}` is not a number"))?;
+            .map_err(|_| usage(format!("--set {s}: `{v}` is not a number")))?;
         h[i] = x;
     }
-    // Validate the values by building the priors.
+    // Validate the values by building the priors: the file validated, so a
+    // failure here comes from a --set value (a command-line value, exit 2).
     spec.model
-        .simulate(&h, &spec.model.draw_base(100, &spec.plan()), &[], &mut [])?;
+        .simulate(&h, &spec.model.draw_base(100, &spec.plan()), &[], &mut [])
+        .map_err(|e| {
+            if set.is_empty() {
+                anyhow::Error::from(e)
+            } else {
+                usage(format!("--set {}: {e}", set.join(" --set ")))
+            }
+        })?;
     let sums = simulate::summarise(&spec, &h)?;
     if json {
         let names: Vec<&str> = spec.hypers().iter().map(|x| x.name.as_str()).collect();
@@ -442,10 +604,7 @@ fn cmd_templates(name: Option<&str>) -> Result<()> {
             println!("Families: {}", priorsmith::dist::family_names().join(", "));
         }
         Some(n) => {
-            let t = templates::find(n).ok_or_else(|| {
-                Error::input(Default::default(), format!("unknown template \"{n}\""))
-                    .with_hint(priorsmith::error::choice_hint(n, &templates::names()))
-            })?;
+            let t = templates::find(n).ok_or_else(|| unknown_template(n))?;
             println!("{} — {}\n\n[model] keys:", t.name, t.about);
             for (k, v) in t.options {
                 println!("  {k:<12} {v}");
@@ -463,17 +622,16 @@ fn cmd_templates(name: Option<&str>) -> Result<()> {
     Ok(())
 }
 
+/// A template name given on the command line that no template has (exit 2).
+fn unknown_template(name: &str) -> anyhow::Error {
+    usage(format!(
+        "unknown template \"{name}\"\n  hint: {}",
+        priorsmith::error::choice_hint(name, &templates::names())
+    ))
+}
+
 fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Result<()> {
-    let t = templates::find(template).ok_or_else(|| {
-        Error::input(
-            Default::default(),
-            format!("unknown template \"{template}\""),
-        )
-        .with_hint(priorsmith::error::choice_hint(
-            template,
-            &templates::names(),
-        ))
-    })?;
+    let t = templates::find(template).ok_or_else(|| unknown_template(template))?;
     let default = PathBuf::from(format!("{}.toml", t.name));
     let path = out.unwrap_or(&default);
     if path == Path::new("-") {
@@ -501,7 +659,7 @@ fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Resu
     Ok(())
 }
 
-fn cmd_demo(out: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
+fn cmd_demo(out: &Path, quiet: bool, require_met: bool, ov: &Overrides) -> Result<()> {
     output::ensure_dir(out)?;
     let mut rows = Vec::new();
     for s in demo::SCENARIOS {
@@ -528,7 +686,7 @@ fn cmd_demo(out: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
                 r.wall_time_s,
                 r.total.fresh,
                 r.total.noise_floor,
-                r.verdict.words()
+                output::explain::overall_words(r)
             );
         }
         println!(
@@ -537,5 +695,66 @@ fn cmd_demo(out: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
         );
         println!("{}", output::summary::CAUTION);
     }
+    for (name, r) in &rows {
+        escalate(&format!("demo scenario {name}"), r, quiet, require_met)?;
+    }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every error kind's exit code, as in README's table (the codes the binary
+    /// cannot be driven to from outside: 70 and 130, included).
+    #[test]
+    fn exit_codes_of_each_error() {
+        let loc = |file: Option<&str>, key: &str| priorsmith::error::Location {
+            file: file.map(PathBuf::from),
+            line: None,
+            key: Some(key.into()),
+        };
+        let io = || std::io::Error::new(std::io::ErrorKind::NotFound, "gone");
+        let cases: Vec<(anyhow::Error, i32)> = vec![
+            (usage("--widths 0"), 2),
+            (
+                Error::input(loc(None, "--horizon"), "must be > 0").into(),
+                2,
+            ),
+            (
+                Error::input(loc(Some("a.toml"), "fit.tolerance"), "bad").into(),
+                3,
+            ),
+            (Error::io("a.toml", io()).into(), 4),
+            (anyhow::Error::new(io()), 4),
+            (Error::Limit("too many".into()).into(), 5),
+            (anyhow::Error::new(NotMet("not met".into())), 6),
+            (Error::Numeric("no finite start".into()).into(), 70),
+            (Error::Internal("poisoned lock".into()).into(), 70),
+            (anyhow::anyhow!("an error of no known kind"), 70),
+            (Error::Cancelled.into(), 130),
+            // The kind is found under added context.
+            (
+                anyhow::Error::from(Error::Limit("x".into())).context("demo scenario"),
+                5,
+            ),
+        ];
+        for (e, want) in cases {
+            assert_eq!(exit_code(&e), want, "{e:#}");
+        }
+    }
+
+    /// An I/O error's text is not repeated as its cause.
+    #[test]
+    fn error_text_prints_each_message_once() {
+        let e: anyhow::Error = Error::io(
+            "x.toml",
+            std::io::Error::new(std::io::ErrorKind::NotFound, "No such file"),
+        )
+        .into();
+        let t = error_text(&e);
+        assert_eq!(t.matches("No such file").count(), 1, "{t}");
+        let e = anyhow::Error::from(Error::Limit("over".into())).context("demo scenario x");
+        assert_eq!(error_text(&e), "error: demo scenario x\n  caused by: over");
+    }
 }

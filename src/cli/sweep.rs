@@ -2,8 +2,8 @@
 //! factor, and write the table, the plot and one fit folder per width
 //! (see [`priorsmith::sweep`] and docs/sweep-and-batch.md).
 
-use super::{load, progress_bar, SpecArgs};
-use anyhow::{anyhow, Result};
+use super::{load, progress::Progress, usage, SpecArgs};
+use anyhow::Result;
 use priorsmith::fit::verdict::fmt_num;
 use priorsmith::{output, sweep};
 use std::path::Path;
@@ -14,7 +14,7 @@ fn parse_list<T: std::str::FromStr>(s: &str, what: &str) -> Result<Vec<T>> {
         .map(|t| {
             t.trim()
                 .parse::<T>()
-                .map_err(|_| anyhow!("--{what} {s}: `{}` is not a number", t.trim()))
+                .map_err(|_| usage(format!("--{what} {s}: `{}` is not a number", t.trim())))
         })
         .collect()
 }
@@ -25,9 +25,10 @@ pub fn cmd_sweep(
     beliefs: Option<&str>,
     out: &Path,
     quiet: bool,
+    require_met: bool,
 ) -> Result<()> {
     let ws: Vec<f64> = parse_list(widths, "widths")?;
-    let ws = sweep::check_widths(&ws).map_err(|m| anyhow!("--widths {widths}: {m}"))?;
+    let ws = sweep::check_widths(&ws).map_err(|m| usage(format!("--widths {widths}: {m}")))?;
     let spec = load(a)?;
     let which: Option<Vec<usize>> = match beliefs {
         None => None,
@@ -35,27 +36,29 @@ pub fn cmd_sweep(
             let v: Vec<usize> = parse_list(s, "beliefs")?;
             let n = spec.beliefs.len();
             if let Some(bad) = v.iter().find(|i| **i == 0 || **i > n) {
-                return Err(anyhow!(
+                return Err(usage(format!(
                     "--beliefs {s}: belief {bad} does not exist; {} has beliefs 1 to {n}",
                     a.spec.display()
-                ));
+                )));
             }
             Some(v.iter().map(|i| i - 1).collect())
         }
     };
     output::ensure_dir(out)?;
-    let pb = progress_bar(quiet, "refitting");
+    let pb = Progress::new(quiet, "refitting widths");
+    let done = std::sync::atomic::AtomicUsize::new(0);
     if let Some(pb) = &pb {
-        pb.set_length(ws.len() as u64);
+        pb.update(0, ws.len(), "");
     }
     let tick = || {
+        let k = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
         if let Some(pb) = &pb {
-            pb.inc(1);
+            pb.update(k, ws.len(), "");
         }
     };
     let pts = sweep::run(&spec, &ws, which.as_deref(), &tick)?;
     if let Some(pb) = pb {
-        pb.finish_and_clear();
+        pb.finish();
     }
     // Render everything before writing anything.
     let csv = sweep::table_csv(&pts)?;
@@ -81,7 +84,7 @@ pub fn cmd_sweep(
             println!(
                 "  {:>11.3e}  {}",
                 p.result.total.fresh,
-                p.result.verdict.words()
+                output::explain::overall_words(&p.result)
             );
         }
         println!(
@@ -90,5 +93,17 @@ pub fn cmd_sweep(
         );
         println!("{}", output::summary::CAUTION);
     }
-    Ok(())
+    let mut first_err = Ok(());
+    for p in &pts {
+        let r = super::escalate(
+            &format!("sweep width {}", p.width),
+            &p.result,
+            quiet,
+            require_met,
+        );
+        if first_err.is_ok() {
+            first_err = r;
+        }
+    }
+    first_err
 }

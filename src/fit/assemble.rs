@@ -90,6 +90,7 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
         beliefs,
         total,
         verdict,
+        tolerance: spec.fit.tolerance,
         optimiser: opt,
         wall_time_s: started.elapsed().as_secs_f64(),
         prior: spec.model.priors(&h),

@@ -40,7 +40,8 @@ pub use settle::{Point, LOCATION_TARGET};
 use tuning::TUNING;
 pub use verdict::{BeliefReport, Verdict};
 
-/// Progress callback: (done, total) local searches.
+/// Progress callback: (done, total) steps — the local searches of the fit, then
+/// one step per replicate fit.
 pub type Progress<'a> = &'a (dyn Fn(usize, usize) + Sync);
 
 /// Optimise, analyse identifiability, apply the tie-break rule and estimate the
@@ -104,7 +105,17 @@ pub fn fit(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
 fn fit_once(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     let started = Instant::now();
     use crate::spec::TieBreak;
-    let mut point = fit_point(spec, None, progress)?;
+    // Progress counts the local searches of the fit, then one step per
+    // replicate fit, so a bar with replicates does not sit full while they run.
+    let k = spec.fit.replicates;
+    let searches = std::sync::atomic::AtomicUsize::new(0);
+    let main = |done: usize, total: usize| {
+        searches.store(total, std::sync::atomic::Ordering::Relaxed);
+        if let Some(p) = progress {
+            p(done, total + k);
+        }
+    };
+    let mut point = fit_point(spec, None, Some(&main))?;
     let mut steps = vec![(spec.draws, point.worst)];
     let mut raised: Option<Spec> = None;
     if let Some(p) = spec.precision {
@@ -132,7 +143,13 @@ fn fit_once(spec: &Spec, progress: Option<Progress>) -> Result<FitResult> {
     r.draws_chosen.reached =
         spec.precision.is_none() || r.draws_chosen.steps.last().is_some_and(|s| s.1 <= 1.0);
     if spec.fit.replicates > 0 {
-        r.replicates = Some(replicate::run(spec, spec.fit.replicates, applied)?);
+        let m = searches.load(std::sync::atomic::Ordering::Relaxed);
+        let tick = |done: usize| {
+            if let Some(p) = progress {
+                p(m + done, m + k);
+            }
+        };
+        r.replicates = Some(replicate::run(spec, k, applied, Some(&tick))?);
         r.wall_time_s = started.elapsed().as_secs_f64();
     }
     Ok(r)

@@ -38,17 +38,29 @@ pub const THRESHOLD: f64 = 0.05;
 /// Refit `spec` from `k` child seeds of its seed. `tie_break` is the rule the main
 /// fit actually applied, so that every replicate follows the same procedure (an
 /// "auto" decision taken afresh per seed could differ near its threshold).
-pub fn run(spec: &Spec, k: usize, tie_break: crate::spec::TieBreak) -> Result<Replicates> {
+/// `tick(done)` after each replicate fit (for progress displays).
+pub fn run(
+    spec: &Spec,
+    k: usize,
+    tie_break: crate::spec::TieBreak,
+    tick: Option<&(dyn Fn(usize) + Sync)>,
+) -> Result<Replicates> {
     let seeds: Vec<u64> = (1..=k as u64)
         .map(|r| rng::child_seed(spec.seed, 0x5245_5000 + r))
         .collect();
+    let done = std::sync::atomic::AtomicUsize::new(0);
     let fits: Vec<Result<Vec<f64>>> = seeds
         .par_iter()
         .map(|s| {
             let mut sp = spec.clone();
             sp.seed = *s;
             sp.fit.tie_break = tie_break;
-            super::fit_point(&sp, None, None).map(|p| p.h)
+            let h = super::fit_point(&sp, None, None).map(|p| p.h);
+            let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+            if let Some(t) = tick {
+                t(n);
+            }
+            h
         })
         .collect();
     let fits: Vec<Vec<f64>> = fits.into_iter().collect::<Result<_>>()?;

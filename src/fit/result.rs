@@ -101,6 +101,10 @@ pub struct FitResult {
     pub beliefs: Vec<BeliefReport>,
     pub total: Totals,
     pub verdict: Verdict,
+    /// `[fit] tolerance`: the largest root-mean-square CDF gap counted as "met
+    /// approximately" (kept so outputs can show how near a verdict is to it).
+    #[serde(with = "crate::numerics::ext::num")]
+    pub tolerance: f64,
     pub optimiser: OptimiserRecord,
     #[serde(with = "crate::numerics::ext::num")]
     pub wall_time_s: f64,

@@ -5,6 +5,9 @@
 //! * [`display`]: for the terminal and summary.txt (4 decimals, 1 above 100,
 //!   scientific outside [0.001, 100 000); "inf" / "-inf");
 //! * [`html`]: as `display`, with "∞", "−∞" and "—" (not a number) for the report;
+//! * [`sig`]: `n` significant digits, trailing zeros dropped, scientific
+//!   ("2.83e-5") outside [0.001, 1 000 000): the explanations of verdicts, the
+//!   report's tables;
 //! * [`csv`]: every digit (shortest round-trip form), "inf" / "-inf", for tables
 //!   that are read back.
 
@@ -34,6 +37,41 @@ pub fn display(x: f64) -> String {
         format!("{x:.1}")
     } else {
         format!("{x:.4}")
+    }
+}
+
+/// A number to `digits` significant digits, trailing zeros dropped ("0.0202",
+/// "0.02", "6.55", "15", "2.83e-5"); "inf", "-inf", "nan".
+pub fn sig(x: f64, digits: usize) -> String {
+    if x.is_nan() {
+        return "nan".into();
+    }
+    if x.is_infinite() {
+        return if x > 0.0 { "inf".into() } else { "-inf".into() };
+    }
+    if x == 0.0 {
+        return "0".into();
+    }
+    let digits = digits.max(1);
+    // Round first, so 9.996 at 3 digits is 10 (exponent 1), not 10.00.
+    let r: f64 = format!("{x:.*e}", digits - 1).parse().unwrap_or(x);
+    let e = r.abs().log10().floor() as i32;
+    let trim = |s: String| -> String {
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s
+        }
+    };
+    if (-3..6).contains(&e) {
+        let decimals = (digits as i32 - 1 - e).max(0) as usize;
+        trim(format!("{r:.decimals$}"))
+    } else {
+        let s = format!("{r:.*e}", digits - 1);
+        match s.split_once('e') {
+            Some((m, ex)) => format!("{}e{ex}", trim(m.to_string())),
+            None => s,
+        }
     }
 }
 
@@ -79,5 +117,13 @@ mod tests {
         assert_eq!(html(f64::NEG_INFINITY), "−∞");
         assert_eq!(csv(0.1 + 0.2), "0.30000000000000004");
         assert_eq!(csv(f64::INFINITY), "inf");
+        assert_eq!(sig(0.0202, 3), "0.0202");
+        assert_eq!(sig(0.02, 3), "0.02");
+        assert_eq!(sig(6.5549, 3), "6.55");
+        assert_eq!(sig(9.996, 3), "10");
+        assert_eq!(sig(-1234.5, 3), "-1230");
+        assert_eq!(sig(2.834e-5, 3), "2.83e-5");
+        assert_eq!(sig(7.328e6, 4), "7.328e6");
+        assert_eq!(sig(f64::NEG_INFINITY, 3), "-inf");
     }
 }

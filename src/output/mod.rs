@@ -3,7 +3,9 @@
 //! place, so a reader never sees a half-written file, and a failed run leaves no
 //! partial output behind.
 
+pub mod explain;
 pub mod folder;
+pub mod labels;
 pub mod plots;
 pub mod summary;
 pub mod svg;

@@ -25,6 +25,14 @@ pub fn padded_range(vals: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
 
 /// The Pareto front: discrepancy (in noise floors) against spread (mean ln sd).
 pub fn pareto_svg(f: &Front) -> Result<String> {
+    pareto_plot(f, true)
+}
+
+/// The front for pareto.svg (`standalone`) or inline in the report: the points
+/// (κ in each tooltip), the non-dominated front, the chosen prior, and the
+/// band within one noise floor of the best discrepancy (the priors the beliefs
+/// cannot tell from the best).
+pub fn pareto_plot(f: &Front, standalone: bool) -> Result<String> {
     let pts: Vec<(f64, f64)> = f
         .points
         .iter()
@@ -55,11 +63,26 @@ pub fn pareto_svg(f: &Front) -> Result<String> {
         let c = if p.dominated { GREY } else { BLUE };
         plot.point(x, y, c, 4.0, &format!("κ = {}", p.kappa));
     }
+    let best = pts.iter().map(|p| p.0).fold(f64::INFINITY, f64::min);
+    let edge = best + 1.0;
+    if edge < xr.1 {
+        plot.line(
+            &[(edge, yr.0), (edge, yr.1)],
+            GREY,
+            1.5,
+            Some("5 4"),
+            "one noise floor above the best discrepancy",
+        );
+    }
     let (cx, cy) = pts[f.chosen];
     let chosen = format!("chosen ({} rule)", f.rule);
     plot.point(cx, cy, ORANGE, 7.0, &chosen);
-    plot.legend(&[(ORANGE, None, &chosen)]);
-    Ok(plot.finish(true))
+    plot.legend(&[
+        (BLUE, None, "front"),
+        (ORANGE, None, &chosen),
+        (GREY, Some("5 4"), "best + 1 noise floor"),
+    ]);
+    Ok(plot.finish(standalone))
 }
 
 /// The front as CSV: one row per κ.

@@ -1,6 +1,7 @@
 //! `summary.txt`: a plain-text table of the fitted hyperparameters and of how
 //! well each belief is met.
 
+use super::{explain, labels};
 use crate::fit::verdict::fmt_num;
 use crate::fit::FitResult;
 use std::fmt::Write;
@@ -40,6 +41,15 @@ pub fn render(r: &FitResult) -> String {
         r.discrepancy.name(),
         &r.spec_digest[..12.min(r.spec_digest.len())]
     );
+    let _ = writeln!(s, "Verdict: {}", explain::overall_words(r));
+    let und = explain::undetermined(r);
+    if !und.is_empty() {
+        let _ = writeln!(
+            s,
+            "Undetermined by the beliefs (value chosen by the tie-break, not by the beliefs): {}",
+            und.join(", ")
+        );
+    }
     let _ = writeln!(s);
     let _ = writeln!(
         s,
@@ -77,7 +87,7 @@ pub fn render(r: &FitResult) -> String {
     let lw = r
         .beliefs
         .iter()
-        .map(|b| b.label.len())
+        .map(|b| labels::belief(b).chars().count())
         .max()
         .unwrap_or(10)
         .max(10);
@@ -90,15 +100,23 @@ pub fn render(r: &FitResult) -> String {
         let _ = writeln!(
             s,
             "  {:<lw$}  {:>11.3e}  {:>11.3e}  {:>7.2}  {:>8.4}  {}",
-            b.label,
+            labels::belief(b),
             b.fresh,
             b.noise_floor,
             b.ratio,
             b.rms_cdf_gap,
-            b.verdict.words()
+            explain::verdict_words(b, r.tolerance)
         );
+        let largest = explain::largest_difference_line(b);
         for h in &b.how {
+            // The generic "shape differs" line says less than the largest difference.
+            if largest.is_some() && h.starts_with("shape differs") {
+                continue;
+            }
             let _ = writeln!(s, "  {:<lw$}    ↳ {h}", "");
+        }
+        if let Some(l) = largest {
+            let _ = writeln!(s, "  {:<lw$}    ↳ {l}", "");
         }
     }
     let _ = writeln!(
@@ -109,8 +127,11 @@ pub fn render(r: &FitResult) -> String {
         r.total.noise_floor,
         r.total.fresh / r.total.noise_floor,
         "",
-        r.verdict.words()
+        explain::overall_words(r)
     );
+    if r.verdict == crate::fit::Verdict::NotMet {
+        let _ = writeln!(s, "  {}", explain::NEXT_STEP_NOT_MET);
+    }
     let _ = writeln!(s);
     let _ = writeln!(s, "Believed vs implied quantiles");
     let probs: Vec<String> = r
@@ -133,7 +154,7 @@ pub fn render(r: &FitResult) -> String {
         let _ = writeln!(
             s,
             "  {:<lw$}  {:>8} {}",
-            b.label,
+            labels::belief(b),
             "believed",
             row(&b.believed_quantiles)
         );
@@ -178,7 +199,7 @@ pub fn render(r: &FitResult) -> String {
             let _ = writeln!(
                 s,
                 "  {:<lw$}  {:>10}  {:>10}",
-                b.label,
+                labels::belief(b),
                 f(b.believed_ess),
                 f(b.ess)
             );

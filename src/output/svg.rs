@@ -117,6 +117,8 @@ pub struct Plot {
     pub y: Axis,
     body: String,
     title: String,
+    /// Tick positions of the x axis, when given (else chosen from the range).
+    x_ticks: Option<Vec<f64>>,
 }
 
 pub const W: f64 = 560.0;
@@ -157,7 +159,13 @@ impl Plot {
             y: ya,
             body: String::new(),
             title: title.to_string(),
+            x_ticks: None,
         }
+    }
+
+    /// Label the x axis at exactly these values (call before [`Plot::axes`]).
+    pub fn set_x_ticks(&mut self, t: &[f64]) {
+        self.x_ticks = Some(t.to_vec());
     }
 
     /// Grid, ticks and axis labels.
@@ -179,7 +187,7 @@ impl Plot {
             "<line x1=\"{:.1}\" x2=\"{:.1}\" y1=\"{:.1}\" y2=\"{:.1}\"/>",
             x.p0, x.p1, y.p0, y.p0
         );
-        for t in x.ticks() {
+        for t in self.x_ticks.clone().unwrap_or_else(|| x.ticks()) {
             let px = x.px(t);
             let _ = writeln!(
                 b,

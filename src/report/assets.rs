@@ -18,10 +18,14 @@ code{font:12.5px ui-monospace,SFMono-Regular,Menlo,Consolas,monospace}
 .met_approximately .mark,.v.met_approximately .mark{color:var(--orange)}
 .not_met .mark,.v.not_met .mark{color:var(--verm)}
 .caution{border-left:4px solid var(--orange);background:#fdf6e7;padding:10px 14px;margin:12px 0 4px;font-size:14px}
+.caution p{margin:0 0 6px}.caution p:last-child{margin:0}
+.verdict.not_met{color:#8a2a00}
+tr.tiebreak td,tr.flat td{background:#fdf6e7}
+tr.bound td{background:#fbeee6}
 table{border-collapse:collapse;margin:8px 0 4px;font-size:13.5px}
 th,td{padding:4px 10px;border-bottom:1px solid var(--rule);text-align:left;vertical-align:top}
 thead th{border-bottom:2px solid #999;font-weight:600}
-table.quant td,table.summary td:nth-child(n+3):not(:last-child){text-align:right;font-variant-numeric:tabular-nums}
+table.quant td,table.summary td:nth-child(n+3):not(:nth-child(8)){text-align:right;font-variant-numeric:tabular-nums}
 table.quant td{text-align:right;font-variant-numeric:tabular-nums}
 .how{margin:4px 0 8px;padding-left:20px;color:#6b2d00}
 .figs{display:flex;flex-wrap:wrap;gap:18px}

@@ -6,8 +6,12 @@ use super::svg::{self, esc};
 use super::view::*;
 use crate::error::Result;
 use crate::export::record;
+use crate::fit::profile::Call;
+use crate::fit::{SetBy, Verdict};
 use crate::numerics::format::html as fnum;
+use crate::numerics::format::sig;
 use crate::output::summary::CAUTION;
+use crate::output::{explain, labels};
 use serde_json::Value;
 use std::fmt::Write;
 use std::path::{Path, PathBuf};
@@ -50,48 +54,88 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         date = esc(&h.date),
     );
     let overall = fit.verdict.code();
-    let _ = writeln!(html, "<p class=\"verdict {overall}\"><span class=\"mark\">{}</span> Overall: beliefs {}</p>\n<aside class=\"caution\" role=\"note\"><b>Caution.</b> {}</aside>\n</header>",
+    let undetermined = explain::undetermined(fit);
+    // The headline names what most needs attention: a miss, then directions
+    // the beliefs leave to the tie-break.
+    let headline = match (fit.verdict, undetermined.is_empty()) {
+        (Verdict::NotMet, _) => format!(
+            "Overall: beliefs {} — the fitted prior does not say what the beliefs say",
+            explain::overall_words(fit)
+        ),
+        (_, false) => format!(
+            "Overall: beliefs {}, but {} undetermined by them (chosen by the tie-break)",
+            explain::overall_words(fit),
+            if undetermined.len() == 1 {
+                format!("{} is", undetermined[0])
+            } else {
+                format!("{} are", undetermined.join(", "))
+            }
+        ),
+        _ => format!("Overall: beliefs {}", explain::overall_words(fit)),
+    };
+    let mut caution = String::new();
+    if fit.verdict == Verdict::NotMet {
+        let _ = write!(
+            caution,
+            "<p><b>Not met.</b> {}.</p>",
+            esc(explain::NEXT_STEP_NOT_MET.trim_start_matches("next: "))
+        );
+    }
+    if !undetermined.is_empty() {
+        let _ = write!(
+            caution,
+            "<p><b>Undetermined.</b> {}: {}.</p>",
+            esc(&undetermined.join(", ")),
+            esc(explain::NEXT_STEP_UNDETERMINED.trim_start_matches("next: "))
+        );
+    }
+    let _ = writeln!(html, "<p class=\"verdict {overall}\"><span class=\"mark\">{}</span> {}</p>\n<aside class=\"caution\" role=\"note\">{caution}<p><b>Caution.</b> {}</p></aside>\n</header>",
         mark(overall),
-        esc(&h.verdict),
+        esc(&headline),
         esc(CAUTION.trim_start_matches("Caution: "))
     );
     // Summary table.
-    html.push_str("<section>\n<h2>How well the fitted prior meets each belief</h2>\n<table class=\"summary\"><thead><tr><th>belief</th><th>stated as</th><th>weight</th><th title=\"discrepancy on fresh draws\">discrepancy</th><th title=\"Monte Carlo noise floor\">noise floor</th><th>ratio</th><th title=\"root-mean-square CDF gap beyond noise\">CDF gap</th><th>verdict</th><th title=\"prior effective sample size, moment-matched Beta a + b: believed / implied\">ESS</th></tr></thead><tbody>\n");
+    html.push_str("<section>\n<h2>How well the fitted prior meets each belief</h2>\n<table class=\"summary\"><thead><tr><th>belief</th><th>stated as</th><th>weight</th><th title=\"discrepancy on fresh draws\">discrepancy</th><th title=\"Monte Carlo noise floor\">noise floor</th><th>ratio</th><th title=\"root-mean-square CDF gap beyond noise\">CDF gap</th><th>verdict</th><th title=\"prior effective sample size of the stated belief: moment-matched Beta a + b\">ESS believed</th><th title=\"prior effective sample size implied by the fitted prior: moment-matched Beta a + b\">ESS implied</th></tr></thead><tbody>\n");
+    let ess = |x: Option<f64>| x.map_or("—".to_string(), |v| sig(v, 3));
     for (k, b) in bs.iter().enumerate() {
-        let ess = match (b.r.believed_ess, b.r.ess) {
-            (None, None) => "—".to_string(),
-            (x, y) => format!(
-                "{} / {}",
-                x.map_or("—".into(), |v| format!("{v:.1}")),
-                y.map_or("—".into(), |v| format!("{v:.1}"))
-            ),
-        };
         let _ = writeln!(
             html,
-            "<tr><td><a href=\"#belief-{k}\">{}</a></td><td>{}</td><td>{:.2}</td><td>{:.3e}</td><td>{:.3e}</td><td>{:.2}</td><td>{:.4}</td><td class=\"v {}\"><span class=\"mark\">{}</span> {}</td><td>{}</td></tr>",
-            esc(&b.r.label), esc(&b.r.stated_as), b.r.weight, b.r.fresh, b.r.noise_floor, b.r.ratio, b.r.rms_cdf_gap, b.r.verdict.code(), mark(b.r.verdict.code()), esc(&b.r.verdict.code().replace('_', " ")), esc(&ess)
+            "<tr><td><a href=\"#belief-{n}\">{n}. {}</a></td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"v {}\"><span class=\"mark\">{}</span> {}</td><td>{}</td><td>{}</td></tr>",
+            esc(&labels::belief(&b.r)), esc(&b.r.stated_as), sig(b.r.weight, 3), sig(b.r.fresh, 3), sig(b.r.noise_floor, 3), sig(b.r.ratio, 3), sig(b.r.rms_cdf_gap, 3), b.r.verdict.code(), mark(b.r.verdict.code()), esc(&explain::verdict_words(&b.r, fit.tolerance)), ess(b.r.believed_ess), ess(b.r.ess),
+            n = k + 1
         );
     }
-    html.push_str("</tbody></table>\n<p class=\"help\">The discrepancy is computed on fresh prior draws, independent of those the fit used. A ratio near 1 means the believed and implied distributions cannot be told apart with this many draws (<i>met within noise</i>); <i>met approximately</i> means the root-mean-square gap between the CDFs, beyond noise, is within the tolerance.</p>\n</section>\n");
+    html.push_str(&format!("</tbody></table>\n<p class=\"help\">The discrepancy is computed on fresh prior draws, independent of those the fit used. A ratio near 1 means the believed and implied distributions cannot be told apart with this many draws (<i>met within noise</i>); <i>met approximately</i> means the root-mean-square gap between the CDFs, beyond noise, is within the tolerance ({tol}); <i>borderline</i> marks a gap within ±20 % of it. The effective sample sizes (ESS) apply to probability-type quantities: the a + b of the Beta distribution with the same mean and variance, for the stated belief and for what the fitted prior implies.</p>\n</section>\n", tol = sig(fit.tolerance, 3)));
     // One section per belief.
     for (k, b) in bs.iter().enumerate() {
-        let cdf = cdf_plot(&format!("belief-{k}-cdf"), b);
-        let den = density_plot(&format!("belief-{k}-density"), b);
-        svgs(&format!("belief-{k}-cdf"), &cdf);
-        svgs(&format!("belief-{k}-density"), &den);
-        let _ = writeln!(html, "<section class=\"belief\" id=\"belief-{k}\">\n<h2>{}</h2>\n<p class=\"sub\">quantity <code>{}</code>{} · stated as {} · <span class=\"v {}\"><span class=\"mark\">{}</span> {}</span></p>",
-            esc(&b.r.label),
+        // Beliefs are numbered from 1 everywhere (errors, columns, files).
+        let n = k + 1;
+        let cdf = cdf_plot(&format!("belief-{n}-cdf"), b);
+        let den = density_plot(&format!("belief-{n}-density"), b);
+        svgs(&format!("belief-{n}-cdf"), &cdf);
+        svgs(&format!("belief-{n}-density"), &den);
+        let _ = writeln!(html, "<section class=\"belief\" id=\"belief-{}\">\n<h2>Belief {}: {}</h2>\n<p class=\"sub\">quantity <code>{}</code>{} · stated as {} · <span class=\"v {}\"><span class=\"mark\">{}</span> {}</span></p>",
+            k + 1,
+            k + 1,
+            esc(&labels::belief(&b.r)),
             esc(&b.r.quantity),
             b.r.unit.as_ref().map(|u| format!(" in {}", esc(u))).unwrap_or_default(),
             esc(&b.r.stated_as),
             b.r.verdict.code(),
             mark(b.r.verdict.code()),
-            esc(&b.r.verdict.code().replace('_', " "))
+            esc(&explain::verdict_words(&b.r, fit.tolerance))
         );
-        if !b.r.how.is_empty() {
+        let largest = explain::largest_difference_line(&b.r);
+        if !b.r.how.is_empty() || largest.is_some() {
             html.push_str("<ul class=\"how\">");
             for x in &b.r.how {
+                if largest.is_some() && x.starts_with("shape differs") {
+                    continue;
+                }
                 let _ = write!(html, "<li>{}</li>", esc(x));
+            }
+            if let Some(l) = &largest {
+                let _ = write!(html, "<li>{}</li>", esc(l));
             }
             html.push_str("</ul>\n");
         }
@@ -157,27 +201,42 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         );
     }
     html.push_str("</tbody></table>\n<p class=\"help\"><code>priorsmith export DIR --to stan|pymc|brms|json</code> writes this prior as code.</p>\n");
-    html.push_str("<h3>Hyperparameters</h3>\n<table class=\"hyper\"><thead><tr><th>hyperparameter</th><th>value</th><th>how set</th></tr></thead><tbody>\n");
+    html.push_str("<h3>Hyperparameters</h3>\n<table class=\"hyper\"><thead><tr><th>hyperparameter</th><th>value</th><th title=\"Monte Carlo standard error of the fitted value\">MC error</th><th>set by</th><th>range</th></tr></thead><tbody>\n");
     for name in &fit.order {
         let v = fit.hyperparameters.get(name).copied().unwrap_or(f64::NAN);
-        let how = match fit.bounds.get(name) {
-            Some(&(lo, hi)) => {
-                let near = (v - lo).abs() < 1e-3 * (hi - lo) || (hi - v).abs() < 1e-3 * (hi - lo);
-                format!(
-                    "fitted in [{}, {}]{}",
-                    fnum(lo),
-                    fnum(hi),
-                    if near { " — at a bound" } else { "" }
-                )
+        // One rule for "at a bound" and "tie-break": the record's set_by.
+        let set_by = match fit.set_by.get(name) {
+            Some(SetBy::Beliefs) => "the beliefs".to_string(),
+            Some(SetBy::TieBreak) => "the tie-break (the beliefs leave it undetermined)".into(),
+            Some(SetBy::Bound) => {
+                "a bound (the beliefs push it there, or the tie-break ran to it)".into()
             }
-            _ => "fixed in the belief file".into(),
+            Some(SetBy::Undetermined) => {
+                "nothing: undetermined and no tie-break (arbitrary)".into()
+            }
+            Some(SetBy::Fixed) | None => "fixed in the belief file".into(),
+        };
+        let range = fit.bounds.get(name).map_or(String::new(), |&(lo, hi)| {
+            format!("[{}, {}]", sig(lo, 4), sig(hi, 4))
+        });
+        let mc = match fit.mc_error.get(name) {
+            Some(Some(e)) => sig(*e, 2),
+            Some(None) => "—".into(),
+            None => String::new(),
+        };
+        let class = match fit.set_by.get(name) {
+            Some(SetBy::TieBreak | SetBy::Undetermined) => " class=\"tiebreak\"",
+            Some(SetBy::Bound) => " class=\"bound\"",
+            _ => "",
         };
         let _ = writeln!(
             html,
-            "<tr><td><code>{}</code></td><td>{}</td><td>{}</td></tr>",
+            "<tr{class}><td><code>{}</code></td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
             esc(name),
-            fnum(v),
-            esc(&how)
+            sig(v, 4),
+            mc,
+            esc(&set_by),
+            range
         );
     }
     html.push_str("</tbody></table>\n");
@@ -186,39 +245,102 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         let _ = writeln!(html, "<figure class=\"wide\">{hp}<figcaption>Each free hyperparameter's fitted value (dot) within the bounds it was fitted in; orange marks a value at a bound, where the bounds rather than the beliefs decided.</figcaption></figure>");
     }
     html.push_str("</section>\n");
-    // Optional diagnostics, present when other parts of the program wrote them.
-    // The record's diagnostics as JSON values: shown as recorded, and plotted
-    // when they hold a numeric table.
-    let mut diag: Vec<(&str, &str, Value)> = vec![(
-        "identifiability",
-        "Directions the beliefs leave undetermined",
-        as_value(&fit.identifiability),
-    )];
-    if let Some(front) = &fit.pareto {
-        diag.push((
-            "pareto",
-            "Pareto front: faithfulness against spread",
-            as_value(front),
-        ));
-    }
-    if !diag.is_empty() {
-        html.push_str("<section id=\"diagnostics\">\n<h2>Diagnostics</h2>\n");
-        for (key, title, v) in diag {
-            let _ = writeln!(html, "<h3>{}</h3>", esc(title));
-            if let Some(p) = diagnostic_plot(&format!("diag-{key}"), key, &v) {
-                svgs(&format!("diag-{key}"), &p);
-                let _ = writeln!(html, "<figure>{p}<figcaption>From the <code>{key}</code> entry of fit.json.</figcaption></figure>");
+    // Diagnostics in words: the directions table, the front or why there is none,
+    // and the record's entries as JSON for the curious.
+    html.push_str("<section id=\"diagnostics\">\n<h2>What the beliefs determine</h2>\n");
+    html.push_str(&directions_table(fit));
+    html.push_str("<h3>Tie-break and Pareto front</h3>\n");
+    let _ = writeln!(html, "<p>{}</p>", esc(&tie_break_words(fit)));
+    match &fit.pareto {
+        Some(front) => {
+            if let Ok(p) = crate::output::plots::pareto_plot(front, false) {
+                svgs("pareto", &p);
+                let _ = writeln!(html, "<figure>{p}<figcaption>Each point is the best prior for one weight κ on the spread: its discrepancy (in noise floors) against its spread (higher is a wider prior). The orange point is the prior chosen; priors left of the dashed line are within one noise floor of the best and cannot be told apart from it by the beliefs.</figcaption></figure>");
             }
-            let pretty = serde_json::to_string_pretty(&v).unwrap_or_default();
-            let _ = writeln!(html, "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>", esc(&pretty));
         }
-        html.push_str("</section>\n");
+        None => {
+            let _ = writeln!(
+                html,
+                "<p class=\"help\">No Pareto front was traced: {}.</p>",
+                if fit.tie_break == crate::fit::TieBreakUsed::Widest {
+                    "the tie-break solved for the widest prior directly, which needs no front (set <code>[fit] trace_front = true</code> to trace one for this report)"
+                } else {
+                    "no direction was flat enough for a tie-break, or the tie-break was set off or to a fixed κ (set <code>[fit] trace_front = true</code> to trace one)"
+                }
+            );
+        }
     }
+    let mut diag: Vec<(&str, Value)> = vec![("identifiability", as_value(&fit.identifiability))];
+    if let Some(front) = &fit.pareto {
+        diag.push(("pareto", as_value(front)));
+    }
+    for (key, v) in diag {
+        let pretty = serde_json::to_string_pretty(&v).unwrap_or_default();
+        let _ = writeln!(
+            html,
+            "<details><summary>{key} (as recorded in fit.json)</summary><pre>{}</pre></details>",
+            esc(&pretty)
+        );
+    }
+    html.push_str("</section>\n");
     let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder; the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
         esc(CAUTION)
     );
     files.push((PathBuf::from("report.html"), html.into_bytes()));
     Ok(files)
+}
+
+/// The tie-break in a sentence.
+fn tie_break_words(fit: &crate::fit::FitResult) -> String {
+    use crate::fit::TieBreakUsed;
+    let und = explain::undetermined(fit);
+    let which = if und.is_empty() {
+        String::new()
+    } else {
+        format!(" It set {}.", und.join(", "))
+    };
+    match fit.tie_break {
+        TieBreakUsed::Off => "Tie-break: none (no direction was flat, or it was set off).".into(),
+        TieBreakUsed::Widest => format!("Tie-break: the widest prior whose discrepancy is within one reference floor of the best, along the undetermined and borderline directions.{which}"),
+        TieBreakUsed::Knee => match &fit.pareto {
+            Some(f) => format!("Tie-break: the knee of the Pareto front (rule `{}`) chose κ = {}.{which}", f.rule, sig(f.points[f.chosen].kappa, 3)),
+            None => format!("Tie-break: the knee of the Pareto front.{which}"),
+        },
+        TieBreakUsed::Kappa(k) => format!("Tie-break: a fixed weight κ = {} on the spread.{which}", sig(k, 3)),
+    }
+}
+
+/// The directions of the identifiability analysis as a table in words.
+fn directions_table(fit: &crate::fit::FitResult) -> String {
+    let id = &fit.identifiability;
+    let mut h = String::new();
+    if id.directions.is_empty() && id.lines.is_empty() {
+        h.push_str("<p>No free hyperparameters.</p>\n");
+        return h;
+    }
+    let _ = writeln!(h, "<p class=\"help\">Along each direction of the free hyperparameters (on the optimiser's unbounded scale), the share of the allowed range over which the discrepancy stays within one reference floor ({}) of the best: 0.10 or less is <i>determined</i>, 0.15 or more <i>undetermined</i> (the tie-break chooses there), between them <i>borderline</i>. δ* is how far one can move before the discrepancy rises by one noise floor.</p>", sig(id.reference_floor, 3));
+    h.push_str("<table class=\"directions\"><thead><tr><th>direction</th><th>call</th><th>flat share</th><th>δ*</th><th>in words</th></tr></thead><tbody>\n");
+    for d in &id.directions {
+        let share = d
+            .width
+            .map_or("below 0.10 (steep)".to_string(), |w| sig(w, 3));
+        let words = match d.call {
+            Call::Determined => "the beliefs fix this combination",
+            Call::Borderline => "the beliefs barely fix this combination; the tie-break settles it",
+            Call::Undetermined => "the beliefs do not fix this combination; the tie-break chose it",
+            Call::PushedToBound => "the beliefs push this combination to a bound of its range",
+        };
+        let _ = writeln!(h, "<tr class=\"{}\"><td><code>{}</code></td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+            if d.call.is_flat() { "flat" } else { "" },
+            esc(&d.description), esc(d.call.words()), share, sig(d.indistinguishable_halfwidth, 3), words);
+    }
+    for l in id.lines.iter().filter(|l| l.at_bound.is_some()) {
+        let _ = writeln!(h, "<tr class=\"bound\"><td><code>{}</code></td><td>{}</td><td>{}</td><td>—</td><td>at a bound of its range{}</td></tr>",
+            esc(&l.description), esc(l.call.words()), sig(l.width, 3),
+            if l.call == Call::PushedToBound { ": the beliefs push it there" } else { "" });
+    }
+    h.push_str("</tbody></table>\n");
+    h
 }
 
 pub(super) fn mark(verdict: &str) -> &'static str {

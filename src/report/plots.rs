@@ -7,7 +7,6 @@ use super::svg::{
 use super::view::*;
 use crate::fit::FitResult;
 use crate::numerics::format::html as fnum;
-use serde_json::Value;
 use std::fmt::Write;
 
 /// The x range shown for a belief: 1–99 % of the finite parts of both
@@ -55,10 +54,7 @@ pub(super) fn x_range(b: &BeliefView) -> (f64, f64) {
 }
 
 pub(super) fn axis_label(b: &BeliefView) -> String {
-    match &b.r.unit {
-        Some(u) => format!("{} ({u})", b.r.label),
-        None => b.r.label.clone(),
-    }
+    crate::output::labels::with_unit(&b.r)
 }
 
 pub(super) const INF_COL: f64 = 104.0;
@@ -72,7 +68,7 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         id,
         &format!(
             "{}: believed and implied cumulative distribution",
-            b.r.label
+            crate::output::labels::belief(&b.r)
         ),
         (lo, hi, false),
         (0.0, 1.0),
@@ -266,14 +262,14 @@ pub fn density_plot(id: &str, b: &BeliefView) -> String {
         id,
         &format!(
             "{}: believed density and histogram of the implied draws",
-            b.r.label
+            crate::output::labels::belief(&b.r)
         ),
         (lo, hi, false),
         (0.0, ymax * 1.1),
         0.0,
     );
     let ylab = match &b.r.unit {
-        Some(u) => format!("density (per {u})"),
+        Some(u) => format!("density ({})", crate::output::labels::per_unit(u)),
         None => "density".into(),
     };
     p.axes(&axis_label(b), &ylab);
@@ -360,7 +356,9 @@ pub fn hyper_plot(id: &str, fit: &FitResult) -> Option<String> {
             (v - lo) / (hi - lo)
         };
         let px = x0 + t.clamp(0.0, 1.0) * (x1 - x0);
-        let near = !(0.001..=0.999).contains(&t);
+        // One rule for "at a bound" everywhere: the record's set_by (as in
+        // summary.txt, the hyperparameter table and fit.json).
+        let near = fit.set_by.get(name.as_str()) == Some(&crate::fit::SetBy::Bound);
         let _ = writeln!(
             b,
             "<text x=\"10\" y=\"{:.1}\">{}</text>",
@@ -394,80 +392,4 @@ pub fn hyper_plot(id: &str, fit: &FitResult) -> Option<String> {
     }
     b.push_str("</svg>\n");
     Some(b)
-}
-
-/// A numeric table found in a diagnostics value: (key path, column names, rows).
-pub(super) fn numeric_table(v: &Value) -> Option<(Vec<String>, Vec<Vec<f64>>)> {
-    let arr = match v {
-        Value::Array(a) => a,
-        Value::Object(o) => return o.values().find_map(numeric_table),
-        _ => return None,
-    };
-    let first = arr.first()?.as_object()?;
-    let cols: Vec<String> = first
-        .iter()
-        .filter(|(_, x)| number(x).is_some())
-        .map(|(k, _)| k.clone())
-        .collect();
-    if cols.len() < 2 {
-        return None;
-    }
-    let rows: Vec<Vec<f64>> = arr
-        .iter()
-        .map(|r| {
-            cols.iter()
-                .map(|c| r.get(c).and_then(number).unwrap_or(f64::NAN))
-                .collect()
-        })
-        .collect();
-    Some((cols, rows))
-}
-
-/// A scatter (and, for sweeps, a line) of the first two numeric columns.
-pub(super) fn diagnostic_plot(id: &str, key: &str, v: &Value) -> Option<String> {
-    let (cols, rows) = numeric_table(v)?;
-    let xi = cols.iter().position(|c| c == "kappa").unwrap_or(0);
-    let yi = (0..cols.len()).find(|i| *i != xi)?;
-    let mut pts: Vec<(f64, f64)> = rows
-        .iter()
-        .map(|r| (r[xi], r[yi]))
-        .filter(|(x, y)| x.is_finite() && y.is_finite())
-        .collect();
-    if pts.is_empty() {
-        return None;
-    }
-    pts.sort_by(|a, b| a.0.total_cmp(&b.0));
-    let ext = |f: fn(&(f64, f64)) -> f64| {
-        let lo = pts.iter().map(f).fold(f64::INFINITY, f64::min);
-        let hi = pts.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
-        let pad = if hi > lo {
-            0.06 * (hi - lo)
-        } else {
-            0.5 * lo.abs().max(1e-9)
-        };
-        (lo - pad, hi + pad)
-    };
-    let (xl, xh) = ext(|p| p.0);
-    let (yl, yh) = ext(|p| p.1);
-    let mut p = Plot::new(
-        id,
-        &format!("{key}: {} against {}", cols[yi], cols[xi]),
-        (xl, xh, false),
-        (yl, yh),
-        0.0,
-    );
-    p.axes(&cols[xi], &cols[yi]);
-    if key == "sweep" {
-        p.line(&pts, BLUE, 1.8, None, key);
-    }
-    for (x, y) in &pts {
-        p.point(
-            *x,
-            *y,
-            BLUE,
-            3.5,
-            &format!("{} = {}, {} = {}", cols[xi], fnum(*x), cols[yi], fnum(*y)),
-        );
-    }
-    Some(p.finish(false))
 }

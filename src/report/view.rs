@@ -51,16 +51,6 @@ pub(super) fn as_value<T: serde::Serialize>(x: &T) -> Value {
     serde_json::to_value(x).unwrap_or(Value::Null)
 }
 
-/// A JSON number, or ±inf written as a string (the record's convention).
-pub(super) fn number(v: &Value) -> Option<f64> {
-    match v {
-        Value::Number(n) => n.as_f64(),
-        Value::String(s) if s == "inf" => Some(f64::INFINITY),
-        Value::String(s) if s == "-inf" => Some(f64::NEG_INFINITY),
-        _ => None,
-    }
-}
-
 /// The beliefs of a fit record with the draws of draws.csv attached; `file`
 /// (the fit.json) names the record in errors.
 pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<BeliefView>> {

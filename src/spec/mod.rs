@@ -284,13 +284,19 @@ fn simulation(ctx: &Ctx, raw: &RawSpec, ov: &Overrides) -> Result<Simulation> {
             .with_hint("use at least 100; 10,000–50,000 is typical"));
     }
     if draws > cap {
+        // A resource limit (exit 5), blamed on where the value came from.
         let mb = draws as f64 * 8.0 * 12.0 / 1e6;
-        return Err(ctx
-            .err(
-                &sp("draws"),
-                format!("draws = {draws} exceeds the limit of {cap} (about {mb:.0} MB of working memory)"),
-            )
-            .with_hint("lower it, or raise the limit deliberately with --max-draws"));
+        let what = format!(
+            "{draws} draws exceed the limit of {cap} (about {mb:.0} MB of working memory)\n  \
+             hint: lower it, or raise the limit deliberately with --max-draws"
+        );
+        return Err(Error::Limit(match ov.draws {
+            Some(_) => format!("option `--draws`: {what}"),
+            None => match ctx.err(&sp("draws"), "") {
+                Error::Input { loc, .. } => format!("{loc}: {what}"),
+                other => format!("{other}: {what}"),
+            },
+        }));
     }
     let seed = match (ov.seed, sim.and_then(|s| s.seed.as_ref())) {
         (Some(s), _) => s,
@@ -443,11 +449,125 @@ fn fit_options(ctx: &Ctx, raw: &RawSpec, model: &dyn Model, ov: &Overrides) -> R
 }
 
 /// SHA-256 of a belief file's normalised table: the `spec_digest` that ties a
-/// fit record to the file it was fitted from.
-pub fn digest(table: &toml::Table) -> String {
+/// fit record to the file it was fitted from. Each data file the table names
+/// (`[design] file`, `historical.data`) enters by the SHA-256 of its contents,
+/// read relative to `base_dir` (the belief file's folder), not by the text of
+/// its path: the digest survives moving the files together and rewriting the
+/// paths ([`rebase_paths`]), and changes when a data file changes. A file that
+/// cannot be read enters by its path text (validation reports it).
+pub fn digest(table: &toml::Table, base_dir: &Path) -> String {
+    let mut t = table.clone();
+    for_each_path(&mut t, &mut |v| {
+        if let toml::Value::String(p) = v {
+            if let Ok(bytes) = std::fs::read(base_dir.join(&*p)) {
+                *v = toml::Value::String(format!(
+                    "data file sha256 {:x}",
+                    sha2::Sha256::digest(&bytes)
+                ));
+            }
+        }
+    });
     let mut d = sha2::Sha256::new();
-    d.update(toml::to_string(table).unwrap_or_default().as_bytes());
+    d.update(toml::to_string(&t).unwrap_or_default().as_bytes());
     format!("{:x}", d.finalize())
+}
+
+/// The folder relative paths of a belief file resolve against: its own folder
+/// (the working folder for text without a file).
+pub fn base_dir(file: Option<&Path>) -> PathBuf {
+    match file.and_then(Path::parent) {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    }
+}
+
+/// Call `f` on every value of `table` that holds a data file's path:
+/// `[design] file`, and `historical.data` of each belief and of each expert.
+pub fn for_each_path(table: &mut toml::Table, f: &mut dyn FnMut(&mut toml::Value)) {
+    if let Some(v) = table
+        .get_mut("design")
+        .and_then(toml::Value::as_table_mut)
+        .and_then(|d| d.get_mut("file"))
+    {
+        f(v);
+    }
+    let hist = |t: &mut toml::Table, f: &mut dyn FnMut(&mut toml::Value)| {
+        if let Some(v) = t
+            .get_mut("historical")
+            .and_then(toml::Value::as_table_mut)
+            .and_then(|h| h.get_mut("data"))
+        {
+            f(v);
+        }
+    };
+    if let Some(bs) = table.get_mut("belief").and_then(toml::Value::as_array_mut) {
+        for b in bs.iter_mut().filter_map(toml::Value::as_table_mut) {
+            hist(b, f);
+            if let Some(es) = b.get_mut("experts").and_then(toml::Value::as_array_mut) {
+                for e in es.iter_mut().filter_map(toml::Value::as_table_mut) {
+                    hist(e, f);
+                }
+            }
+        }
+    }
+}
+
+/// Rewrite the relative data-file paths of a belief file read from folder
+/// `from` so that they resolve from folder `to` (where a copy of it is written):
+/// relative to `to` when both folders' absolute forms share a root, else absolute.
+pub fn rebase_paths(table: &mut toml::Table, from: &Path, to: &Path) {
+    let abs = |p: &Path| std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
+    let (from, to) = (abs(from), abs(to));
+    for_each_path(table, &mut |v| {
+        if let toml::Value::String(p) = v {
+            if Path::new(&*p).is_absolute() {
+                return;
+            }
+            let target = normalise(&from.join(&*p));
+            *v = toml::Value::String(
+                relative_to(&target, &normalise(&to))
+                    .unwrap_or(target)
+                    .to_string_lossy()
+                    .into_owned(),
+            );
+        }
+    });
+}
+
+/// `p` without `.` and with `x/..` folded (lexically; symbolic links are not read).
+fn normalise(p: &Path) -> PathBuf {
+    use std::path::Component;
+    let mut out = PathBuf::new();
+    for c in p.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                if !out.pop() {
+                    out.push("..");
+                }
+            }
+            other => out.push(other.as_os_str()),
+        }
+    }
+    out
+}
+
+/// `target` relative to the folder `dir` (both absolute and normalised).
+fn relative_to(target: &Path, dir: &Path) -> Option<PathBuf> {
+    let t: Vec<_> = target.components().collect();
+    let d: Vec<_> = dir.components().collect();
+    if t.first() != d.first() {
+        return None;
+    }
+    let common = t.iter().zip(&d).take_while(|(a, b)| a == b).count();
+    let mut out = PathBuf::new();
+    for _ in common..d.len() {
+        out.push("..");
+    }
+    for c in &t[common..] {
+        out.push(c.as_os_str());
+    }
+    Some(out)
 }
 
 /// Validate an already-parsed table (`text` is used for line numbers and the digest).
@@ -469,7 +589,7 @@ pub fn from_table(
             })?;
     let map = SourceMap::new(text);
     let ctx = Ctx::new(file, &map, &raw);
-    let digest = digest(&table);
+    let digest = digest(&table, &ctx.base_dir);
 
     let Simulation {
         draws,
