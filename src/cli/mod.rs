@@ -282,6 +282,13 @@ fn load(a: &SpecArgs) -> Result<Spec> {
     Ok(spec::load(&a.spec, &a.overrides())?)
 }
 
+/// Beliefs the template cannot meet, named before fitting (stderr, even when quiet).
+fn print_warnings(spec: &Spec) {
+    for w in &spec.warnings {
+        eprintln!("warning: {w}");
+    }
+}
+
 fn progress_bar(quiet: bool, what: &str) -> Option<ProgressBar> {
     if quiet {
         return None;
@@ -319,6 +326,7 @@ pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitRes
 
 fn cmd_fit(a: &SpecArgs, out: &Path, replicates: Option<usize>, quiet: bool) -> Result<()> {
     let mut spec = load(a)?;
+    print_warnings(&spec);
     if let Some(k) = replicates {
         if !(2..=100).contains(&k) {
             anyhow::bail!("--replicates {k}: use between 2 and 100 seeds");
@@ -338,6 +346,7 @@ fn cmd_fit(a: &SpecArgs, out: &Path, replicates: Option<usize>, quiet: bool) -> 
 
 fn cmd_check(path: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
     let spec = spec::load(path, ov)?;
+    print_warnings(&spec);
     if !quiet {
         println!(
             "{}: valid — template {}, {} hyperparameters ({} free), {} beliefs, {} draws, seed {}",

@@ -218,6 +218,13 @@ pub trait Model: Send + Sync {
     fn prepare(&mut self, _requests: &[&Request]) -> Result<()> {
         Ok(())
     }
+    /// Beliefs the template cannot meet at any hyperparameters, each named with
+    /// its remedy (e.g. a non-null median under a prior symmetric about zero).
+    /// Called once the model is prepared; `spec` keeps the messages and `check`
+    /// and `fit` print them before fitting. Default: none.
+    fn warnings(&self, _beliefs: &[(&Request, &crate::target::Target)]) -> Vec<String> {
+        Vec::new()
+    }
     /// Base variates for `n` draws from the streams (and points) of `plan`.
     fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws;
     /// Draws of each requested quantity at hyperparameters `h` (full vector).

@@ -47,6 +47,7 @@ pub mod multilevel;
 pub mod own;
 mod profile;
 pub mod quantity;
+mod reach;
 mod request;
 mod simulate;
 pub mod table;
@@ -196,6 +197,10 @@ impl Model for Regression {
     fn prepare(&mut self, requests: &[&Request]) -> Result<()> {
         self.needs = Needs::of(requests, self)?;
         Ok(())
+    }
+
+    fn warnings(&self, beliefs: &[(&Request, &crate::target::Target)]) -> Vec<String> {
+        self.reach(beliefs)
     }
 
     fn draw_base(&self, n: usize, plan: &rng::Plan) -> BaseDraws {
