@@ -66,6 +66,10 @@ pub const Q_ODDS_RATIO: RegDef = QuantityDef::new(
     Support::Positive,
 );
 
+/// The quantity table, for the regression tests that build the model directly.
+#[cfg(test)]
+pub static QUANTITIES_FOR_TESTS: &[RegDef] = &QUANTITIES;
+
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "logistic",
     about: "logistic regression over a design, with a shrinkage prior on the coefficients",

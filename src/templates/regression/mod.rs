@@ -53,6 +53,8 @@ mod simulate;
 pub mod table;
 #[cfg(test)]
 mod tests;
+#[cfg(test)]
+mod tests_multilevel;
 
 use super::{
     BaseDraws, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request, TemplateInfo,
@@ -109,6 +111,17 @@ pub fn build_with(
     quantities: &'static [RegDef],
     multilevel: bool,
 ) -> Result<Box<dyn Model>> {
+    Ok(Box::new(make(ctx, info, link, quantities, multilevel)?))
+}
+
+/// The model [`build_with`] boxes.
+pub(super) fn make(
+    ctx: &Ctx,
+    info: &'static TemplateInfo,
+    link: Link,
+    quantities: &'static [RegDef],
+    multilevel: bool,
+) -> Result<Regression> {
     let m = ctx.model();
     let keys: Vec<&str> = info.options.iter().map(|o| o.0).collect();
     ctx.check_keys(&[key("model")], m, &keys)?;
@@ -163,7 +176,7 @@ pub fn build_with(
             .collect();
     }
     let own_cov = own::own_cov(&design, &own);
-    Ok(Box::new(Regression {
+    Ok(Regression {
         info,
         link,
         design,
@@ -178,7 +191,7 @@ pub fn build_with(
         quantities,
         needs: Needs::default(),
         tables: base::TableCache::default(),
-    }))
+    })
 }
 
 impl Model for Regression {

@@ -241,6 +241,23 @@ impl Eval<'_> {
         q.max(0.0)
     }
 
+    /// The linear predictor minus α at every design row of draw i, formed
+    /// explicitly (tests compare its variance with [`Eval::q_total`]).
+    #[cfg(test)]
+    pub(super) fn eta_rows(&self, i: usize) -> Vec<f64> {
+        let nr = self.model.design.rows();
+        let rows = &self.prod().rows[i * nr..(i + 1) * nr];
+        rows.iter()
+            .enumerate()
+            .map(|(row, x)| self.g[i] * x + self.row_extra(i, row))
+            .collect()
+    }
+
+    #[cfg(test)]
+    pub(super) fn q_total_of(&self, i: usize) -> f64 {
+        self.q_total(i)
+    }
+
     /// The covariate-specific part of a linear form aᵀβ for draw i.
     fn own_part(&self, r: &Request, i: usize) -> Result<f64> {
         if self.own.is_empty() {
