@@ -131,16 +131,29 @@ fn multilevel_starters_fit_as_shipped_and_export() {
         }
         // Stan and PyMC state the random intercepts; brms the sd as class "sd".
         let out = dir.path().join(t);
-        let stan = run(&["export", "--to", "stan", out.to_str().unwrap()], dir.path());
+        let stan = run(
+            &["export", "--to", "stan", out.to_str().unwrap()],
+            dir.path(),
+        );
         let s = text(&stan);
         assert!(stan.status.success(), "{s}");
         assert!(
             s.contains("u = cluster_sd * u_z") && s.contains("cluster_sd ~ normal(0, "),
             "{s}"
         );
-        let pymc = run(&["export", "--to", "pymc", out.to_str().unwrap()], dir.path());
-        assert!(text(&pymc).contains("pm.HalfNormal(\"cluster_sd\""), "{}", text(&pymc));
-        let brms = run(&["export", "--to", "brms", out.to_str().unwrap()], dir.path());
+        let pymc = run(
+            &["export", "--to", "pymc", out.to_str().unwrap()],
+            dir.path(),
+        );
+        assert!(
+            text(&pymc).contains("pm.HalfNormal(\"cluster_sd\""),
+            "{}",
+            text(&pymc)
+        );
+        let brms = run(
+            &["export", "--to", "brms", out.to_str().unwrap()],
+            dir.path(),
+        );
         let b = text(&brms);
         assert!(brms.status.success(), "{b}");
         assert!(b.contains("class = \"sd\"") && b.contains("(1 | "), "{b}");
@@ -190,9 +203,15 @@ quantiles = { "0.25" = 0.02, "0.5" = 0.06, "0.75" = 0.15 }
     let o = run(&["fit", "g.toml", "-o", "g", "-q"], dir.path());
     assert!(o.status.success(), "{}", text(&o));
     let out = dir.path().join("g");
-    let s = text(&run(&["export", "--to", "stan", out.to_str().unwrap()], dir.path()));
+    let s = text(&run(
+        &["export", "--to", "stan", out.to_str().unwrap()],
+        dir.path(),
+    ));
     // 5 centres; age and dose are the covariates (the group column is not).
-    assert!(s.contains("vector[5] u_z;") && s.contains("vector[2] beta;"), "{s}");
+    assert!(
+        s.contains("vector[5] u_z;") && s.contains("vector[2] beta;"),
+        "{s}"
+    );
     assert!(s.contains("cluster_sd ~ cauchy(0, "), "{s}");
 }
 
@@ -252,7 +271,10 @@ quantiles = { "0.25" = 0.3, "0.5" = 0.5, "0.75" = 0.7 }
     ];
     for (k, (prior, design, needles)) in cases.iter().enumerate() {
         let text = base
-            .replace("[prior.coefficients]", &format!("{prior}[prior.coefficients]"))
+            .replace(
+                "[prior.coefficients]",
+                &format!("{prior}[prior.coefficients]"),
+            )
             .replace("rows = 50\n", &format!("rows = 50\n{design}"));
         let p = dir.path().join(format!("bad{k}.toml"));
         std::fs::write(&p, text).unwrap();
@@ -267,7 +289,13 @@ quantiles = { "0.25" = 0.3, "0.5" = 0.5, "0.75" = 0.7 }
         );
     let p = dir.path().join("ml.toml");
     std::fs::write(&p, &ml).unwrap();
-    common::assert_rejected(dir.path(), &p, "ml.toml", 3, &["needs the design's clusters"]);
+    common::assert_rejected(
+        dir.path(),
+        &p,
+        "ml.toml",
+        3,
+        &["needs the design's clusters"],
+    );
     let p = dir.path().join("ml2.toml");
     std::fs::write(&p, ml.replace("rows = 50\n", "rows = 50\nclusters = 5\n")).unwrap();
     common::assert_rejected(

@@ -16,7 +16,10 @@ use crate::input::Ctx;
 /// The quantity table (the catalogue lists it in this order).
 static QUANTITIES: [RegDef; 7] = [
     Q_ICC,
-    q_spread("5–95 % range of cluster means at a profile, 2·1.645·σ_u", Support::Positive),
+    q_spread(
+        "5–95 % range of cluster means at a profile, 2·1.645·σ_u",
+        Support::Positive,
+    ),
     Q_R2_FIXED,
     Q_R2_COND,
     q_mean(Support::Real),

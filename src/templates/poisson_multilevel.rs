@@ -5,20 +5,23 @@
 //! Machinery, formulas and references: [`super::regression`] and
 //! [`super::regression::multilevel`].
 
+use super::poisson::{Q_RATE, Q_RATE_RATIO};
 use super::quantity::catalogue;
-use super::regression::multilevel::{q_spread, Q_MRR, Q_ICC, Q_R2_COND, Q_R2_FIXED};
+use super::regression::multilevel::{q_spread, Q_ICC, Q_MRR, Q_R2_COND, Q_R2_FIXED};
 use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
 use crate::error::Result;
 use crate::input::Ctx;
-use super::poisson::{Q_RATE, Q_RATE_RATIO};
 
 /// The quantity table (the catalogue lists it in this order).
 static QUANTITIES: [RegDef; 10] = [
     Q_ICC,
     Q_MRR,
-    q_spread("5–95 % range of cluster rates (per unit exposure) at a profile", Support::Positive),
+    q_spread(
+        "5–95 % range of cluster rates (per unit exposure) at a profile",
+        Support::Positive,
+    ),
     Q_R2_FIXED,
     Q_R2_COND,
     Q_RATE,

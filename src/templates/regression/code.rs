@@ -180,7 +180,9 @@ pub fn cluster_effects(cl: &crate::design::Clusters) -> crate::templates::PriorS
         &mut code,
         "stan",
         "parameters",
-        vec![format!("vector[{j}] u_z;  // standardised random intercepts, one per {g}")],
+        vec![format!(
+            "vector[{j}] u_z;  // standardised random intercepts, one per {g}"
+        )],
     );
     section(
         &mut code,
@@ -190,7 +192,12 @@ pub fn cluster_effects(cl: &crate::design::Clusters) -> crate::templates::PriorS
             "vector[{j}] u = cluster_sd * u_z;  // random intercepts u_j ~ N(0, cluster_sd²); add u[{g}[i]] to row i's linear predictor"
         )],
     );
-    section(&mut code, "stan", "model", vec!["u_z ~ std_normal();".into()]);
+    section(
+        &mut code,
+        "stan",
+        "model",
+        vec!["u_z ~ std_normal();".into()],
+    );
     section(
         &mut code,
         "pymc",

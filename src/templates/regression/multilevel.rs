@@ -24,6 +24,7 @@
 //!   Evol. 4, eq. 26–27) marginal R² σ_f²/(σ_f² + σ_u² + σ_d²) and conditional R²
 //!   (σ_f² + σ_u²)/(σ_f² + σ_u² + σ_d²), with σ_f² the design variance of the
 //!   fixed-effect linear predictor (`signal_sd`²).
+//!
 //! The quantities at a profile (`mean_response`, `event_prob`, `rate`) are those
 //! of a typical cluster (u = 0).
 

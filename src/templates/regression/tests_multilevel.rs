@@ -111,7 +111,11 @@ fn median_odds_ratio_is_larsen_merlo_per_draw_and_the_median_of_pair_ratios() {
     for i in 0..n {
         // Larsen & Merlo (2005, Am. J. Epidemiol. 161, eq. 2).
         let want = (std::f64::consts::SQRT_2 * su[i] * 0.674_489_750_196_081_7).exp();
-        assert!((x[i] / want - 1.0).abs() < 1e-12, "draw {i}: {} vs {want}", x[i]);
+        assert!(
+            (x[i] / want - 1.0).abs() < 1e-12,
+            "draw {i}: {} vs {want}",
+            x[i]
+        );
     }
     // The formula is the median of exp(|u_i − u_j|) over pairs of clusters: our
     // own independent simulation of 200,000 pairs at σ_u = 0.8; the share of pairs
@@ -240,7 +244,10 @@ fn covariate_specific_priors_enter_every_quantity() {
     );
     for i in (0..n).step_by(37) {
         let b = 0.22 + 0.15 * base.cols[3][i];
-        assert!((out[0][i] / (2.0 * b).exp() - 1.0).abs() < 1e-12, "draw {i}");
+        assert!(
+            (out[0][i] / (2.0 * b).exp() - 1.0).abs() < 1e-12,
+            "draw {i}"
+        );
     }
     // b_x5 and b_x6 share the hyperparameters of [prior.pair] (one set of
     // hyperparameters: pair.df, pair.location, pair.scale) but are drawn
