@@ -240,7 +240,7 @@ quantiles = { "0.25" = 0.3, "0.5" = 0.5, "0.75" = 0.7 }
         (
             "[prior.x9]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n",
             "",
-            &["[prior.x9]", "not a parameter"],
+            &["[prior.x9]", "not a parameter", "nor a column of the design"],
         ),
         (
             "[prior.pair]\ncovariates = [\"x1\", \"xx2\"]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n",

@@ -80,8 +80,27 @@ pub fn parse(ctx: &Ctx, design: &Design, priors: &mut PriorSet) -> Result<Vec<Ow
             }
             None => match design.column(name) {
                 Some(j) => vec![(j, name.clone())],
-                // Not ours: spec reports the table as unknown, naming the parameters.
-                None => continue,
+                None => {
+                    let mut names: Vec<&str> = RESERVED.to_vec();
+                    names.extend(design.names.iter().map(String::as_str));
+                    return Err(ctx
+                        .err(
+                            &path,
+                            format!(
+                                "[prior.{name}] is not a parameter of template {} nor a column of the design",
+                                ctx.model()
+                                    .get("template")
+                                    .and_then(|v| v.as_str())
+                                    .unwrap_or("?")
+                            ),
+                        )
+                        .with_hint(match crate::error::nearest(name, names.iter().copied()) {
+                            Some(n) => format!(
+                                "did you mean `{n}`? A covariate's own prior is [prior.COLUMN]; a list takes covariates = [...]"
+                            ),
+                            None => "a covariate's own prior is [prior.COLUMN] (a design column); a list takes covariates = [...]".to_string(),
+                        }));
+                }
             },
         };
         let extra: &[&str] = if t.contains_key("covariates") {
