@@ -12,6 +12,12 @@
 //!   with `rho` and `seed`; columns are named x1 … xp. Row r uses ChaCha8 stream r
 //!   of the seed (see [`crate::rng`]), so the design is the same on every machine.
 //!
+//! Clusters (for the multilevel templates): `group = "NAME"` names a column of
+//! the CSV file holding each row's cluster label (any text; the column is not a
+//! covariate), or `clusters = J` splits the rows, in order, into J consecutive
+//! clusters of near-equal size (sizes ⌊n/J⌋ or ⌈n/J⌉). Either way the design
+//! records the number of clusters and their sizes.
+//!
 //! `standardise = true` centres every column and scales it to variance 1 (the
 //! 1/n variance of the rows, so that the design covariance S = X_cᵀX_c/n has unit
 //! diagonal); a constant column is then an error. Whatever the choice, the design
@@ -26,8 +32,10 @@ use std::path::Path;
 /// Largest design accepted (cells), about 400 MB of doubles.
 pub const MAX_CELLS: usize = 50_000_000;
 
-const KEYS: [&str; 7] = [
+const KEYS: [&str; 9] = [
     "file",
+    "group",
+    "clusters",
     "standardise",
     "columns",
     "rows",
@@ -59,6 +67,43 @@ pub struct Design {
     /// Centred design X_c, rows × columns.
     pub xc: DMatrix<f64>,
     pub standardised: bool,
+    /// The rows' clusters, when `[design]` gives `group` or `clusters`.
+    pub clusters: Option<Clusters>,
+}
+
+/// The clusters of a design's rows.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Clusters {
+    /// The grouping factor's name: the `group` column, or "cluster".
+    pub name: String,
+    /// Rows per cluster, in order of first appearance.
+    pub sizes: Vec<usize>,
+}
+
+impl Clusters {
+    /// J clusters of near-equal size over n rows, in row order.
+    pub fn equal(n: usize, j: usize) -> Self {
+        let sizes = (0..j).map(|k| (k + 1) * n / j - k * n / j).collect();
+        Clusters {
+            name: "cluster".into(),
+            sizes,
+        }
+    }
+    pub fn count(&self) -> usize {
+        self.sizes.len()
+    }
+    /// Mean cluster size m̄ and coefficient of variation of the sizes (1/J variance).
+    pub fn mean_cv(&self) -> (f64, f64) {
+        let j = self.sizes.len() as f64;
+        let m = self.sizes.iter().sum::<usize>() as f64 / j;
+        let v = self
+            .sizes
+            .iter()
+            .map(|s| (*s as f64 - m).powi(2))
+            .sum::<f64>()
+            / j;
+        (m, v.sqrt() / m)
+    }
 }
 
 impl Design {
@@ -124,6 +169,7 @@ impl Design {
             var,
             xc,
             standardised: standardise,
+            clusters: None,
         })
     }
 }
@@ -151,7 +197,29 @@ pub fn from_ctx(ctx: &Ctx) -> Result<Design> {
             ))
         }
     };
-    match (t.get("file"), t.get("columns")) {
+    let group = match t.get("group") {
+        Some(v) => Some(ctx.string(&sub("group"), v)?),
+        None => None,
+    };
+    let clusters = match t.get("clusters") {
+        Some(v) => {
+            if group.is_some() {
+                return Err(ctx
+                    .err(&sub("clusters"), "give `group` or `clusters`, not both")
+                    .with_hint("`group` reads the clusters from a column of the file; `clusters = J` splits the rows into J"));
+            }
+            let j = ctx.count(&sub("clusters"), v)? as usize;
+            if j < 2 {
+                return Err(ctx.err(
+                    &sub("clusters"),
+                    format!("clusters = {j}: a multilevel model needs at least 2 clusters"),
+                ));
+            }
+            Some(j)
+        }
+        None => None,
+    };
+    let mut d = match (t.get("file"), t.get("columns")) {
         (Some(_), Some(_)) => Err(ctx
             .err(
                 &sub("columns"),
@@ -169,16 +237,33 @@ pub fn from_ctx(ctx: &Ctx) -> Result<Design> {
             }
             let name = ctx.string(&sub("file"), f)?;
             let path = ctx.resolve(name);
-            read_csv(&path, standardise)
+            read_csv_grouped(&path, standardise, group)
         }
-        (None, Some(c)) => synthetic(ctx, t, c, standardise),
+        (None, Some(c)) => {
+            if group.is_some() {
+                return Err(ctx
+                    .err(&sub("group"), "`group` names a column of a design `file`")
+                    .with_hint("for a synthetic design, give clusters = J"));
+            }
+            synthetic(ctx, t, c, standardise)
+        }
         (None, None) => Err(ctx
             .err(
                 &[key("design")],
                 "[design] needs `file` or `columns` and `rows`",
             )
             .with_hint("file = \"covariates.csv\", or columns = 100, rows = 200")),
+    }?;
+    if let Some(j) = clusters {
+        if j > d.rows() {
+            return Err(ctx.err(
+                &sub("clusters"),
+                format!("clusters = {j} exceeds the {} rows of the design", d.rows()),
+            ));
+        }
+        d.clusters = Some(Clusters::equal(d.rows(), j));
     }
+    Ok(d)
 }
 
 fn synthetic(ctx: &Ctx, t: &toml::Table, c: &toml::Value, standardise: bool) -> Result<Design> {
@@ -308,6 +393,12 @@ pub fn synthetic_rows(n: usize, p: usize, corr: Correlation, seed: u64) -> Vec<f
 
 /// Read a CSV design: header row, numeric cells only.
 pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
+    read_csv_grouped(path, standardise, None)
+}
+
+/// Read a CSV design whose column `group` (when given) holds each row's cluster
+/// label (any text) rather than a covariate.
+pub fn read_csv_grouped(path: &Path, standardise: bool, group: Option<&str>) -> Result<Design> {
     let loc = |line: Option<usize>, col: Option<&str>| Location {
         file: Some(path.to_path_buf()),
         line,
@@ -345,8 +436,21 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
             ));
         }
     }
+    let gcol = match group {
+        Some(g) => Some(names.iter().position(|n| n == g).ok_or_else(|| {
+            let refs: Vec<&str> = names.iter().map(String::as_str).collect();
+            Error::input(
+                loc(Some(1), Some(g)),
+                format!("[design] group = \"{g}\" is not a column of the file"),
+            )
+            .with_hint(choice_hint(g, &refs))
+        })?),
+        None => None,
+    };
     let p = names.len();
     let mut data = Vec::new();
+    let mut labels: Vec<String> = Vec::new();
+    let mut sizes: Vec<usize> = Vec::new();
     let mut rows = 0usize;
     for rec in rdr.records() {
         let rec = rec.map_err(|e| {
@@ -369,6 +473,16 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
                     format!("row {rows}, column `{name}`: missing value"),
                 )
                 .with_hint("every cell of the design must hold a number"));
+            }
+            if Some(j) == gcol {
+                match labels.iter().position(|l| l == cell) {
+                    Some(k) => sizes[k] += 1,
+                    None => {
+                        labels.push(cell.to_string());
+                        sizes.push(1);
+                    }
+                }
+                continue;
             }
             let x: f64 = cell
                 .parse()
@@ -403,6 +517,30 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
             format!("the design has {rows} data rows; at least 2 are needed"),
         ));
     }
+    let mut names = names;
+    if let Some(g) = gcol {
+        let gname = names.remove(g);
+        if sizes.len() < 2 {
+            return Err(Error::input(
+                loc(None, Some(&gname)),
+                format!(
+                    "group column `{gname}` holds {} distinct label(s); a multilevel model needs at least 2 clusters",
+                    sizes.len()
+                ),
+            ));
+        }
+        if names.is_empty() {
+            return Err(Error::input(
+                loc(Some(1), None),
+                format!("the design has no covariate besides the group column `{gname}`"),
+            ));
+        }
+    }
+    let p = names.len();
+    let clusters = gcol.map(|_| Clusters {
+        name: group.unwrap_or("cluster").to_string(),
+        sizes,
+    });
     Design::from_rows(
         format!("{} ({rows} rows × {p} columns)", path.display()),
         names,
@@ -410,6 +548,10 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
         &data,
         standardise,
     )
+    .map(|mut d| {
+        d.clusters = clusters;
+        d
+    })
     .map_err(|m| {
         // Name the column (the message holds its name between backticks).
         let col = m.split('`').nth(1).map(str::to_string);

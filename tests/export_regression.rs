@@ -623,11 +623,18 @@ fn parse_brms(code: &str) -> Program {
                 .iter()
                 .map(|s| num(s))
                 .collect();
-            let (name, size, lo) = match class.as_str() {
-                "Intercept" => ("intercept", 1, None),
-                "sigma" => ("sigma", 1, Some(0.0)),
-                "b" => ("beta", P, None),
-                other => panic!("class {other}"),
+            // A single coefficient's prior (brms: coef-level priors override the
+            // class-level one for that coefficient).
+            let coef = args
+                .iter()
+                .find_map(|a| a.strip_prefix("coef = "))
+                .map(|c| format!("b_{}", c.trim_matches('"')));
+            let (name, size, lo) = match (class.as_str(), &coef) {
+                ("b", Some(c)) => (c.as_str(), 1, None),
+                ("Intercept", _) => ("intercept", 1, None),
+                ("sigma", _) => ("sigma", 1, Some(0.0)),
+                ("b", None) => ("beta", P, None),
+                (other, _) => panic!("class {other}"),
             };
             let v = prog.var(name);
             v.size = size;
@@ -691,7 +698,25 @@ fn simulate(prog: &Program, standardise: bool, seed: u64) -> [Vec<f64>; 3] {
             let x = eval(e, &env);
             env.insert(name.clone(), x);
         }
-        let beta = &env["beta"];
+        // A covariate-specific prior on x1 (`b_x1`, per unit of x1 as given) is
+        // stated apart from the shared vector: per stored unit it is b_x1 · sd(x1)
+        // on a standardised design. Stan and PyMC leave x1 out of `beta`; brms's
+        // class-level prior still names every coefficient, x1's overridden.
+        let full: Vec<f64> = match env.get("b_x1") {
+            Some(b1) => {
+                let shared = &env["beta"];
+                let rest = if shared.len() == P {
+                    &shared[1..]
+                } else {
+                    &shared[..]
+                };
+                let mut v = vec![b1[0] * if standardise { sd_x1() } else { 1.0 }];
+                v.extend_from_slice(rest);
+                v
+            }
+            None => env["beta"].clone(),
+        };
+        let beta = &full;
         assert_eq!(beta.len(), P, "beta has P elements");
         let alpha = env["intercept"][0];
         let sigma = env["sigma"][0];
@@ -705,6 +730,14 @@ fn simulate(prog: &Program, standardise: bool, seed: u64) -> [Vec<f64>; 3] {
         out[2].push(v / (v + sigma * sigma));
     }
     out
+}
+
+/// The 1/n sd of design column x1.
+fn sd_x1() -> f64 {
+    let d = design();
+    let n = ROWS as f64;
+    let m = d.iter().map(|r| r[0]).sum::<f64>() / n;
+    (d.iter().map(|r| (r[0] - m).powi(2)).sum::<f64>() / n).sqrt()
 }
 
 /// The two-sample check described in the module header, on the empirical CDFs at
@@ -853,4 +886,28 @@ fn a_slip_in_the_slab_fails_the_round_trip() {
     assert_ne!(bad, code);
     let sims = simulate(&parse_pymc(&bad), false, 10);
     assert!(compare(&sims, &ours, "slip").is_err());
+}
+
+#[test]
+fn covariate_specific_prior_round_trips_in_every_language() {
+    // x1 takes its own prior per unit as given, on a standardised design; the
+    // mean response at x1 = 1.5 and the design-level quantities carry it. Without
+    // the factor sd(x1) above, the Stan check fails at q_0.1 (F_code 0.054 vs
+    // 0.100, 4 SE = 0.017): the round trip sees the unit.
+    let own = "family = \"normal\"\nscale = { fit = [0.01, 3.0] }\n[prior.x1]\nfamily = \"normal\"\nmean = 0.8\nsd = 0.2";
+    round_trip(
+        "own prior on x1",
+        &spec(HN_SIGMA, own, true),
+        true,
+        &["stan", "pymc", "brms"],
+        8,
+    );
+    let own_t = "family = \"normal\"\nscale = { fit = [0.01, 3.0] }\n[prior.x1]\nfamily = \"student-t\"\ndf = 4\nlocation = -0.5\nscale = 0.3";
+    round_trip(
+        "own student-t prior on x1",
+        &spec(IG_SIGMA, own_t, false),
+        false,
+        &["stan", "pymc"],
+        9,
+    );
 }

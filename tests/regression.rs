@@ -126,6 +126,12 @@ distribution = { family = "beta", alpha = 40, beta = 160 }
     assert!(o.status.success(), "{}", text(&o));
     let s = text(&o);
     assert!(s.contains("not met") && s.contains("too wide"), "{s}");
+    // Named before fitting, with the remedy.
+    assert!(
+        s.contains("warning: r2: the belief is too narrow for a half-Cauchy global scale")
+            && s.contains("family = \"r2d2\""),
+        "{s}"
+    );
     let j = fit_json(dir.path(), "out");
     assert_eq!(j["verdict"], "not_met");
     assert_eq!(j["beliefs"][0]["verdict"], "not_met");

@@ -377,6 +377,13 @@ fn load(a: &SpecArgs) -> Result<Spec> {
     Ok(spec::load(&a.spec, &a.overrides())?)
 }
 
+/// Beliefs the template cannot meet, named before fitting (stderr, even when quiet).
+fn print_warnings(spec: &Spec) {
+    for w in &spec.warnings {
+        eprintln!("warning: {w}");
+    }
+}
+
 /// Print a fit's warnings (not met, undetermined) on standard error, unless
 /// quiet; under `--require-met` a not-met fit becomes exit 6.
 pub fn escalate(what: &str, r: &fit::FitResult, quiet: bool, require_met: bool) -> Result<()> {
@@ -420,6 +427,7 @@ fn cmd_fit(
     require_met: bool,
 ) -> Result<()> {
     let mut spec = load(a)?;
+    print_warnings(&spec);
     if let Some(k) = replicates {
         if !(2..=100).contains(&k) {
             return Err(usage(format!(
@@ -490,6 +498,7 @@ fn write_spec_copy(a: &SpecArgs, out: &Path) -> Result<bool> {
 
 fn cmd_check(path: &Path, quiet: bool, ov: &Overrides) -> Result<()> {
     let spec = spec::load(path, ov)?;
+    print_warnings(&spec);
     if !quiet {
         println!(
             "{}: valid — template {}, {} hyperparameters ({} free), {} beliefs, {} draws, seed {}",

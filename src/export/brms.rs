@@ -78,6 +78,7 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                 // prior on another scale stays a non-linear parameter): no bounds.
                 let native = layout.class(&s.parameter).filter(|_| f.derived.is_none());
                 if let Some(c) = native {
+                    comments.retain(|c| !c.starts_with("nlpar "));
                     if let Some(note) = c.bounds_note {
                         if f.lower.is_some() || f.upper.is_some() {
                             comments.push(note.to_string());
@@ -86,6 +87,27 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                     calls.push((
                         comments,
                         format!("set_prior(\"{}\", class = \"{}\")", f.dist, c.class),
+                    ));
+                    continue;
+                }
+                // A single population-level coefficient (covariate-specific prior).
+                let coef = layout
+                    .coef_prefix
+                    .and_then(|p| s.parameter.strip_prefix(p))
+                    .filter(|_| f.derived.is_none());
+                if let Some(c) = coef {
+                    if f.lower.is_some() || f.upper.is_some() {
+                        return Err(super::unsupported(format!(
+                            "the prior of `{}` ({}) has bounds, and brms takes no bounds on a \
+                             single coefficient of class \"b\"; use a family on the real line, \
+                             or the Stan or PyMC export",
+                            s.parameter, s.family.name
+                        )));
+                    }
+                    comments.retain(|c| !c.starts_with("nlpar "));
+                    calls.push((
+                        comments,
+                        format!("set_prior(\"{}\", class = \"b\", coef = \"{c}\")", f.dist),
                     ));
                     continue;
                 }

@@ -115,6 +115,9 @@ pub struct Spec {
     pub precision: Option<Precision>,
     pub beliefs: Vec<Belief>,
     pub fit: FitOptions,
+    /// Beliefs the template cannot meet at any hyperparameters, with remedies
+    /// ([`Model::warnings`]); `check` and `fit` print them.
+    pub warnings: Vec<String>,
 }
 
 /// Precision mode's target and cap (see `fit::precision`).
@@ -662,6 +665,8 @@ pub fn from_table(
     // the base draws compute), once, before anything draws.
     let requests: Vec<&Request> = beliefs.iter().map(|b: &Belief| &b.request).collect();
     model.prepare(&requests)?;
+    let pairs: Vec<(&Request, &Target)> = beliefs.iter().map(|b| (&b.request, &b.target)).collect();
+    let warnings = model.warnings(&pairs);
     let model: Arc<dyn Model> = Arc::from(model);
 
     // Working memory, now that the model is prepared for the beliefs.
@@ -701,5 +706,6 @@ pub fn from_table(
         precision,
         beliefs,
         fit,
+        warnings,
     })
 }

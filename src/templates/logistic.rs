@@ -29,16 +29,7 @@ static QUANTITIES: [RegDef; 9] = [
     ),
     Q_EFF,
     q_mean(Support::Unit),
-    QuantityDef::new(
-        RegQuantity::EventProb,
-        QuantityInfo::new(
-            "event_prob",
-            "event probability at a profile, logistic(η)",
-            AT_PROFILE,
-        ),
-        At::Profile,
-        Support::Unit,
-    ),
+    Q_EVENT_PROB,
     QuantityDef::new(
         RegQuantity::Prevalence,
         QuantityInfo::new(
@@ -49,18 +40,35 @@ static QUANTITIES: [RegDef; 9] = [
         At::Design,
         Support::Unit,
     ),
-    QuantityDef::new(
-        RegQuantity::OddsRatio,
-        QuantityInfo::new(
-            "odds_ratio",
-            "odds ratio for a contrast, exp(δ·β)",
-            FOR_CONTRAST,
-        ),
-        At::Contrast,
-        Support::Positive,
-    ),
+    Q_ODDS_RATIO,
     Q_SIGNAL,
 ];
+
+pub const Q_EVENT_PROB: RegDef = QuantityDef::new(
+    RegQuantity::EventProb,
+    QuantityInfo::new(
+        "event_prob",
+        "event probability at a profile, logistic(η)",
+        AT_PROFILE,
+    ),
+    At::Profile,
+    Support::Unit,
+);
+
+pub const Q_ODDS_RATIO: RegDef = QuantityDef::new(
+    RegQuantity::OddsRatio,
+    QuantityInfo::new(
+        "odds_ratio",
+        "odds ratio for a contrast, exp(δ·β)",
+        FOR_CONTRAST,
+    ),
+    At::Contrast,
+    Support::Positive,
+);
+
+/// The quantity table, for the regression tests that build the model directly.
+#[cfg(test)]
+pub static QUANTITIES_FOR_TESTS: &[RegDef] = &QUANTITIES;
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "logistic",

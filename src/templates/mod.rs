@@ -19,9 +19,12 @@
 //! [`TEMPLATES`] (DEVELOPERS.md, "Add a model template").
 
 pub mod linear;
+pub mod linear_multilevel;
 pub mod logistic;
+pub mod logistic_multilevel;
 pub mod mixture_cure;
 pub mod poisson;
+pub mod poisson_multilevel;
 pub mod priors;
 pub mod quantity;
 pub mod regression;
@@ -129,6 +132,9 @@ pub struct BrmsLayout {
     /// Parameters that are brms classes of their own; every other scalar
     /// parameter is a non-linear parameter (class "b", `nlpar`).
     pub classes: &'static [BrmsClass],
+    /// Scalar parameters named `<prefix><column>` are single population-level
+    /// coefficients: `set_prior(…, class = "b", coef = "<column>")`.
+    pub coef_prefix: Option<&'static str>,
 }
 
 /// A parameter that brms knows as a class of its own.
@@ -149,6 +155,7 @@ impl BrmsLayout {
             "change class / nlpar to match your model. Pass `prior = priors` to brm().",
         ],
         classes: &[],
+        coef_prefix: None,
     };
 
     /// The class of `parameter`, when brms has one for it.
@@ -211,6 +218,13 @@ pub trait Model: Send + Sync {
     fn prepare(&mut self, _requests: &[&Request]) -> Result<()> {
         Ok(())
     }
+    /// Beliefs the template cannot meet at any hyperparameters, each named with
+    /// its remedy (e.g. a non-null median under a prior symmetric about zero).
+    /// Called once the model is prepared; `spec` keeps the messages and `check`
+    /// and `fit` print them before fitting. Default: none.
+    fn warnings(&self, _beliefs: &[(&Request, &crate::target::Target)]) -> Vec<String> {
+        Vec::new()
+    }
     /// Base variates for `n` draws from the streams (and points) of `plan`.
     fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws;
     /// Draws of each requested quantity at hyperparameters `h` (full vector).
@@ -241,6 +255,9 @@ pub static TEMPLATES: &[&TemplateInfo] = &[
     &linear::INFO,
     &logistic::INFO,
     &poisson::INFO,
+    &linear_multilevel::INFO,
+    &logistic_multilevel::INFO,
+    &poisson_multilevel::INFO,
 ];
 
 pub fn find(name: &str) -> Option<&'static TemplateInfo> {

@@ -19,28 +19,32 @@ static QUANTITIES: [RegDef; 7] = [
     Q_R2_MARGINAL,
     Q_EFF,
     q_mean(Support::Positive),
-    QuantityDef::new(
-        RegQuantity::Rate,
-        QuantityInfo::new(
-            "rate",
-            "rate per unit exposure at a profile, exp(η)",
-            AT_PROFILE,
-        ),
-        At::Profile,
-        Support::Positive,
-    ),
-    QuantityDef::new(
-        RegQuantity::RateRatio,
-        QuantityInfo::new(
-            "rate_ratio",
-            "rate ratio for a contrast, exp(δ·β)",
-            FOR_CONTRAST,
-        ),
-        At::Contrast,
-        Support::Positive,
-    ),
+    Q_RATE,
+    Q_RATE_RATIO,
     Q_SIGNAL,
 ];
+
+pub const Q_RATE: RegDef = QuantityDef::new(
+    RegQuantity::Rate,
+    QuantityInfo::new(
+        "rate",
+        "rate per unit exposure at a profile, exp(η)",
+        AT_PROFILE,
+    ),
+    At::Profile,
+    Support::Positive,
+);
+
+pub const Q_RATE_RATIO: RegDef = QuantityDef::new(
+    RegQuantity::RateRatio,
+    QuantityInfo::new(
+        "rate_ratio",
+        "rate ratio for a contrast, exp(δ·β)",
+        FOR_CONTRAST,
+    ),
+    At::Contrast,
+    Support::Positive,
+);
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "poisson",

@@ -41,10 +41,25 @@ impl PriorSet {
         allowed: &[&str],
         example: &str,
     ) -> Result<usize> {
-        let t = ctx.prior_table(param, example)?;
-        let path = [key("prior"), key(param)];
+        self.add_keyed(ctx, param, param, allowed, example, &[])
+    }
+
+    /// Read the table `[prior.<table>]` as the prior of parameter `param`
+    /// (hyperparameters `<param>.<name>`); `extra` lists keys the caller reads
+    /// itself (e.g. `covariates`).
+    pub fn add_keyed(
+        &mut self,
+        ctx: &Ctx,
+        table: &str,
+        param: &str,
+        allowed: &[&str],
+        example: &str,
+        extra: &[&str],
+    ) -> Result<usize> {
+        let t = ctx.prior_table(table, example)?;
+        let path = [key("prior"), key(table)];
         let fam_v = t.get("family").ok_or_else(|| {
-            ctx.err(&path, format!("[prior.{param}] needs `family`"))
+            ctx.err(&path, format!("[prior.{table}] needs `family`"))
                 .with_hint(format!("e.g. {example}"))
         })?;
         let mut fp = path.to_vec();
@@ -58,14 +73,24 @@ impl PriorSet {
         let family = dist::family(name)
             .filter(|_| choices.contains(&name))
             .ok_or_else(|| {
+                // Why a known family is refused: where it puts its mass.
+                let why = match dist::family(name) {
+                    Some(f) => format!(
+                        " (its support is {}, and {param} takes values on {})",
+                        support_words(f.support),
+                        reach_words(&choices)
+                    ),
+                    None => String::new(),
+                };
                 ctx.err(
                     &fp,
-                    format!("family \"{name}\" is not available for {param}"),
+                    format!("family \"{name}\" is not available for {param}{why}"),
                 )
                 .with_hint(choice_hint(name, &choices))
             })?;
         let mut keys = vec!["family"];
         keys.extend_from_slice(family.params);
+        keys.extend_from_slice(extra);
         ctx.check_keys(&path, t, &keys)?;
         let mut idx = Vec::new();
         let mut values = Vec::new();
@@ -73,7 +98,7 @@ impl PriorSet {
             let mut pp = path.to_vec();
             pp.push(key(p));
             let v = t.get(*p).ok_or_else(|| {
-                ctx.err(&path, format!("[prior.{param}] ({name}) needs `{p}`"))
+                ctx.err(&path, format!("[prior.{table}] ({name}) needs `{p}`"))
                     .with_hint(format!(
                         "{name} takes {}; each is a number or {{ fit = [lower, upper] }}",
                         family.params.join(", ")
@@ -120,14 +145,34 @@ impl PriorSet {
         Ok(self.priors.len() - 1)
     }
 
+    /// A further prior of parameter `param` sharing the hyperparameters of prior
+    /// `k` (independent draws, the same family and values: e.g. each covariate of
+    /// a list that takes one prior).
+    pub fn share(&mut self, k: usize, param: &str) -> usize {
+        let mut p = self.priors[k].clone();
+        p.param = param.to_string();
+        self.priors.push(p);
+        self.priors.len() - 1
+    }
+
     /// One base column per prior, of the family's base kind.
     pub fn draw_base(&self, n: usize, plan: &rng::Plan) -> Vec<Vec<f64>> {
+        self.draw_base_on(n, plan, |k| k as u64)
+    }
+
+    /// As [`PriorSet::draw_base`], prior k on stream `stream(k)` of the plan.
+    pub fn draw_base_on(
+        &self,
+        n: usize,
+        plan: &rng::Plan,
+        stream: impl Fn(usize) -> u64,
+    ) -> Vec<Vec<f64>> {
         self.priors
             .iter()
             .enumerate()
             .map(|(k, p)| match p.family.base {
-                Base::Normal => plan.normals(k as u64, n),
-                Base::Uniform => plan.uniforms(k as u64, n),
+                Base::Normal => plan.normals(stream(k), n),
+                Base::Uniform => plan.uniforms(stream(k), n),
             })
             .collect()
     }
@@ -191,6 +236,40 @@ impl PriorSet {
             0.0
         }
     }
+}
+
+/// The families whose support lies inside `support` (the support-based rule: a
+/// parameter on (0, ∞) takes every family on (0, ∞) or a part of it, a real
+/// parameter every family on the real line or an interval the prior sets).
+pub fn families_on(support: dist::Support) -> Vec<&'static str> {
+    use dist::Support::*;
+    dist::names_where(|f| match support {
+        Real => f.real_valued(),
+        Positive => f.support == Positive,
+        Unit => f.support == Unit,
+        Interval => f.support == Interval,
+    })
+}
+
+fn support_words(s: dist::Support) -> &'static str {
+    match s {
+        dist::Support::Real => "the real line",
+        dist::Support::Positive => "(0, ∞)",
+        dist::Support::Unit => "(0, 1)",
+        dist::Support::Interval => "an interval set by its bounds",
+    }
+}
+
+/// What the allowed families reach together, in words.
+fn reach_words(choices: &[&str]) -> String {
+    let mut s: Vec<&str> = choices
+        .iter()
+        .filter_map(|c| dist::family(c))
+        .map(|f| support_words(f.support))
+        .collect();
+    s.sort_unstable();
+    s.dedup();
+    s.join(" or ")
 }
 
 fn path_with(path: &[Seg], k: &str) -> Vec<Seg> {

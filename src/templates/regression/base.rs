@@ -118,7 +118,11 @@ impl Regression {
     /// The base draws ([`crate::templates::Model::draw_base`]).
     pub(super) fn draw(&self, n: usize, plan: &rng::Plan) -> BaseDraws {
         let (seed, block) = (plan.seed, plan.block);
-        let mut cols = self.priors.draw_base(n, plan);
+        // Priors 0–7 on streams 0–7 as always; later ones (covariate-specific
+        // priors) after the three global streams, below the coefficient streams.
+        let mut cols =
+            self.priors
+                .draw_base_on(n, plan, |k| if k < 8 { k as u64 } else { k as u64 + 3 });
         cols.push(plan.uniforms(coef::GLOBAL_STREAM, n));
         cols.push(plan.uniforms(coef::SLAB_STREAM, n));
         cols.push(plan.uniforms(coef::R2_STREAM, n));

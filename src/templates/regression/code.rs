@@ -75,6 +75,7 @@ pub static BRMS: BrmsLayout = BrmsLayout {
             bounds_note: None,
         },
     ],
+    coef_prefix: Some("b_"),
 };
 
 fn section(code: &mut Code, lang: &str, sec: &str, lines: Vec<String>) {
@@ -86,6 +87,11 @@ fn section(code: &mut Code, lang: &str, sec: &str, lines: Vec<String>) {
 fn refuse(code: &mut Code, lang: &str, why: String) {
     section(code, lang, "unsupported", vec![why]);
 }
+
+/// Why brms cannot take a horseshoe or R2D2 with covariate-specific priors.
+const OWN_SPECIAL: &str = "brms's horseshoe() and R2D2() apply to the whole class \"b\" and brms \
+    allows no prior on a single coefficient beside them, while here some covariates have priors of \
+    their own; use the Stan or PyMC export";
 
 /// Code for `sigma` under an inverse-gamma(shape, scale) prior on σ².
 pub fn sigma_variance(shape: f64, scale: f64) -> Code {
@@ -134,22 +140,120 @@ pub fn sigma_variance(shape: f64, scale: f64) -> Code {
     code
 }
 
+/// The multilevel templates in brms: the random intercept is `(1 | group)` and its
+/// sd brms's class "sd" (lower bound 0 built in).
+pub static BRMS_MULTILEVEL: BrmsLayout = BrmsLayout {
+    usage: &[
+        "For brm(y ~ <the design's columns, in design order> + (1 | <grouping factor>), family = <the template's>):",
+        "brms centres the predictors, as priorsmith did; pass `prior = priors` to brm().",
+    ],
+    classes: &[
+        BrmsClass {
+            parameter: "intercept",
+            class: "Intercept",
+            bounds_note: Some(
+                "brms gives class Intercept no bounds: start the sampler inside them",
+            ),
+        },
+        BrmsClass {
+            parameter: "sigma",
+            class: "sigma",
+            bounds_note: None,
+        },
+        BrmsClass {
+            parameter: "cluster_sd",
+            class: "sd",
+            bounds_note: None,
+        },
+    ],
+    coef_prefix: Some("b_"),
+};
+
+/// Code for the clusters' random intercepts u_j = σ_u·z_j, z_j ~ N(0, 1)
+/// (non-centred), J clusters; σ_u is the scalar prior `cluster_sd`. brms states
+/// them in the formula, `(1 | group)`, with nothing to add to the priors.
+pub fn cluster_effects(cl: &crate::design::Clusters) -> crate::templates::PriorStatement {
+    let j = cl.count();
+    let g = &cl.name;
+    let mut code = BTreeMap::new();
+    section(
+        &mut code,
+        "stan",
+        "parameters",
+        vec![format!(
+            "vector[{j}] u_z;  // standardised random intercepts, one per {g}"
+        )],
+    );
+    section(
+        &mut code,
+        "stan",
+        "transformed_parameters",
+        vec![format!(
+            "vector[{j}] u = cluster_sd * u_z;  // random intercepts u_j ~ N(0, cluster_sd²); add u[{g}[i]] to row i's linear predictor"
+        )],
+    );
+    section(
+        &mut code,
+        "stan",
+        "model",
+        vec!["u_z ~ std_normal();".into()],
+    );
+    section(
+        &mut code,
+        "pymc",
+        "model",
+        vec![
+            format!("u_z = pm.Normal(\"u_z\", mu=0, sigma=1, shape={j})  # one per {g}"),
+            format!("u = pm.Deterministic(\"u\", cluster_sd * u_z)  # add u[{g}_idx] to the linear predictor"),
+        ],
+    );
+    section(
+        &mut code,
+        "brms",
+        "priors",
+        vec![format!(
+            "# the random intercepts are the formula term (1 | {g}); their sd is class \"sd\" above"
+        )],
+    );
+    crate::templates::PriorStatement {
+        parameter: "cluster_effects".into(),
+        family: String::new(),
+        params: Vec::new(),
+        about: format!("random intercepts of the {j} clusters ({g})"),
+        code: Some(code),
+    }
+}
+
 /// Code for the coefficient vector at hyperparameters `h`.
 pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: f64) -> Code {
-    let p = d.cols();
+    // Columns with covariate-specific priors are not in the shared vector.
+    let shared: Vec<usize> = (0..d.cols())
+        .filter(|j| !c.skip.get(*j).copied().unwrap_or(false))
+        .collect();
+    let own = shared.len() < d.cols();
+    let p = shared.len();
     let x = |j: usize| h[c.idx[j]];
     let unit = if d.standardised {
         "standardised"
     } else {
         "centred"
     };
-    let cols = match d.names.len() {
+    let cols = match p {
         0 => String::new(),
-        1 => format!(", column {}", d.names[0]),
-        _ => format!(", columns {} … {}", d.names[0], d.names[p - 1]),
+        1 => format!(", column {}", d.names[shared[0]]),
+        _ => format!(
+            ", columns {} … {}",
+            d.names[shared[0]],
+            d.names[shared[p - 1]]
+        ),
+    };
+    let without = if own {
+        ", without the covariates that have priors of their own"
+    } else {
+        ""
     };
     let about = format!(
-        "{p} coefficients per unit of the {unit} design priorsmith fitted on (in design order{cols})"
+        "{p} coefficients per unit of the {unit} design priorsmith fitted on (in design order{cols}{without})"
     );
     let mut code = BTreeMap::new();
     let stan_decl = format!("vector[{p}] beta;  // {about}");
@@ -249,7 +353,9 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
             py.push(format!(
                 "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt(beta_c2 * beta_lambda**2 / (beta_c2 + {t}**2 * beta_lambda**2)) * {t})"
             ));
-            if c.global_fixed {
+            if own {
+                Err(OWN_SPECIAL.into())
+            } else if c.global_fixed {
                 Err(
                     "brms's horseshoe() always puts a Student-t prior on the global scale; \
                      this one is fixed (global = \"fixed\"); use the Stan export"
@@ -270,11 +376,11 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
         }
         Kind::R2d2 => {
             let (a, b, conc) = (num(x(0)), num(x(1)), num(c.shape));
-            let inv_sd: Vec<String> = d
-                .var
+            let inv_sd: Vec<String> = shared
                 .iter()
+                .map(|j| d.var[*j])
                 .map(|v| {
-                    if *v > 0.0 {
+                    if v > 0.0 {
                         num(1.0 / v.sqrt())
                     } else {
                         "0".into()
@@ -321,7 +427,9 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
                 "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt({rho_py} * beta_r2 / (1 - beta_r2) * beta_phi) * [{inv_sd}])"
             ));
             let unit_var = d.var.iter().all(|v| (v - 1.0).abs() < 1e-9);
-            if link != Link::Identity {
+            if own {
+                Err(OWN_SPECIAL.into())
+            } else if link != Link::Identity {
                 Err(
                     "brms's R2D2() scales by sigma (or by 1 without one), while priorsmith's \
                      scales by the reference residual variance of the logit / log link, which \

@@ -144,6 +144,10 @@ pub struct CoefPrior {
     pub shape: f64,
     /// Whether ω = g·w with w free of every hyperparameter (see module docs).
     pub cached: bool,
+    /// Columns that left the shared prior for a covariate-specific one (by
+    /// column; empty when none did): their shared scale is 0, and R2D2's
+    /// Dirichlet splits the explained variance over the other columns only.
+    pub skip: Vec<bool>,
 }
 
 fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
@@ -254,6 +258,7 @@ pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
         names,
         shape,
         cached,
+        skip: Vec::new(),
     })
 }
 
@@ -324,9 +329,11 @@ impl CoefPrior {
             }
             Kind::R2d2 => {
                 let mut s = 0.0;
-                for x in loc.iter_mut() {
+                for (j, x) in loc.iter_mut().enumerate() {
                     *x = gamma_variate(self.shape, &mut r);
-                    s += *x;
+                    if !self.skip.get(j).copied().unwrap_or(false) {
+                        s += *x;
+                    }
                 }
                 for (x, v) in loc.iter_mut().zip(&d.var) {
                     *x = if *v > 0.0 { (*x / s / v).sqrt() } else { 0.0 };
@@ -336,6 +343,17 @@ impl CoefPrior {
                 for x in loc.iter_mut() {
                     *x = rng::open01(&mut r);
                 }
+            }
+        }
+        // Columns with a prior of their own take no part in the shared one: a
+        // zero local scale (for spike-and-slab, a uniform never below π).
+        for (x, s) in loc.iter_mut().zip(&self.skip) {
+            if *s {
+                *x = if self.kind == Kind::SpikeSlab {
+                    f64::INFINITY
+                } else {
+                    0.0
+                };
             }
         }
     }

@@ -43,13 +43,18 @@ mod base;
 pub mod code;
 pub mod coef;
 mod link;
+pub mod multilevel;
+pub mod own;
 mod profile;
 pub mod quantity;
+mod reach;
 mod request;
 mod simulate;
 pub mod table;
 #[cfg(test)]
 mod tests;
+#[cfg(test)]
+mod tests_multilevel;
 
 use super::{
     BaseDraws, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request, TemplateInfo,
@@ -73,6 +78,12 @@ pub struct Regression {
     intercept: usize,
     sigma: Option<(usize, bool)>,
     pub coef: CoefPrior,
+    /// Covariates with priors of their own ([`own`]).
+    pub own: Vec<own::Own>,
+    /// Design covariance of the own columns, k × k.
+    own_cov: Vec<f64>,
+    /// The prior index of the random-intercept sd (multilevel templates).
+    cluster: Option<usize>,
     /// The template's quantity table.
     quantities: &'static [QuantityDef<RegQuantity>],
     /// What the beliefs need ([`Model::prepare`]); nothing before it.
@@ -88,6 +99,29 @@ pub fn build(
     link: Link,
     quantities: &'static [RegDef],
 ) -> Result<Box<dyn Model>> {
+    build_with(ctx, info, link, quantities, false)
+}
+
+/// Build a regression template, with a random intercept per cluster when
+/// `multilevel` ([`multilevel`]).
+pub fn build_with(
+    ctx: &Ctx,
+    info: &'static TemplateInfo,
+    link: Link,
+    quantities: &'static [RegDef],
+    multilevel: bool,
+) -> Result<Box<dyn Model>> {
+    Ok(Box::new(make(ctx, info, link, quantities, multilevel)?))
+}
+
+/// The model [`build_with`] boxes.
+pub(super) fn make(
+    ctx: &Ctx,
+    info: &'static TemplateInfo,
+    link: Link,
+    quantities: &'static [RegDef],
+    multilevel: bool,
+) -> Result<Regression> {
     let m = ctx.model();
     let keys: Vec<&str> = info.options.iter().map(|o| o.0).collect();
     ctx.check_keys(&[key("model")], m, &keys)?;
@@ -96,6 +130,7 @@ pub fn build(
         None => 1.0,
     };
     let design = crate::design::from_ctx(ctx)?;
+    multilevel::check_clusters(ctx, info, &design, multilevel)?;
     let mut priors = PriorSet::default();
     let intercept = priors.add(
         ctx,
@@ -107,7 +142,7 @@ pub fn build(
         let s = priors.add(
             ctx,
             "sigma",
-            &crate::dist::names_where(|f| f.suits(crate::dist::Role::NoiseSd)),
+            &super::priors::families_on(crate::dist::Support::Positive),
             "family = \"half-normal\"\n  scale = 1.0",
         )?;
         Some((s, priors.priors[s].family.name == "inverse-gamma"))
@@ -123,8 +158,25 @@ pub fn build(
         }
         None
     };
-    let coef = coef::parse(ctx, &mut priors.hypers)?;
-    Ok(Box::new(Regression {
+    let cluster = if multilevel {
+        Some(priors.add(
+            ctx,
+            "cluster_sd",
+            &super::priors::families_on(crate::dist::Support::Positive),
+            "family = \"half-normal\"\n  scale = { fit = [0.05, 3.0] }",
+        )?)
+    } else {
+        None
+    };
+    let own = own::parse(ctx, &design, &mut priors)?;
+    let mut coef = coef::parse(ctx, &mut priors.hypers)?;
+    if !own.is_empty() {
+        coef.skip = (0..design.cols())
+            .map(|j| own.iter().any(|o| o.col == j))
+            .collect();
+    }
+    let own_cov = own::own_cov(&design, &own);
+    Ok(Regression {
         info,
         link,
         design,
@@ -133,10 +185,13 @@ pub fn build(
         intercept,
         sigma,
         coef,
+        own,
+        own_cov,
+        cluster,
         quantities,
         needs: Needs::default(),
         tables: base::TableCache::default(),
-    }))
+    })
 }
 
 impl Model for Regression {
@@ -155,6 +210,10 @@ impl Model for Regression {
     fn prepare(&mut self, requests: &[&Request]) -> Result<()> {
         self.needs = Needs::of(requests, self)?;
         Ok(())
+    }
+
+    fn warnings(&self, beliefs: &[(&Request, &crate::target::Target)]) -> Vec<String> {
+        self.reach(beliefs)
     }
 
     fn draw_base(&self, n: usize, plan: &rng::Plan) -> BaseDraws {
@@ -178,7 +237,15 @@ impl Model for Regression {
     fn priors(&self, h: &[f64]) -> Vec<PriorStatement> {
         let sig_var = matches!(self.sigma, Some((_, true)));
         let mut v = self.priors.statements(h, |p| match p {
+            "intercept" if self.cluster.is_some() => {
+                "linear predictor at the design mean in a typical cluster (u = 0)".to_string()
+            }
             "intercept" => "linear predictor at the design mean".to_string(),
+            "cluster_sd" => "sd σ_u of the clusters' random intercepts u_j ~ N(0, σ_u²) (linear-predictor scale)".to_string(),
+            other if other.starts_with("b_") => format!(
+                "coefficient of `{}` per unit as given in the design file (not standardised)",
+                &other[2..]
+            ),
             "sigma" if sig_var => "noise variance σ² (inverse-gamma on the variance)".to_string(),
             "sigma" => "noise sd σ".to_string(),
             other => other.to_string(),
@@ -196,12 +263,20 @@ impl Model for Regression {
         }
         let c = &self.coef;
         let mut about = format!(
-            "each of the {} coefficients (per unit of the {} design)",
-            self.design.cols(),
+            "each of the {} coefficients (per unit of the {} design){}",
+            self.design.cols() - self.own.len(),
             if self.design.standardised {
                 "standardised"
             } else {
                 "centred"
+            },
+            if self.own.is_empty() {
+                String::new()
+            } else {
+                format!(
+                    "; {} covariate(s) with priors of their own are not in this vector",
+                    self.own.len()
+                )
             }
         );
         if matches!(c.kind, Kind::Horseshoe | Kind::RegHorseshoe) {
@@ -230,6 +305,9 @@ impl Model for Regression {
                 self.exposure,
             )),
         });
+        if let Some(cl) = &self.design.clusters {
+            v.push(code::cluster_effects(cl));
+        }
         v
     }
 

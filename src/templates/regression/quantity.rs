@@ -22,6 +22,12 @@ pub enum RegQuantity {
     OddsRatio,
     RateRatio,
     SignalSd,
+    /// Multilevel templates ([`super::multilevel`]).
+    Icc,
+    MedianRatio,
+    ClusterSpread,
+    R2Fixed,
+    R2Conditional,
 }
 
 impl RegQuantity {
@@ -32,7 +38,10 @@ impl RegQuantity {
 
     /// Needs the design quadratic form βᵀSβ.
     pub(super) fn needs_quadratic(self) -> bool {
-        matches!(self, Self::R2 | Self::R2Latent | Self::SignalSd)
+        matches!(
+            self,
+            Self::R2 | Self::R2Latent | Self::SignalSd | Self::R2Fixed | Self::R2Conditional
+        )
     }
 
     /// Needs the shrinkage terms κ_j.

@@ -33,6 +33,9 @@ pub(super) struct Needs {
     /// form by) and the forms, in the same order: first request first.
     pub(super) keys: Vec<Vec<Vec<f64>>>,
     pub(super) forms: Vec<Form>,
+    /// Index in `forms` of the first cross form c_k of the own covariates
+    /// (one per own covariate, when `q` is needed).
+    pub(super) cross: usize,
 }
 
 impl Needs {
@@ -50,6 +53,14 @@ impl Needs {
             needs.rows |= d.quantity.needs_rows(model.link);
             needs.q |= d.quantity.needs_quadratic();
             needs.eff |= d.quantity.needs_shrinkage();
+        }
+        // The cross terms of the design variance with covariate-specific priors:
+        // dense forms after the profiles' ([`super::own`]).
+        needs.cross = needs.forms.len();
+        if needs.q && !model.own.is_empty() {
+            needs
+                .forms
+                .extend(super::own::cross_forms(&model.design, &model.own));
         }
         Ok(needs)
     }
@@ -107,7 +118,9 @@ impl Regression {
                 format!("{quantity} takes no `contrast` (only odds_ratio and rate_ratio do)"),
             ));
         }
-        let mut label = quantity.to_string();
+        let mut label = super::multilevel::label(def.kind, self.link)
+            .unwrap_or(quantity)
+            .to_string();
         let (profiles, names, form) = match def.at {
             At::Profile => {
                 let name = raw

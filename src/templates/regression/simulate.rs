@@ -33,6 +33,11 @@ pub(super) struct Eval<'a> {
     /// Multiplier of the products per draw (the global scale, or 1).
     g: Vec<f64>,
     prod: Prod<'a>,
+    /// Draws of each covariate-specific coefficient, per unit of the stored
+    /// design (in the order of [`Regression::own`]).
+    own: Vec<Vec<f64>>,
+    /// Random-intercept variances σ_u² (multilevel templates; else empty).
+    su2: Vec<f64>,
 }
 
 impl Regression {
@@ -51,6 +56,15 @@ impl Regression {
             None => Vec::new(),
         };
         let alpha = std::mem::take(&mut par[self.intercept]);
+        let own: Vec<Vec<f64>> = self
+            .own
+            .iter()
+            .map(|o| par[o.prior].iter().map(|b| b * o.to_stored).collect())
+            .collect();
+        let su2: Vec<f64> = match self.cluster {
+            Some(c) => par[c].iter().map(|s| s * s).collect(),
+            None => Vec::new(),
+        };
         let rho: Vec<f64> = (0..n)
             .map(|i| self.ref_var(alpha[i], sigma2.get(i).copied().unwrap_or(0.0)))
             .collect();
@@ -77,6 +91,8 @@ impl Regression {
             rho,
             g,
             prod,
+            own,
+            su2,
         })
     }
 
@@ -193,6 +209,124 @@ impl Eval<'_> {
             RegQuantity::OddsRatio | RegQuantity::RateRatio => self.ratio(r, o)?,
             RegQuantity::Prevalence => self.prevalence(r, o)?,
             RegQuantity::SignalSd => self.signal_sd(o),
+            RegQuantity::Icc
+            | RegQuantity::MedianRatio
+            | RegQuantity::R2Fixed
+            | RegQuantity::R2Conditional => self.multilevel(q, o)?,
+            RegQuantity::ClusterSpread => self.cluster_spread(r, o)?,
+        }
+        Ok(())
+    }
+
+    /// The design variance of the linear predictor of draw i: the shared part
+    /// g²q plus the covariate-specific terms ([`super::own`]).
+    fn q_total(&self, i: usize) -> f64 {
+        let g = self.g[i];
+        let prod = self.prod();
+        let mut q = g * g * prod.q[i];
+        let k = self.own.len();
+        if k == 0 {
+            return q;
+        }
+        let cross = self.model.needs.cross;
+        for a in 0..k {
+            let ba = self.own[a][i];
+            if let Some(c) = prod.forms.get(cross + a) {
+                q += 2.0 * g * ba * c[i];
+            }
+            for b in 0..k {
+                q += ba * self.own[b][i] * self.model.own_cov[a * k + b];
+            }
+        }
+        q.max(0.0)
+    }
+
+    /// The linear predictor minus α at every design row of draw i, formed
+    /// explicitly (tests compare its variance with [`Eval::q_total`]).
+    #[cfg(test)]
+    pub(super) fn eta_rows(&self, i: usize) -> Vec<f64> {
+        let nr = self.model.design.rows();
+        let rows = &self.prod().rows[i * nr..(i + 1) * nr];
+        rows.iter()
+            .enumerate()
+            .map(|(row, x)| self.g[i] * x + self.row_extra(i, row))
+            .collect()
+    }
+
+    #[cfg(test)]
+    pub(super) fn q_total_of(&self, i: usize) -> f64 {
+        self.q_total(i)
+    }
+
+    /// The covariate-specific part of a linear form aᵀβ for draw i.
+    fn own_part(&self, r: &Request, i: usize) -> Result<f64> {
+        if self.own.is_empty() {
+            return Ok(0.0);
+        }
+        let d = r.detail.get::<RegDetail>()?;
+        let mut s = 0.0;
+        if let Some(form) = &d.form {
+            for (j, a) in form {
+                if let Some(k) = self.model.own.iter().position(|o| o.col == *j) {
+                    s += a * self.own[k][i];
+                }
+            }
+        }
+        Ok(s)
+    }
+
+    /// The linear predictor minus α at design row `row` of draw i: the shared
+    /// part from the rows plus the covariate-specific columns.
+    fn row_extra(&self, i: usize, row: usize) -> f64 {
+        let xc = &self.model.design.xc;
+        self.model
+            .own
+            .iter()
+            .zip(&self.own)
+            .map(|(o, b)| xc[(row, o.col)] * b[i])
+            .sum()
+    }
+
+    /// ICC, median odds / rate ratio and the two multilevel R²
+    /// ([`super::multilevel`]).
+    fn multilevel(&self, q: RegQuantity, o: &mut [f64]) -> Result<()> {
+        use super::multilevel::{median_ratio, obs_var};
+        if self.su2.len() != self.n {
+            return Err(Error::Numeric(
+                "a multilevel quantity asked of a template without clusters".into(),
+            ));
+        }
+        let m = self.model;
+        for (i, v) in o.iter_mut().enumerate() {
+            let su2 = self.su2[i];
+            let d = obs_var(m.link, self.alpha[i], self.s2(i), su2, m.exposure);
+            *v = match q {
+                RegQuantity::Icc => ratio(su2, d),
+                RegQuantity::MedianRatio => median_ratio(su2.sqrt()),
+                RegQuantity::R2Fixed => ratio(self.q_total(i), su2 + d),
+                _ => {
+                    let f = self.q_total(i);
+                    ratio(f + su2, d)
+                }
+            };
+        }
+        Ok(())
+    }
+
+    /// The 5–95 % range over clusters of the response at a profile.
+    fn cluster_spread(&self, r: &Request, o: &mut [f64]) -> Result<()> {
+        use super::multilevel::{response, Z95};
+        if self.su2.len() != self.n {
+            return Err(Error::Numeric(
+                "cluster_spread asked of a template without clusters".into(),
+            ));
+        }
+        let f = self.form(r)?;
+        let link = self.model.link;
+        for (i, v) in o.iter_mut().enumerate() {
+            let eta = self.alpha[i] + self.g[i] * f[i] + self.own_part(r, i)?;
+            let h = Z95 * self.su2[i].sqrt();
+            *v = (response(link, eta + h) - response(link, eta - h)).max(0.0);
         }
         Ok(())
     }
@@ -238,7 +372,7 @@ impl Eval<'_> {
         let (g, m) = (&self.g, self.model);
         if m.link == super::Link::Identity {
             for (i, v) in o.iter_mut().enumerate() {
-                *v = ratio(g[i] * g[i] * self.prod().q[i], self.s2(i));
+                *v = ratio(self.q_total(i), self.s2(i));
             }
             return Ok(());
         }
@@ -247,23 +381,37 @@ impl Eval<'_> {
         for (i, v) in o.iter_mut().enumerate() {
             let x = &rw[i * nr..(i + 1) * nr];
             let a = self.alpha[i];
-            *v = m.r2_rows(x.iter().map(|x| a + g[i] * x), self.s2(i), nr);
+            *v = m.r2_rows(
+                x.iter()
+                    .enumerate()
+                    .map(|(row, x)| a + g[i] * x + self.row_extra(i, row)),
+                self.s2(i),
+                nr,
+            );
         }
         Ok(())
     }
 
     fn r2_marginal(&self, o: &mut [f64]) {
         let g = &self.g;
+        let var = &self.model.design.var;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = ratio(g[i] * g[i] * self.prod().v[i], self.rho[i]);
+            // Covariate-specific coefficients count with their drawn values.
+            let own: f64 = self
+                .model
+                .own
+                .iter()
+                .zip(&self.own)
+                .map(|(c, b)| var[c.col] * b[i] * b[i])
+                .sum();
+            *v = ratio(g[i] * g[i] * self.prod().v[i] + own, self.rho[i]);
         }
     }
 
     fn r2_latent(&self, o: &mut [f64]) {
-        let g = &self.g;
         let r3 = std::f64::consts::PI.powi(2) / 3.0;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = ratio(g[i] * g[i] * self.prod().q[i], r3);
+            *v = ratio(self.q_total(i), r3);
         }
     }
 
@@ -293,7 +441,7 @@ impl Eval<'_> {
     fn at_profile(&self, q: RegQuantity, r: &Request, o: &mut [f64]) -> Result<()> {
         let f = self.form(r)?;
         for (i, v) in o.iter_mut().enumerate() {
-            let eta = self.alpha[i] + self.g[i] * f[i];
+            let eta = self.alpha[i] + self.g[i] * f[i] + self.own_part(r, i)?;
             *v = match q {
                 RegQuantity::EventProb => logistic(eta),
                 RegQuantity::Rate => eta.exp(),
@@ -307,7 +455,7 @@ impl Eval<'_> {
     fn ratio(&self, r: &Request, o: &mut [f64]) -> Result<()> {
         let f = self.form(r)?;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = (self.g[i] * f[i]).exp();
+            *v = (self.g[i] * f[i] + self.own_part(r, i)?).exp();
         }
         Ok(())
     }
@@ -318,7 +466,12 @@ impl Eval<'_> {
         for (i, v) in o.iter_mut().enumerate() {
             let x = &rw[i * nr..(i + 1) * nr];
             let (a, g) = (self.alpha[i], self.g[i]);
-            *v = x.iter().map(|x| logistic(a + g * x)).sum::<f64>() / nr as f64;
+            *v = x
+                .iter()
+                .enumerate()
+                .map(|(row, x)| logistic(a + g * x + self.row_extra(i, row)))
+                .sum::<f64>()
+                / nr as f64;
         }
         Ok(())
     }
@@ -326,7 +479,11 @@ impl Eval<'_> {
     fn signal_sd(&self, o: &mut [f64]) {
         let g = &self.g;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = g[i].abs() * self.prod().q[i].sqrt();
+            *v = if self.own.is_empty() {
+                g[i].abs() * self.prod().q[i].sqrt()
+            } else {
+                self.q_total(i).sqrt()
+            };
         }
     }
 }

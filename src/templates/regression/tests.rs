@@ -11,13 +11,13 @@ use std::sync::Arc;
 
 /// W² upper 0.1 % point 1.168 (Stephens 1974, JASA 69, Table 1A) over the null
 /// mean 1/6: a CvM distance above 7.0 × the noise floor rejects P = T at 0.1 %.
-const CVM_999_OVER_MEAN: f64 = 1.168 * 6.0;
+pub(super) const CVM_999_OVER_MEAN: f64 = 1.168 * 6.0;
 
-fn spec(text: &str) -> Spec {
+pub(super) fn spec(text: &str) -> Spec {
     parse(text, None, &Overrides::default()).unwrap()
 }
 
-fn draws(s: &Spec, h: &[f64], n: usize) -> Vec<Vec<f64>> {
+pub(super) fn draws(s: &Spec, h: &[f64], n: usize) -> Vec<Vec<f64>> {
     let base = s
         .model
         .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
@@ -27,11 +27,11 @@ fn draws(s: &Spec, h: &[f64], n: usize) -> Vec<Vec<f64>> {
     out
 }
 
-fn h0(s: &Spec) -> Vec<f64> {
+pub(super) fn h0(s: &Spec) -> Vec<f64> {
     s.hypers().iter().map(Hyper::default_value).collect()
 }
 
-fn cvm_vs(d: Arc<dyn Continuous>, mut x: Vec<f64>) -> (f64, f64) {
+pub(super) fn cvm_vs(d: Arc<dyn Continuous>, mut x: Vec<f64>) -> (f64, f64) {
     let t = Target::new(Mixed::continuous(d));
     x.sort_by(f64::total_cmp);
     (
@@ -311,6 +311,7 @@ fn logistic_event_prob_is_logistic_of_linear_predictor() {
         names: vec!["scale"],
         shape: 0.0,
         cached: true,
+        skip: Vec::new(),
     };
     let des = crate::design::Design::from_rows(
         "t".into(),

@@ -1,0 +1,49 @@
+//! Gaussian linear regression with random intercepts: y_ij = α + u_j + (x_ij − x̄)ᵀβ + ε_ij, ε ~ N(0, σ²), with a random intercept u_j ~ N(0, σ_u²) per cluster
+//! (`[design]` `group` column or `clusters = J`), a prior on σ_u (`[prior.cluster_sd]`)
+//! fitted from beliefs about the intraclass correlation, the spread of
+//! cluster-level means and the marginal and conditional R², and a shrinkage prior on β.
+//! Machinery, formulas and references: [`super::regression`] and
+//! [`super::regression::multilevel`].
+
+use super::quantity::catalogue;
+use super::regression::multilevel::{q_spread, Q_ICC, Q_R2_COND, Q_R2_FIXED};
+use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
+use super::{Model, TemplateInfo};
+use crate::dist::Support;
+use crate::error::Result;
+use crate::input::Ctx;
+
+/// The quantity table (the catalogue lists it in this order).
+static QUANTITIES: [RegDef; 7] = [
+    Q_ICC,
+    q_spread(
+        "5–95 % range of cluster means at a profile, 2·1.645·σ_u",
+        Support::Positive,
+    ),
+    Q_R2_FIXED,
+    Q_R2_COND,
+    q_mean(Support::Real),
+    Q_SIGNAL,
+    Q_EFF,
+];
+
+pub static INFO: TemplateInfo = TemplateInfo {
+    name: "linear-multilevel",
+    about: "Gaussian linear regression with a random intercept per cluster and a shrinkage prior on the coefficients",
+    parameters: &[
+        ("intercept", "mean response at the design mean in a typical cluster (u = 0)"),
+        ("sigma", "residual sd within clusters (inverse-gamma: a prior on the variance σ²)"),
+        ("cluster_sd", "sd σ_u of the random intercepts (any family on (0, ∞): half-normal, half-student-t, half-cauchy, exponential, …)"),
+        ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
+        ("NAME", "a design column: a prior of its own for its coefficient, per unit as given (or [prior.LABEL] with covariates = [...])"),
+    ],
+    quantities: &catalogue(&QUANTITIES),
+    options: &[("template", "\"linear-multilevel\"")],
+    starter: include_str!("../../model-templates/linear-multilevel.toml"),
+    build,
+    brms: &regression::code::BRMS_MULTILEVEL,
+};
+
+fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
+    regression::build_with(ctx, &INFO, Link::Identity, &QUANTITIES, true)
+}

@@ -1,0 +1,52 @@
+//! Poisson (log-link) regression with random intercepts: E[y_ij] = exposure · exp(α + u_j + (x_ij − x̄)ᵀβ), with a random intercept u_j ~ N(0, σ_u²) per cluster
+//! (`[design]` `group` column or `clusters = J`), a prior on σ_u (`[prior.cluster_sd]`)
+//! fitted from beliefs about the intraclass correlation, the median rate ratio, the spread of
+//! cluster-level rates and the marginal and conditional R², and a shrinkage prior on β.
+//! Machinery, formulas and references: [`super::regression`] and
+//! [`super::regression::multilevel`].
+
+use super::poisson::{Q_RATE, Q_RATE_RATIO};
+use super::quantity::catalogue;
+use super::regression::multilevel::{q_spread, Q_ICC, Q_MRR, Q_R2_COND, Q_R2_FIXED};
+use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
+use super::{Model, TemplateInfo};
+use crate::dist::Support;
+use crate::error::Result;
+use crate::input::Ctx;
+
+/// The quantity table (the catalogue lists it in this order).
+static QUANTITIES: [RegDef; 10] = [
+    Q_ICC,
+    Q_MRR,
+    q_spread(
+        "5–95 % range of cluster rates (per unit exposure) at a profile",
+        Support::Positive,
+    ),
+    Q_R2_FIXED,
+    Q_R2_COND,
+    Q_RATE,
+    Q_RATE_RATIO,
+    q_mean(Support::Positive),
+    Q_SIGNAL,
+    Q_EFF,
+];
+
+pub static INFO: TemplateInfo = TemplateInfo {
+    name: "poisson-multilevel",
+    about: "Poisson (log-link) regression with a random intercept per cluster and a shrinkage prior on the coefficients",
+    parameters: &[
+        ("intercept", "log rate per unit exposure at the design mean in a typical cluster (u = 0)"),
+        ("cluster_sd", "sd σ_u of the random intercepts (any family on (0, ∞): half-normal, half-student-t, half-cauchy, exponential, …)"),
+        ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
+        ("NAME", "a design column: a prior of its own for its coefficient, per unit as given (or [prior.LABEL] with covariates = [...])"),
+    ],
+    quantities: &catalogue(&QUANTITIES),
+    options: &[("template", "\"poisson-multilevel\""), ("exposure", "exposure of every design row (offset log exposure; default 1)")],
+    starter: include_str!("../../model-templates/poisson-multilevel.toml"),
+    build,
+    brms: &regression::code::BRMS_MULTILEVEL,
+};
+
+fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
+    regression::build_with(ctx, &INFO, Link::Log, &QUANTITIES, true)
+}

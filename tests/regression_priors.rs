@@ -1,0 +1,308 @@
+//! Integration tests of covariate-specific priors, the multilevel templates and
+//! the warnings about beliefs a template cannot meet: the real binary on
+//! temporary files.
+
+mod common;
+
+use std::path::Path;
+use std::process::Output;
+
+fn run(args: &[&str], dir: &Path) -> Output {
+    common::bin().args(args).current_dir(dir).output().unwrap()
+}
+
+fn text(o: &Output) -> String {
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&o.stdout),
+        String::from_utf8_lossy(&o.stderr)
+    )
+}
+
+fn fit_json(dir: &Path, out: &str) -> serde_json::Value {
+    let s = std::fs::read_to_string(dir.join(out).join("fit.json")).unwrap();
+    serde_json::from_str(&s).unwrap()
+}
+
+/// 40 covariates under a regularised horseshoe; covariate x7 takes a prior of
+/// its own (invented scenario).
+const OWN_OR: &str = r#"
+title = "odds-ratio belief among 40 covariates (test)"
+[model]
+template = "logistic"
+[design]
+columns = 40
+rows = 400
+correlation = "exchangeable"
+rho = 0.2
+seed = 3
+standardise = true
+[simulation]
+draws = 8000
+seed = 5
+[prior.intercept]
+family = "normal"
+mean = -1.5
+sd = 0.3
+[prior.x7]
+family = "normal"
+mean = { fit = [-1.0, 1.0] }
+sd = { fit = [0.01, 1.0] }
+[prior.coefficients]
+family = "regularised-horseshoe"
+global_scale = { fit = [0.0001, 5.0] }
+slab_scale = { fit = [0.05, 5.0] }
+slab_df = 4
+[[belief]]
+quantity = "odds_ratio"
+contrast = "x7"
+distribution = { family = "lognormal", meanlog = 0.22314355, sdlog = 0.15 }
+[[belief]]
+quantity = "r2_latent"
+distribution = { family = "beta", alpha = 2, beta = 5 }
+"#;
+
+#[test]
+fn odds_ratio_belief_among_40_covariates_and_r2_belief_are_both_met() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("own.toml"), OWN_OR).unwrap();
+    let o = run(&["fit", "own.toml", "-o", "own", "-q"], dir.path());
+    assert!(o.status.success(), "{}", text(&o));
+    assert!(!text(&o).contains("warning"), "{}", text(&o));
+    let j = fit_json(dir.path(), "own");
+    assert_eq!(j["beliefs"][0]["verdict"], "met_within_noise", "{j:#}");
+    assert_eq!(j["beliefs"][1]["verdict"], "met_within_noise", "{j:#}");
+    // The fitted own prior is the belief itself: exp(b) ~ log-normal(ln 1.25,
+    // 0.15) exactly when b ~ N(ln 1.25, 0.15²); tolerance: 6 Monte Carlo SE
+    // (the record's), at least 0.005.
+    let h = &j["hyperparameters"];
+    for (k, want) in [("x7.mean", 0.223_143_55), ("x7.sd", 0.15)] {
+        let got = h[k].as_f64().unwrap();
+        let se = j["mc_error"][k].as_f64().unwrap_or(0.0);
+        assert!((got - want).abs() < (6.0 * se).max(0.005), "{k} = {got}");
+    }
+
+    // Without the covariate's own prior the same belief cannot be met: check
+    // says so before fitting, with the remedy, and the fit misses it.
+    let before = OWN_OR.replace(
+        "[prior.x7]\nfamily = \"normal\"\nmean = { fit = [-1.0, 1.0] }\nsd = { fit = [0.01, 1.0] }\n",
+        "",
+    );
+    std::fs::write(dir.path().join("shared.toml"), before).unwrap();
+    let o = run(&["check", "shared.toml"], dir.path());
+    assert!(o.status.success(), "{}", text(&o));
+    let err = String::from_utf8_lossy(&o.stderr).to_string();
+    assert!(
+        err.contains("warning: odds_ratio (x7 +1)")
+            && err.contains("symmetric about zero")
+            && err.contains("[prior.x7]"),
+        "{err}"
+    );
+    let o = run(&["fit", "shared.toml", "-o", "shared", "-q"], dir.path());
+    assert!(o.status.success(), "{}", text(&o));
+    assert!(text(&o).contains("warning: odds_ratio"), "{}", text(&o));
+    let j = fit_json(dir.path(), "shared");
+    assert_eq!(j["beliefs"][0]["verdict"], "not_met", "{j:#}");
+}
+
+#[test]
+fn multilevel_starters_fit_as_shipped_and_export() {
+    let dir = tempfile::tempdir().unwrap();
+    for t in [
+        "linear-multilevel",
+        "logistic-multilevel",
+        "poisson-multilevel",
+    ] {
+        let f = format!("{t}.toml");
+        let o = run(&["new", t, "-o", &f, "-q"], dir.path());
+        assert!(o.status.success(), "{}", text(&o));
+        let o = run(&["fit", &f, "-o", t, "-q"], dir.path());
+        assert!(o.status.success(), "{t}: {}", text(&o));
+        assert!(!text(&o).contains("warning"), "{t}: {}", text(&o));
+        let j = fit_json(dir.path(), t);
+        assert_eq!(j["template"], t);
+        for b in j["beliefs"].as_array().unwrap() {
+            let v = b["verdict"].as_str().unwrap();
+            assert!(
+                v == "met_within_noise" || v == "met_approximately",
+                "{t}: {} {v}",
+                b["label"]
+            );
+        }
+        // Stan and PyMC state the random intercepts; brms the sd as class "sd".
+        let out = dir.path().join(t);
+        let stan = run(
+            &["export", "--to", "stan", out.to_str().unwrap()],
+            dir.path(),
+        );
+        let s = text(&stan);
+        assert!(stan.status.success(), "{s}");
+        assert!(
+            s.contains("u = cluster_sd * u_z") && s.contains("cluster_sd ~ normal(0, "),
+            "{s}"
+        );
+        let pymc = run(
+            &["export", "--to", "pymc", out.to_str().unwrap()],
+            dir.path(),
+        );
+        assert!(
+            text(&pymc).contains("pm.HalfNormal(\"cluster_sd\""),
+            "{}",
+            text(&pymc)
+        );
+        let brms = run(
+            &["export", "--to", "brms", out.to_str().unwrap()],
+            dir.path(),
+        );
+        let b = text(&brms);
+        assert!(brms.status.success(), "{b}");
+        assert!(b.contains("class = \"sd\"") && b.contains("(1 | "), "{b}");
+        if t == "logistic-multilevel" {
+            assert!(b.contains("class = \"b\", coef = \"x1\""), "{b}");
+        }
+    }
+}
+
+#[test]
+fn group_column_of_a_csv_design_gives_the_clusters() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut csv = String::from("age,centre,dose\n");
+    for r in 0..60 {
+        csv.push_str(&format!(
+            "{},{},{}\n",
+            40 + (r * 7) % 30,
+            ["north", "south", "east", "west", "mid"][r % 5],
+            (r * 13) % 11
+        ));
+    }
+    std::fs::write(dir.path().join("x.csv"), csv).unwrap();
+    let spec = r#"
+title = "group column (test)"
+[model]
+template = "logistic-multilevel"
+[design]
+file = "x.csv"
+group = "centre"
+[simulation]
+draws = 1000
+[prior.intercept]
+family = "normal"
+mean = -1.0
+sd = 0.5
+[prior.cluster_sd]
+family = "half-cauchy"
+scale = { fit = [0.01, 2.0] }
+[prior.coefficients]
+family = "normal"
+scale = 0.1
+[[belief]]
+quantity = "icc"
+quantiles = { "0.25" = 0.02, "0.5" = 0.06, "0.75" = 0.15 }
+"#;
+    std::fs::write(dir.path().join("g.toml"), spec).unwrap();
+    let o = run(&["fit", "g.toml", "-o", "g", "-q"], dir.path());
+    assert!(o.status.success(), "{}", text(&o));
+    let out = dir.path().join("g");
+    let s = text(&run(
+        &["export", "--to", "stan", out.to_str().unwrap()],
+        dir.path(),
+    ));
+    // 5 centres; age and dose are the covariates (the group column is not).
+    assert!(
+        s.contains("vector[5] u_z;") && s.contains("vector[2] beta;"),
+        "{s}"
+    );
+    assert!(s.contains("cluster_sd ~ cauchy(0, "), "{s}");
+}
+
+#[test]
+fn bad_multilevel_and_own_prior_input_is_a_clear_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = r#"
+[model]
+template = "logistic"
+[design]
+columns = 5
+rows = 50
+[prior.intercept]
+family = "normal"
+mean = 0.0
+sd = 1.0
+[prior.coefficients]
+family = "normal"
+scale = 0.5
+[[belief]]
+quantity = "event_prob"
+quantiles = { "0.25" = 0.3, "0.5" = 0.5, "0.75" = 0.7 }
+"#;
+    let cases: [(&str, &str, &[&str]); 6] = [
+        // A misspelt covariate name: neither a parameter nor a design column.
+        (
+            "[prior.x9]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n",
+            "",
+            &["[prior.x9]", "not a parameter", "nor a column of the design"],
+        ),
+        (
+            "[prior.pair]\ncovariates = [\"x1\", \"xx2\"]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n",
+            "",
+            &["prior.pair.covariates", "`xx2` is not a column", "x2"],
+        ),
+        // A family whose support does not fit says why.
+        (
+            "[prior.x1]\nfamily = \"gamma\"\nshape = 2.0\nrate = 1.0\n",
+            "",
+            &["prior.x1.family", "support is (0, ∞)", "the real line"],
+        ),
+        (
+            "[prior.x1]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n[prior.both]\ncovariates = [\"x1\"]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n",
+            "",
+            &["`x1` has two priors of its own"],
+        ),
+        (
+            "",
+            "clusters = 5\n",
+            &["design.clusters", "has no clusters", "logistic-multilevel"],
+        ),
+        (
+            "",
+            "group = \"centre\"\n",
+            &["design.group", "a design `file`"],
+        ),
+    ];
+    for (k, (prior, design, needles)) in cases.iter().enumerate() {
+        let text = base
+            .replace(
+                "[prior.coefficients]",
+                &format!("{prior}[prior.coefficients]"),
+            )
+            .replace("rows = 50\n", &format!("rows = 50\n{design}"));
+        let p = dir.path().join(format!("bad{k}.toml"));
+        std::fs::write(&p, text).unwrap();
+        common::assert_rejected(dir.path(), &p, &format!("bad{k}.toml"), 3, needles);
+    }
+    // The multilevel template without clusters, and σ refused with its reason.
+    let ml = base
+        .replace("\"logistic\"", "\"linear-multilevel\"")
+        .replace(
+            "[prior.coefficients]",
+            "[prior.sigma]\nfamily = \"normal\"\nmean = 1.0\nsd = 0.1\n[prior.cluster_sd]\nfamily = \"half-t\"\n[prior.coefficients]",
+        );
+    let p = dir.path().join("ml.toml");
+    std::fs::write(&p, &ml).unwrap();
+    common::assert_rejected(
+        dir.path(),
+        &p,
+        "ml.toml",
+        3,
+        &["needs the design's clusters"],
+    );
+    let p = dir.path().join("ml2.toml");
+    std::fs::write(&p, ml.replace("rows = 50\n", "rows = 50\nclusters = 5\n")).unwrap();
+    common::assert_rejected(
+        dir.path(),
+        &p,
+        "ml2.toml",
+        3,
+        &["prior.sigma.family", "support is the real line", "(0, ∞)"],
+    );
+}
