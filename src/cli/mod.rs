@@ -401,8 +401,15 @@ pub fn escalate(what: &str, r: &fit::FitResult, quiet: bool, require_met: bool) 
     Ok(())
 }
 
-/// Fit and write outputs; shared by `fit` and `demo`.
-pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitResult> {
+/// Fit and write outputs into `out` (a staging folder, see
+/// [`output::folder`]); `extra` writes more files (spec.toml) before the report,
+/// which reads them. Shared by `fit` and `demo`.
+pub fn fit_and_write(
+    spec: &Spec,
+    out: &Path,
+    quiet: bool,
+    extra: impl FnOnce(&Path) -> Result<()>,
+) -> Result<fit::FitResult> {
     output::ensure_dir(out)?;
     let pb = progress::Progress::new(quiet, "fitting");
     let cb = |done: usize, total: usize| {
@@ -415,8 +422,20 @@ pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitRes
         pb.finish();
     }
     output::write_fit(out, &r)?;
+    extra(out)?;
     priorsmith::report::write(out)?;
     Ok(r)
+}
+
+/// Say where the previous results of `out` are kept after a replacement.
+pub(crate) fn note_previous(out: &Path, kept: Option<std::path::PathBuf>, quiet: bool) {
+    if let (Some(k), false) = (kept, quiet) {
+        eprintln!(
+            "note: {} replaced as a whole; its previous files are kept in {}",
+            out.display(),
+            k.display()
+        );
+    }
 }
 
 fn cmd_fit(
@@ -436,8 +455,15 @@ fn cmd_fit(
         }
         spec.fit.replicates = k;
     }
-    let r = fit_and_write(&spec, out, quiet)?;
-    let copied = write_spec_copy(a, out)?;
+    // The whole folder is built beside `out` and swapped in at the end: an
+    // interruption leaves the previous set, never a mix (output::folder).
+    let stage = output::folder::Staging::begin(out)?;
+    let mut copied = false;
+    let r = fit_and_write(&spec, stage.path(), quiet, |dir| {
+        copied = write_spec_copy(a, out, dir)?;
+        Ok(())
+    })?;
+    note_previous(out, stage.commit()?, quiet);
     if !quiet {
         print!("{}", output::summary::render(&r));
         println!(
@@ -457,16 +483,18 @@ fn cmd_fit(
 /// Write the belief file that was fitted as OUT/spec.toml: normalised (the
 /// parsed table; its digest is the record's `spec_digest`), with relative data
 /// paths rewritten to resolve from OUT, so `priorsmith fit OUT/spec.toml`
-/// refits it and `priorsmith conflict OUT` finds it. Nothing is written when
-/// OUT/spec.toml is the fitted file itself. Returns whether it was written.
-fn write_spec_copy(a: &SpecArgs, out: &Path) -> Result<bool> {
-    let target = out.join("spec.toml");
-    if let (Ok(x), Ok(y)) = (a.spec.canonicalize(), target.canonicalize()) {
+/// refits it and `priorsmith conflict OUT` finds it. It is written into `dir`,
+/// the folder being built for OUT; when OUT/spec.toml is the fitted file
+/// itself it is copied as it is. Returns whether it was rewritten.
+fn write_spec_copy(a: &SpecArgs, out: &Path, dir: &Path) -> Result<bool> {
+    let target = dir.join("spec.toml");
+    let text = priorsmith::limits::read_text(&a.spec, priorsmith::limits::TEXT_BYTES, "belief file")?;
+    if let (Ok(x), Ok(y)) = (a.spec.canonicalize(), out.join("spec.toml").canonicalize()) {
         if x == y {
+            output::write_atomic(&target, text.as_bytes())?;
             return Ok(false);
         }
     }
-    let text = std::fs::read_to_string(&a.spec).map_err(|e| Error::io(&a.spec, e))?;
     let mut table = spec::parse_table(&text, Some(&a.spec))?;
     spec::rebase_paths(&mut table, &spec::base_dir(Some(&a.spec)), out);
     let body =
@@ -669,18 +697,19 @@ fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Resu
 }
 
 fn cmd_demo(out: &Path, quiet: bool, require_met: bool, ov: &Overrides) -> Result<()> {
-    output::ensure_dir(out)?;
+    let stage = output::folder::Staging::begin(out)?;
     let mut rows = Vec::new();
     for s in demo::SCENARIOS {
-        let dir = out.join(s.name);
-        let spec_path = dir.join("spec.toml");
-        output::ensure_dir(&dir)?;
-        output::write_atomic(&spec_path, s.text.as_bytes())?;
+        let dir = stage.path().join(s.name);
+        let spec_path = out.join(s.name).join("spec.toml");
         let spec = spec::parse(s.text, Some(&spec_path), ov)
             .with_context(|| format!("demo scenario {}", s.name))?;
-        let r = fit_and_write(&spec, &dir, quiet)?;
+        let r = fit_and_write(&spec, &dir, quiet, |dir| {
+            Ok(output::write_atomic(&dir.join("spec.toml"), s.text.as_bytes())?)
+        })?;
         rows.push((s.name, r));
     }
+    note_previous(out, stage.commit()?, quiet);
     if !quiet {
         println!(
             "{:<20} {:<14} {:>6} {:>8} {:>11} {:>11}  verdict",

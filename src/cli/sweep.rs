@@ -44,7 +44,7 @@ pub fn cmd_sweep(
             Some(v.iter().map(|i| i - 1).collect())
         }
     };
-    output::ensure_dir(out)?;
+    let stage = output::folder::Staging::begin(out)?;
     let pb = Progress::new(quiet, "refitting widths");
     let done = std::sync::atomic::AtomicUsize::new(0);
     if let Some(pb) = &pb {
@@ -63,11 +63,13 @@ pub fn cmd_sweep(
     // Render everything before writing anything.
     let csv = sweep::table_csv(&pts)?;
     let svg = sweep::plot_svg(&pts)?;
+    let dir = stage.path();
     for p in &pts {
-        output::write_fit(&out.join(format!("width-{}", p.width)), &p.result)?;
+        output::write_fit(&dir.join(format!("width-{}", p.width)), &p.result)?;
     }
-    output::write_atomic(&out.join("sweep.csv"), &csv)?;
-    output::write_atomic(&out.join("sweep.svg"), svg.as_bytes())?;
+    output::write_atomic(&dir.join("sweep.csv"), &csv)?;
+    output::write_atomic(&dir.join("sweep.svg"), svg.as_bytes())?;
+    super::note_previous(out, stage.commit()?, quiet);
     if !quiet {
         let r0 = &pts[0].result;
         let free = &r0.free;

@@ -11,7 +11,9 @@
 //!    same folder is refused with a clear error instead of silently replacing
 //!    the first one's result. The lock dies with its process.
 //! 2. **Recover.** Holding the lock, staging folders left by an interrupted run
-//!    are removed; when the folder itself is missing but a previous set is kept
+//!    are removed (they carry a mark until the swap); an unmarked one is an old
+//!    set exchanged out just before the interruption, and becomes the kept
+//!    previous set; when the folder itself is missing but a previous set is kept
 //!    (an interruption between the two renames of the fallback below), the
 //!    previous set is put back.
 //! 3. **Stage.** The caller writes every file into the staging folder.
@@ -28,6 +30,10 @@
 use crate::error::{Error, Result};
 use std::fs::{self, File};
 use std::path::{Path, PathBuf};
+
+/// Marks a staging folder whose set has not been swapped in (removed just
+/// before the swap), so that recovery tells it from an old set exchanged out.
+const MARK: &str = ".priorsmith-staging";
 
 /// A folder being rebuilt in a sibling staging folder.
 pub struct Staging {
@@ -104,6 +110,8 @@ impl Staging {
         recover(target, &previous)?;
         let staging = sibling(target, &format!("new-{}", std::process::id()));
         fs::create_dir(&staging).map_err(|e| Error::io(&staging, e))?;
+        let mark = staging.join(MARK);
+        fs::write(&mark, b"").map_err(|e| Error::io(&mark, e))?;
         Ok(Staging {
             target: target.to_path_buf(),
             staging,
@@ -126,6 +134,8 @@ impl Staging {
     /// Swap the staged folder in. Returns where the previous set of files is
     /// kept, when there was one.
     pub fn commit(mut self) -> Result<Option<PathBuf>> {
+        let mark = self.staging.join(MARK);
+        fs::remove_file(&mark).map_err(|e| Error::io(&mark, e))?;
         sync_dir(&self.staging);
         let had_old = self.target.is_dir();
         let result = if had_old {
@@ -141,7 +151,9 @@ impl Staging {
 
     fn swap_in(&self) -> Result<()> {
         let t = &self.target;
+        super::fault_point();
         if exchange(&self.staging, t).is_ok() {
+            super::fault_point();
             // The staging path now holds the old set: keep it as the previous one.
             remove_all(&self.previous)?;
             return fs::rename(&self.staging, &self.previous).map_err(|e| Error::io(t, e));
@@ -149,6 +161,7 @@ impl Staging {
         // Two renames; `recover` repairs an interruption between them.
         remove_all(&self.previous)?;
         fs::rename(t, &self.previous).map_err(|e| Error::io(t, e))?;
+        super::fault_point();
         fs::rename(&self.staging, t).map_err(|e| Error::io(t, e))
     }
 }
@@ -173,7 +186,15 @@ fn recover(target: &Path, previous: &Path) -> Result<()> {
     if let Ok(entries) = fs::read_dir(&parent) {
         for e in entries.flatten() {
             if e.file_name().to_string_lossy().starts_with(&prefix) {
-                remove_all(&e.path())?;
+                let p = e.path();
+                if p.join(MARK).exists() {
+                    // A set that was never swapped in.
+                    remove_all(&p)?;
+                } else {
+                    // The old set, exchanged out just before an interruption.
+                    remove_all(previous)?;
+                    fs::rename(&p, previous).map_err(|e| Error::io(&p, e))?;
+                }
             }
         }
     }
@@ -299,6 +320,7 @@ mod tests {
         assert_eq!(files(d.path()), [".out.lock", "out"]);
         // A killed run leaves its staging folder: the next run removes it.
         fs::create_dir(d.path().join(".out.new-999999")).unwrap();
+        fs::write(d.path().join(".out.new-999999").join(MARK), "").unwrap();
         // …and a kill between the fallback's two renames leaves no folder but
         // the previous set: the next run puts it back first.
         fs::rename(&out, d.path().join(".out.previous")).unwrap();

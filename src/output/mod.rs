@@ -54,6 +54,27 @@ pub fn draws_csv(r: &FitResult) -> Result<Vec<u8>> {
 
 pub use crate::numerics::format::csv as fmt_csv;
 
+/// A point where a test may kill the process (fault injection): when the
+/// environment variable `PRIORSMITH_TEST_KILL_AT_WRITE` is `k`, the k-th call in
+/// the process aborts it on the spot, as SIGKILL would, leaving whatever is on
+/// disk. Every file write and the folder swap pass here. Unset: nothing happens.
+pub fn fault_point() {
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    use std::sync::OnceLock;
+    static AT: OnceLock<Option<usize>> = OnceLock::new();
+    static COUNT: AtomicUsize = AtomicUsize::new(0);
+    let at = AT.get_or_init(|| {
+        std::env::var("PRIORSMITH_TEST_KILL_AT_WRITE")
+            .ok()
+            .and_then(|v| v.parse().ok())
+    });
+    if let Some(k) = at {
+        if COUNT.fetch_add(1, Ordering::SeqCst) + 1 == *k {
+            std::process::abort();
+        }
+    }
+}
+
 /// Write a set of files into place all together: every file goes to a temporary
 /// sibling first; only when all are complete are they renamed. On any failure the
 /// temporaries are removed and no file of the set is replaced.
@@ -74,6 +95,7 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
             .map(|s| s.to_string_lossy().to_string())
             .unwrap_or_default();
         let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+        fault_point();
         let res = (|| {
             let mut f = std::fs::File::create(&tmp)?;
             f.write_all(bytes)?;
@@ -86,6 +108,7 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
         }
     }
     for ((path, _), tmp) in files.iter().zip(&tmps) {
+        fault_point();
         if let Err(e) = std::fs::rename(tmp, path) {
             cleanup(&tmps);
             return Err(Error::io(path, e));
