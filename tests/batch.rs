@@ -482,3 +482,30 @@ fn misspelt_column_is_refused_before_any_fit() {
         assert!(!out.exists(), "{col}: output folder created");
     }
 }
+
+/// A batch folder is never swapped, so a folder holding another batch (or a
+/// fit) is refused before anything is written; the same batch resumes.
+#[test]
+fn another_batchs_folder_is_refused_and_left_alone() {
+    let d = tempfile::tempdir().unwrap();
+    let (base, table) = setup(d.path(), 2);
+    let out = d.path().join("b");
+    assert!(batch(&base, &table, &out, &[]).status.success());
+    let before = read(&out.join("results.csv"));
+    // The same batch again: resumes (nothing to do) without a flag.
+    assert!(batch(&base, &table, &out, &[]).status.success());
+    // Another table into the same folder.
+    let (_, other) = setup_named(d.path(), 3, "other.csv");
+    let o = batch(&base, &other, &out, &[]);
+    let err = String::from_utf8_lossy(&o.stderr).to_string();
+    assert_eq!(o.status.code(), Some(4), "{err}");
+    assert!(err.contains("holds another batch"), "{err}");
+    assert_eq!(read(&out.join("results.csv")), before);
+    // A fit's folder.
+    let fitdir = d.path().join("fit");
+    std::fs::create_dir(&fitdir).unwrap();
+    std::fs::write(fitdir.join("fit.json"), "{}").unwrap();
+    let o = batch(&base, &table, &fitdir, &[]);
+    assert_eq!(o.status.code(), Some(4));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("not a batch's"));
+}

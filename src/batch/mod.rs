@@ -576,10 +576,51 @@ pub struct Manifest {
     pub draws: Option<usize>,
     pub max_draws: Option<usize>,
     pub rows: usize,
+    /// SHA-256 over every planned row's digest (base file, table, overrides,
+    /// version): a folder holding another batch is refused by [`run`].
+    #[serde(default)]
+    pub identity: Option<String>,
 }
 
 fn abs(p: &Path) -> PathBuf {
     std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf())
+}
+
+/// A batch folder is never swapped: finished rows stay and a rerun of the same
+/// batch resumes. So a folder holding anything else — another batch (another
+/// base file, table or overrides: its rows would sit beside this one's), or
+/// files that are not a batch's — is refused before anything is written.
+fn refuse_other_batch(dir: &Path, identity: &str) -> Result<()> {
+    let refuse = |why: String| {
+        Err(Error::io(
+            dir,
+            std::io::Error::other(format!("{why}; choose another --out, or remove the folder")),
+        ))
+    };
+    let man_path = dir.join("batch.json");
+    if man_path.exists() {
+        let text = crate::limits::read_text(&man_path, crate::limits::TEXT_BYTES, "batch manifest")?;
+        return match serde_json::from_str::<Manifest>(&text) {
+            Ok(m) if m.identity.as_deref().is_none_or(|i| i == identity) => Ok(()),
+            Ok(m) => refuse(format!(
+                "the folder holds another batch (base {}, table {}, {} rows)",
+                m.base.display(),
+                m.table.display(),
+                m.rows
+            )),
+            Err(e) => refuse(format!("its batch.json cannot be read ({e})")),
+        };
+    }
+    let foreign = std::fs::read_dir(dir)
+        .map(|it| {
+            it.flatten()
+                .any(|e| !e.file_name().to_string_lossy().starts_with('.'))
+        })
+        .unwrap_or(false);
+    if foreign {
+        return refuse("the folder holds files that are not a batch's".into());
+    }
+    Ok(())
 }
 
 /// Run (the shard of) a batch into `dir`. `tick` after each row.
@@ -589,6 +630,12 @@ pub fn run(
     opts: &RunOptions,
     tick: &(dyn Fn(&Tally) + Sync),
 ) -> Result<RunReport> {
+    let identity = sha(&plan
+        .rows
+        .iter()
+        .map(|r| r.digest.as_str())
+        .collect::<Vec<_>>());
+    refuse_other_batch(dir, &identity)?;
     output::ensure_dir(dir)?;
     output::ensure_dir(&dir.join("rows"))?;
     clean_tmp(dir);
@@ -599,6 +646,7 @@ pub fn run(
         draws: plan.overrides.draws,
         max_draws: plan.overrides.max_draws,
         rows: plan.rows.len(),
+        identity: Some(identity),
     };
     let mj = serde_json::to_string_pretty(&man).map_err(|e| Error::Internal(e.to_string()))?;
     write_atomic(&dir.join("batch.json"), mj.as_bytes())?;
