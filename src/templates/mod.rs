@@ -20,11 +20,11 @@
 
 pub mod linear;
 pub mod logistic;
-pub mod mixture_cure;
 pub mod poisson;
 pub mod priors;
 pub mod quantity;
 pub mod regression;
+pub mod survival;
 
 use crate::dist::Support;
 use crate::error::Result;
@@ -237,7 +237,9 @@ pub trait Model: Send + Sync {
 
 /// All templates. Adding a template adds one line here.
 pub static TEMPLATES: &[&TemplateInfo] = &[
-    &mixture_cure::INFO,
+    &survival::mixture_cure::INFO,
+    &survival::promotion_time::INFO,
+    &survival::parametric::INFO,
     &linear::INFO,
     &logistic::INFO,
     &poisson::INFO,
