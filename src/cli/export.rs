@@ -6,8 +6,8 @@ use priorsmith::export::{self, Lang};
 use priorsmith::output;
 use std::path::Path;
 
-pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool) -> Result<()> {
-    let text = export::export_dir(dir, to)?;
+pub fn run(dir: &Path, to: Lang, out: Option<&Path>, likelihood: bool, quiet: bool) -> Result<()> {
+    let text = export::export_dir_with(dir, to, likelihood)?;
     match out {
         Some(p) if p != Path::new("-") => {
             output::write_atomic(p, text.as_bytes())?;

@@ -140,6 +140,10 @@ pub enum Command {
         /// Write to FILE (atomically) instead of standard output.
         #[arg(long, short)]
         out: Option<PathBuf>,
+        /// Write a complete model: the template's likelihood (right-censored, in
+        /// our parameterisation) with the prior (survival templates; stan, pymc).
+        #[arg(long)]
+        with_likelihood: bool,
     },
     /// Write DIR/report.html (and DIR/plots/*.svg) from DIR/fit.json and DIR/draws.csv.
     Report {
@@ -263,7 +267,12 @@ pub fn run(cli: Cli) -> Result<()> {
             force,
         } => cmd_new(&template, out.as_deref(), force, quiet),
         Command::Demo { out } => cmd_demo(&out, quiet, &mem_only),
-        Command::Export { dir, to, out } => export::run(&dir, to.into(), out.as_deref(), quiet),
+        Command::Export {
+            dir,
+            to,
+            out,
+            with_likelihood,
+        } => export::run(&dir, to.into(), out.as_deref(), with_likelihood, quiet),
         Command::Report { dir } => report::run(&dir, quiet),
         Command::Sweep {
             spec,

@@ -15,7 +15,7 @@ use std::path::Path;
 /// Version of the fit.json layout. 1: the first round's files (no version key);
 /// 2: typed record with Monte Carlo errors, what set each hyperparameter, how
 /// the draws were chosen, and the tie-break as a tagged value.
-pub const SCHEMA_VERSION: u32 = 2;
+pub const SCHEMA_VERSION: u32 = 3;
 
 /// An error at key `key` of fit.json `file`.
 pub fn bad(file: &Path, key: &str, msg: impl Into<String>) -> Error {

@@ -227,6 +227,12 @@ pub trait Model: Send + Sync {
     /// Mean log standard deviation of the prior's components at `h` (the spread
     /// the tie-breaking objective rewards; see `fit::pareto`).
     fn spread(&self, h: &[f64]) -> f64;
+    /// The likelihood matching the template's parameterisation, as export code
+    /// (language → section → lines; see `crate::export::likelihood`), or `None`
+    /// when the template supplies none.
+    fn likelihood(&self) -> Option<Code> {
+        None
+    }
     /// Estimated bytes [`Model::draw_base`] and one simulation allocate for `n`
     /// draws, and what they scale with (checked against [`crate::limits`] before a
     /// fit starts; 0 = small).

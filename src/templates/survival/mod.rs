@@ -40,6 +40,7 @@
 //! RMST(h) = ∫₀ʰ S: closed form for the mixture cure with a Weibull latency
 //! (π·h + (1 − π)λΓ(1 + 1/k)P(1/k, (h/λ)^k)), 32-point Gauss–Legendre otherwise.
 
+mod code;
 pub mod latency;
 pub mod mixture_cure;
 pub mod parametric;
@@ -811,6 +812,10 @@ impl Model for Survival {
 
     fn spread(&self, h: &[f64]) -> f64 {
         self.priors.spread(h)
+    }
+
+    fn likelihood(&self) -> Option<super::Code> {
+        Some(self.code())
     }
 }
 
