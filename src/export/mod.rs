@@ -160,7 +160,8 @@ pub fn render_complete(rec: &FitRecord, lang: Lang) -> Result<String> {
             .and_then(|c| c.get(l.name()))
             .ok_or_else(|| {
                 unsupported(format!(
-                    "template {} supplies no {} likelihood: export the prior alone (without                      --with-likelihood)",
+                    "template {} supplies no {} likelihood: export the prior alone (without \
+                     --with-likelihood)",
                     rec.header.template,
                     l.name()
                 ))
@@ -170,7 +171,10 @@ pub fn render_complete(rec: &FitRecord, lang: Lang) -> Result<String> {
         Lang::Stan => stan::render_with(&rec.header, &rec.items, Some(lik(lang)?)),
         Lang::Pymc => pymc::render_with(&rec.header, &rec.items, Some(lik(lang)?)),
         Lang::Brms => Err(unsupported(
-            "--with-likelihood is not available for brms: brms has no mixture-cure or              promotion-time family, and its weibull() family is parameterised by the mean              (mu = lambda * Gamma(1 + 1/shape)), not by our scale; export --to stan or --to              pymc for a complete model, or --to brms without --with-likelihood for the priors",
+            "--with-likelihood is not available for brms: brms has no mixture-cure or \
+             promotion-time family, and its weibull() family is parameterised by the mean \
+             (mu = lambda * Gamma(1 + 1/shape)), not by our scale; export --to stan or --to \
+             pymc for a complete model, or --to brms without --with-likelihood for the priors",
         )),
         Lang::Json => Err(unsupported(
             "--with-likelihood writes model code: use --to stan or --to pymc",

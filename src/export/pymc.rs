@@ -94,6 +94,7 @@ pub fn render_with(h: &Header, items: &[Item], likelihood: Option<&Sections>) ->
     }
     names.extend(args.iter().cloned());
     names.extend(["np", "pt"].map(String::from));
+    names.extend(lik.get("locals").into_iter().flatten().cloned());
     check_unique(&names, Lang::Pymc)?;
     let mut out = String::new();
     for l in header_lines(h, "PyMC") {

@@ -188,6 +188,7 @@ pub fn render_with(h: &Header, items: &[Item], likelihood: Option<&Sections>) ->
     };
     if let Some(l) = likelihood {
         names.extend(data_names(l.get("data")));
+        names.extend(l.get("locals").into_iter().flatten().cloned());
     }
     check_unique(&names, Lang::Stan)?;
     let mut out = String::new();

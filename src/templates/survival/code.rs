@@ -22,7 +22,8 @@
 //! likelihood ∏ f^δ S^{1−δ}; Chen, Ibrahim & Sinha 1999, JASA 94, eq. (2.4)
 //! for the promotion-time cure.) The language sections are `about` (comment
 //! lines stating the parameterisation), `functions`, `data`, `model` for Stan
-//! and `about`, `args`, `model` for PyMC.
+//! and `about`, `args`, `model` for PyMC; `locals` lists the local names the
+//! code uses (the exporters check that no parameter or covariate takes one).
 
 use super::{Cure, Effect, Latency, Survival};
 use crate::templates::Code;
@@ -35,6 +36,9 @@ impl Survival {
         for (c, e) in self.covariates.iter().zip(&self.latency_effects) {
             match e {
                 Some((i, Effect::Aft)) => s.push_str(&format!(" + {} * {}", prior(*i), x(c))),
+                Some((i, Effect::Ph)) if k == "1.0" => {
+                    s.push_str(&format!(" - {} * {}", prior(*i), x(c)))
+                }
                 Some((i, Effect::Ph)) => {
                     s.push_str(&format!(" - {} * {} / {k}", prior(*i), x(c)))
                 }
@@ -77,8 +81,11 @@ impl Survival {
         let mut v = vec![
             format!("Likelihood in priorsmith's parameterisation ({} template).", self.info.name),
             model.to_string(),
-            format!("{lat}, lambda = exp(log_scale + latency effects - hazard effects / shape), in {unit}."),
-            "Not Stan's or brms's own Weibull scale/mean parameterisation: keep these expressions.".into(),
+            format!(
+                "{lat}, lambda = exp(log_scale + latency effects - hazard effects{}), in {unit}.",
+                if self.shape.is_some() { " / shape" } else { "" }
+            ),
+            "Stan's and brms's built-in survival families are parameterised otherwise: keep these expressions.".into(),
             format!(
                 "Data: N patients, time = follow-up in {unit} (> 0), event = 1 (event) or 0 (right-censored){}.",
                 if self.covariates.is_empty() {
@@ -91,10 +98,9 @@ impl Survival {
                 }
             ),
         ];
-        if self.cure_kind == Cure::Mixture {
-            v.insert(2, format!("eta = {}", self.cure_expr(|c| c.to_string(), &|i| self.priors.priors[i].param.clone()).unwrap_or_default()));
-        } else if self.cure_kind == Cure::PromotionTime {
-            v.insert(2, format!("eta = {}", self.cure_expr(|c| c.to_string(), &|i| self.priors.priors[i].param.clone()).unwrap_or_default()));
+        let name = |i: usize| self.priors.priors[i].param.clone();
+        if let Some(eta) = self.cure_expr(|c| c.to_string(), &name) {
+            v.insert(2, format!("eta = {eta}"));
         }
         v
     }
@@ -180,6 +186,7 @@ impl Survival {
         }
         model.push("}".into());
         stan.insert("model".into(), model);
+        stan.insert("locals".into(), ["n", "ls", "eta"].map(String::from).to_vec());
         code.insert("stan".into(), stan);
 
         // PyMC.
@@ -228,6 +235,12 @@ impl Survival {
         }
         m.push("pm.Potential(\"loglik\", pt.sum(loglik))".into());
         py.insert("model".into(), m);
+        py.insert(
+            "locals".into(),
+            ["ls", "z", "log_surv", "log_dens", "eta", "log_cure", "log_uncured", "loglik", "make_model"]
+                .map(String::from)
+                .to_vec(),
+        );
         code.insert("pymc".into(), py);
         code
     }

@@ -51,7 +51,7 @@ use latency::{gauss, LATENCIES};
 
 use super::quantity::lookup;
 use super::{
-    At, BaseDraws, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request,
+    At, BaseDraws, BrmsLayout, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request,
     TemplateInfo,
 };
 use crate::error::{choice_hint, Result};
@@ -59,6 +59,21 @@ use crate::input::raw::RawBelief;
 use crate::input::{key, Ctx, Seg};
 use crate::numerics::logistic;
 use std::cell::RefCell;
+
+/// How brms states the survival templates' priors: every parameter a
+/// non-linear parameter, `shape` written `nlShape` (brms keeps `shape` for its
+/// own families; `export::brms`).
+pub static BRMS: BrmsLayout = BrmsLayout {
+    usage: &[
+        "Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula, e.g.",
+        "bf(time | cens(1 - event) ~ <the likelihood in these parameters>, cureLogit ~ 1,",
+        "   logScale ~ 1, nlShape ~ 1, nl = TRUE) with your own custom_family: brms has no",
+        "cure family (`export --to stan --with-likelihood` writes the complete model).",
+        "Parameters named like a brms distributional parameter get the prefix nl (shape → nlShape).",
+        "Pass `prior = priors` to brm().",
+    ],
+    classes: &[],
+};
 
 /// How the cured fraction enters.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

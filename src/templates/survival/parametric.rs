@@ -15,7 +15,7 @@ use super::{build as build_survival, Cure, SurvQuantity};
 use crate::error::Result;
 use crate::input::Ctx;
 use crate::templates::quantity::catalogue;
-use crate::templates::{BrmsLayout, Model, QuantityDef, TemplateInfo};
+use crate::templates::{Model, QuantityDef, TemplateInfo};
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "parametric-survival",
@@ -50,7 +50,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     ],
     starter: include_str!("../../../model-templates/parametric-survival.toml"),
     build,
-    brms: &BrmsLayout::NONLINEAR,
+    brms: &super::BRMS,
 };
 
 /// The quantity table (the catalogue lists it in this order).

@@ -17,7 +17,7 @@ use super::{build as build_survival, Cure, SurvQuantity};
 use crate::error::Result;
 use crate::input::Ctx;
 use crate::templates::quantity::catalogue;
-use crate::templates::{BrmsLayout, Model, QuantityDef, TemplateInfo};
+use crate::templates::{Model, QuantityDef, TemplateInfo};
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "promotion-time-cure",
@@ -60,7 +60,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     ],
     starter: include_str!("../../../model-templates/promotion-time-cure.toml"),
     build,
-    brms: &BrmsLayout::NONLINEAR,
+    brms: &super::BRMS,
 };
 
 /// The quantity table (the catalogue lists it in this order).
