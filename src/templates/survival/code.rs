@@ -18,8 +18,8 @@
 //! * promotion-time cure, θ = e^η:   −θ·F_u + δ·(ln θ + ln f_u),  F_u = 1 − S_u
 //! * parametric survival:            δ·ln f_u + (1 − δ)·ln S_u
 //!
-//! (Klein & Moeschberger, Survival Analysis, 2nd ed., §3.5: right-censored
-//! likelihood ∏ f^δ S^{1−δ}; Chen, Ibrahim & Sinha 1999, JASA 94, eq. (2.4)
+//! (Klein & Moeschberger, Survival Analysis, 2nd ed., §3.5, section number from memory: right-censored
+//! likelihood ∏ f^δ S^{1−δ}; Chen, Ibrahim & Sinha 1999, JASA 94, §2
 //! for the promotion-time cure.) The language sections are `about` (comment
 //! lines stating the parameterisation), `functions`, `data`, `model` for Stan
 //! and `about`, `args`, `model` for PyMC; `locals` lists the local names the

@@ -74,7 +74,7 @@ quantiles = { "0.1" = 0.5, "0.5" = 0.7, "0.9" = 0.9 }
 
 #[test]
 fn promotion_time_cure_fraction_and_survival_draw_by_draw() {
-    // Chen, Ibrahim & Sinha (1999, JASA 94), eq. (2.2): S(t) = exp(−θF(t)),
+    // Chen, Ibrahim & Sinha (1999, JASA 94), §2: S(t) = exp(−θF(t)),
     // cure fraction exp(−θ); θ and F recomputed here from the base columns.
     let (_, out, cols) = draws(PROMOTION);
     for i in 0..out[0].len() {
