@@ -159,8 +159,8 @@ fn ph_weibull_hazard_ratio_is_exp_beta_and_constant_in_t() {
     let (_, out, cols) = draws(&parametric("weibull", "hazard_effect", &extra));
     for i in 0..out[0].len() {
         let want = (-0.3 + 0.25 * cols[2][i]).exp();
-        for r in 1..=4 {
-            assert!((out[r][i] - want).abs() < 1e-9 * want, "{i} {r}");
+        for (r, o) in out.iter().enumerate().skip(1) {
+            assert!((o[i] - want).abs() < 1e-9 * want, "{i} {r}");
         }
     }
     // The same effect on the time scale: AFT β is the PH effect −kβ.
