@@ -111,7 +111,7 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 13] = {
         LatencyHazardRatio.def(
             "latency_hazard_ratio",
             "hazard ratio among the uncured, H_u,a(h)/H_u,b(h); constant for weibull/exponential",
-            "profiles = [a, b], horizon (not for weibull/exponential)",
+            "profiles = [a, b], horizon (optional for weibull/exponential)",
         ),
         SurvivalDifference.def(
             "survival_difference",

@@ -64,7 +64,7 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 9] = {
         HazardRatio.def(
             "hazard_ratio",
             "hazard ratio a vs b; for lognormal/loglogistic H_a(h)/H_b(h), H = −ln S",
-            "profiles = [a, b], horizon (not for weibull/exponential)",
+            "profiles = [a, b], horizon (optional for weibull/exponential)",
         ),
         SurvivalDifference.def(
             "survival_difference",

@@ -97,7 +97,7 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 12] = {
         HazardRatio.def(
             "hazard_ratio",
             "population hazard ratio a vs b, H_a(h)/H_b(h) = θ_a F_a(h)/(θ_b F_b(h)); θ_a/θ_b when F is shared",
-            "profiles = [a, b], horizon (not when only θ differs)",
+            "profiles = [a, b], horizon (optional when only θ differs)",
         ),
         SurvivalDifference.def(
             "survival_difference",
