@@ -794,7 +794,8 @@ arm = 1
     )
 }
 
-const LOG_SCALE: &str = "[prior.log_scale]\nfamily = \"normal\"\nmean = { fit = [1.0, 4.0] }\nsd = 0.3\n";
+const LOG_SCALE: &str =
+    "[prior.log_scale]\nfamily = \"normal\"\nmean = { fit = [1.0, 4.0] }\nsd = 0.3\n";
 const SHAPE: &str = "[prior.shape]\nfamily = \"lognormal\"\nmeanlog = 0.1\nsdlog = 0.2\n";
 const SURV_BELIEF: &str = "quantity = \"survival_prob\"\nhorizon = 24\nprofile = \"control\"\nquantiles = { \"0.1\" = 0.2, \"0.5\" = 0.35, \"0.9\" = 0.5 }";
 
@@ -861,7 +862,15 @@ fn fit_spec(spec: &str) -> (tempfile::TempDir, PathBuf) {
     let path = d.path().join("spec.toml");
     std::fs::write(&path, spec).unwrap();
     let out = d.path().join("out");
-    ok(&["fit", path.to_str().unwrap(), "--draws", "2000", "-q", "-o", out.to_str().unwrap()]);
+    ok(&[
+        "fit",
+        path.to_str().unwrap(),
+        "--draws",
+        "2000",
+        "-q",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
     (d, out)
 }
 
@@ -876,7 +885,12 @@ fn split_complete(code: &str, comment: &str) -> (String, String) {
         let t = line.trim();
         if t == "functions {" || t == "data {" {
             block = "lik";
-        } else if t.ends_with('{') && !t.starts_with("for ") && !t.starts_with("if ") && !t.starts_with("real ") && !t.starts_with("} else") {
+        } else if t.ends_with('{')
+            && !t.starts_with("for ")
+            && !t.starts_with("if ")
+            && !t.starts_with("real ")
+            && !t.starts_with("} else")
+        {
             block = "";
         }
         if t.starts_with(&format!("{comment} likelihood:")) {
@@ -928,7 +942,12 @@ fn survival_exports_with_likelihood_match_golden_files_and_keep_the_prior() {
                 std::fs::write(&golden, &lik).unwrap();
             }
             let want = std::fs::read_to_string(&golden).unwrap_or_default();
-            assert_eq!(lik, want, "{name} {lang}: likelihood differs from {}", golden.display());
+            assert_eq!(
+                lik,
+                want,
+                "{name} {lang}: likelihood differs from {}",
+                golden.display()
+            );
             let parsed = match lang {
                 "stan" => {
                     // The complete program's prior: the prior-only export less its

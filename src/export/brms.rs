@@ -50,7 +50,10 @@ pub fn brms_name(name: &str) -> String {
     let n = nlpar_name(name);
     if DPARS.contains(&n.as_str()) {
         let mut c = n.chars();
-        let first = c.next().map(|f| f.to_uppercase().collect::<String>()).unwrap_or_default();
+        let first = c
+            .next()
+            .map(|f| f.to_uppercase().collect::<String>())
+            .unwrap_or_default();
         format!("nl{first}{}", c.as_str())
     } else {
         n

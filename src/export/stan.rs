@@ -11,8 +11,7 @@
 //! syntax and reuses [`from_family`] with the family's brms form.
 
 use super::{
-    check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar,
-    Sections,
+    check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar, Sections,
 };
 use crate::dist::forms::{Args, Form as Declared, StanFn};
 use crate::error::{Error, Result};

@@ -31,7 +31,12 @@ use std::collections::BTreeMap;
 
 impl Survival {
     /// ln λ per patient in the language's syntax (`x(c)` writes covariate c).
-    fn log_scale_expr(&self, x: impl Fn(&str) -> String, k: &str, prior: &dyn Fn(usize) -> String) -> String {
+    fn log_scale_expr(
+        &self,
+        x: impl Fn(&str) -> String,
+        k: &str,
+        prior: &dyn Fn(usize) -> String,
+    ) -> String {
         let mut s = "log_scale".to_string();
         for (c, e) in self.covariates.iter().zip(&self.latency_effects) {
             match e {
@@ -39,9 +44,7 @@ impl Survival {
                 Some((i, Effect::Ph)) if k == "1.0" => {
                     s.push_str(&format!(" - {} * {}", prior(*i), x(c)))
                 }
-                Some((i, Effect::Ph)) => {
-                    s.push_str(&format!(" - {} * {} / {k}", prior(*i), x(c)))
-                }
+                Some((i, Effect::Ph)) => s.push_str(&format!(" - {} * {} / {k}", prior(*i), x(c))),
                 None => {}
             }
         }
@@ -49,7 +52,11 @@ impl Survival {
     }
 
     /// η (cure logit or ln θ) per patient.
-    fn cure_expr(&self, x: impl Fn(&str) -> String, prior: &dyn Fn(usize) -> String) -> Option<String> {
+    fn cure_expr(
+        &self,
+        x: impl Fn(&str) -> String,
+        prior: &dyn Fn(usize) -> String,
+    ) -> Option<String> {
         let c = self.cure?;
         let mut s = prior(c);
         for (cv, e) in self.covariates.iter().zip(&self.cure_effects) {
@@ -140,11 +147,16 @@ impl Survival {
         stan.insert("functions".into(), funcs);
         let mut data = vec![
             "int<lower=0> N;  // patients".to_string(),
-            format!("vector<lower=0>[N] time;  // follow-up, in {}", self.time_unit),
+            format!(
+                "vector<lower=0>[N] time;  // follow-up, in {}",
+                self.time_unit
+            ),
             "array[N] int<lower=0, upper=1> event;  // 1 = event, 0 = right-censored".into(),
         ];
         for c in &self.covariates {
-            data.push(format!("vector[N] {c};  // covariate {c}, coded as in the profiles"));
+            data.push(format!(
+                "vector[N] {c};  // covariate {c}, coded as in the profiles"
+            ));
         }
         stan.insert("data".into(), data);
         let x = |c: &str| format!("{c}[n]");
@@ -155,7 +167,10 @@ impl Survival {
         ];
         match self.cure_kind {
             Cure::Mixture => {
-                model.push(format!("  real eta = {};", self.cure_expr(x, &name).unwrap_or_default()));
+                model.push(format!(
+                    "  real eta = {};",
+                    self.cure_expr(x, &name).unwrap_or_default()
+                ));
                 model.push("  if (event[n] == 1) {".into());
                 model.push(format!(
                     "    target += log1m_inv_logit(eta) + latency_log_dens(time[n], ls, {k});"
@@ -167,13 +182,18 @@ impl Survival {
                 model.push("  }".into());
             }
             Cure::PromotionTime => {
-                model.push(format!("  real eta = {};", self.cure_expr(x, &name).unwrap_or_default()));
+                model.push(format!(
+                    "  real eta = {};",
+                    self.cure_expr(x, &name).unwrap_or_default()
+                ));
                 model.push("  // ln S = -theta F = theta * expm1(ln S_u)".into());
                 model.push(format!(
                     "  target += exp(eta) * expm1(latency_log_surv(time[n], ls, {k}));"
                 ));
                 model.push("  if (event[n] == 1) {".into());
-                model.push(format!("    target += eta + latency_log_dens(time[n], ls, {k});"));
+                model.push(format!(
+                    "    target += eta + latency_log_dens(time[n], ls, {k});"
+                ));
                 model.push("  }".into());
             }
             Cure::None => {
@@ -186,7 +206,10 @@ impl Survival {
         }
         model.push("}".into());
         stan.insert("model".into(), model);
-        stan.insert("locals".into(), ["n", "ls", "eta"].map(String::from).to_vec());
+        stan.insert(
+            "locals".into(),
+            ["n", "ls", "eta"].map(String::from).to_vec(),
+        );
         code.insert("stan".into(), stan);
 
         // PyMC.
@@ -204,7 +227,9 @@ impl Survival {
         match self.latency {
             Latency::Weibull | Latency::Exponential => {
                 m.push("log_surv = -pt.exp(z)".into());
-                m.push(format!("log_dens = pt.log({k}) - pt.log(time) + z - pt.exp(z)"));
+                m.push(format!(
+                    "log_dens = pt.log({k}) - pt.log(time) + z - pt.exp(z)"
+                ));
             }
             Latency::LogNormal => {
                 m.push("log_surv = pm.logcdf(pm.Normal.dist(0.0, 1.0), -z)".into());
@@ -221,13 +246,21 @@ impl Survival {
         }
         match self.cure_kind {
             Cure::Mixture => {
-                m.push(format!("eta = {}", self.cure_expr(x, &name).unwrap_or_default()));
+                m.push(format!(
+                    "eta = {}",
+                    self.cure_expr(x, &name).unwrap_or_default()
+                ));
                 m.push("log_cure, log_uncured = -pt.log1pexp(-eta), -pt.log1pexp(eta)".into());
                 m.push("loglik = pt.switch(pt.eq(event, 1), log_uncured + log_dens, pt.logaddexp(log_cure, log_uncured + log_surv))".into());
             }
             Cure::PromotionTime => {
-                m.push(format!("eta = {}", self.cure_expr(x, &name).unwrap_or_default()));
-                m.push("loglik = pt.exp(eta) * pt.expm1(log_surv) + event * (eta + log_dens)".into());
+                m.push(format!(
+                    "eta = {}",
+                    self.cure_expr(x, &name).unwrap_or_default()
+                ));
+                m.push(
+                    "loglik = pt.exp(eta) * pt.expm1(log_surv) + event * (eta + log_dens)".into(),
+                );
             }
             Cure::None => {
                 m.push("loglik = pt.switch(pt.eq(event, 1), log_dens, log_surv)".into());
@@ -237,9 +270,19 @@ impl Survival {
         py.insert("model".into(), m);
         py.insert(
             "locals".into(),
-            ["ls", "z", "log_surv", "log_dens", "eta", "log_cure", "log_uncured", "loglik", "make_model"]
-                .map(String::from)
-                .to_vec(),
+            [
+                "ls",
+                "z",
+                "log_surv",
+                "log_dens",
+                "eta",
+                "log_cure",
+                "log_uncured",
+                "loglik",
+                "make_model",
+            ]
+            .map(String::from)
+            .to_vec(),
         );
         code.insert("pymc".into(), py);
         code

@@ -39,7 +39,8 @@ pub fn ln_norm_cdf(x: f64) -> f64 {
         norm_cdf(x).ln()
     } else {
         let x2 = x * x;
-        -0.5 * x2 - (-x).ln() - 0.918_938_533_204_672_8 + (1.0 - 1.0 / x2 + 3.0 / (x2 * x2) - 15.0 / (x2 * x2 * x2)).ln()
+        -0.5 * x2 - (-x).ln() - 0.918_938_533_204_672_8
+            + (1.0 - 1.0 / x2 + 3.0 / (x2 * x2) - 15.0 / (x2 * x2 * x2)).ln()
     }
 }
 
@@ -263,8 +264,9 @@ mod tests {
         assert!((Latency::LogLogistic.surv_inv(0.5, 7f64.ln(), 2.3) - 7.0).abs() < 1e-12);
         assert!((Latency::LogNormal.surv_inv(0.5, 7f64.ln(), 2.3) - 7.0).abs() < 1e-12);
         assert!(
-            (Latency::Weibull.surv_inv(0.5, 2f64.ln(), 1.5) - Latency::Weibull.median(2f64.ln(), 1.5))
-                .abs()
+            (Latency::Weibull.surv_inv(0.5, 2f64.ln(), 1.5)
+                - Latency::Weibull.median(2f64.ln(), 1.5))
+            .abs()
                 < 1e-12
         );
         // ∫₀ʰ S_u: closed forms against composite quadrature.
@@ -303,7 +305,10 @@ mod tests {
                 let s = lat.surv_log(lt, ls, k);
                 let f = lat.cdf_log(lt, ls, k);
                 assert!((s + f - 1.0).abs() < 1e-14, "{lat:?}");
-                assert!((lat.ln_cdf(lt, ls, k) - f.ln()).abs() < 1e-10, "{lat:?} {lt}");
+                assert!(
+                    (lat.ln_cdf(lt, ls, k) - f.ln()).abs() < 1e-10,
+                    "{lat:?} {lt}"
+                );
                 assert!(
                     (lat.ln_cum_hazard(lt, ls, k) - (-s.ln()).ln()).abs() < 1e-9,
                     "{lat:?} {lt}"
@@ -311,7 +316,10 @@ mod tests {
             }
             // Far in the lower tail S_u rounds to 1 but ln H_u is finite and near
             // ln F_u (H = F + O(F²)).
-            let (a, b) = (lat.ln_cum_hazard(-60.0, 0.0, 1.5), lat.ln_cdf(-60.0, 0.0, 1.5));
+            let (a, b) = (
+                lat.ln_cum_hazard(-60.0, 0.0, 1.5),
+                lat.ln_cdf(-60.0, 0.0, 1.5),
+            );
             assert!(a.is_finite() && (a - b).abs() < 1e-6, "{lat:?} {a} {b}");
         }
         // ln Φ(−40) = −804.608442013754 (mpmath 1.4.1: log(ncdf(-40)) at 30 digits).

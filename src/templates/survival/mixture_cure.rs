@@ -73,9 +73,10 @@ pub static INFO: TemplateInfo = TemplateInfo {
 };
 
 /// The quantity table (the catalogue lists it in this order).
-static QUANTITIES: [QuantityDef<SurvQuantity>; 13] = {
-    use SurvQuantity::*;
-    [
+static QUANTITIES: [QuantityDef<SurvQuantity>; 13] =
+    {
+        use SurvQuantity::*;
+        [
         CureFraction.def("cure_fraction", "fraction cured, π", "profile (optional)"),
         SurvivalProb.def(
             "survival_prob",
@@ -130,7 +131,7 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 13] = {
             "profiles = [a, b]",
         ),
     ]
-};
+    };
 
 fn build(ctx: &Ctx) -> Result<Box<dyn Model>> {
     build_survival(ctx, &INFO, &QUANTITIES, Cure::Mixture)

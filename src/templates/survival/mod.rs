@@ -51,8 +51,8 @@ use latency::{gauss, LATENCIES};
 
 use super::quantity::lookup;
 use super::{
-    At, BaseDraws, BrmsLayout, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request,
-    TemplateInfo,
+    At, BaseDraws, BrmsLayout, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef,
+    Request, TemplateInfo,
 };
 use crate::error::{choice_hint, Result};
 use crate::input::raw::RawBelief;
@@ -340,7 +340,10 @@ pub(crate) fn build(
                  Weibull and exponential latencies)"
             ));
             return Err(ctx
-                .err(&mp("covariates"), format!("covariate `{c}` has no effect prior"))
+                .err(
+                    &mp("covariates"),
+                    format!("covariate `{c}` has no effect prior"),
+                )
                 .with_hint(format!("add {hint}")));
         }
         cure_effects.push(if has_ce {
@@ -537,8 +540,7 @@ impl Survival {
     /// ln h; `constant`: no horizon, the ratio does not depend on t).
     #[inline]
     fn ln_hazard(&self, q: SurvQuantity, c: f64, ls: f64, k: f64, lh: f64, constant: bool) -> f64 {
-        let latency_only =
-            q == SurvQuantity::LatencyHazardRatio || self.cure_kind == Cure::None;
+        let latency_only = q == SurvQuantity::LatencyHazardRatio || self.cure_kind == Cure::None;
         if constant {
             if latency_only {
                 // PH latency: ln H_u(t) = k(ln t − ln λ); the ratio is the same at t = 1.
@@ -575,7 +577,10 @@ impl Survival {
     fn horizon(&self, ctx: &Ctx, path: &[Seg], v: &toml::Value) -> Result<f64> {
         let h = ctx.num(path, v)?;
         if h <= 0.0 {
-            return Err(ctx.err(path, format!("horizon {h} must be > 0 ({})", self.time_unit)));
+            return Err(ctx.err(
+                path,
+                format!("horizon {h} must be > 0 ({})", self.time_unit),
+            ));
         }
         Ok(h)
     }
@@ -836,7 +841,13 @@ impl Model for Survival {
 
 impl Survival {
     /// A readable label: the quantity, its horizon and profiles.
-    fn label(&self, q: SurvQuantity, quantity: &str, horizon: Option<f64>, names: &[String]) -> String {
+    fn label(
+        &self,
+        q: SurvQuantity,
+        quantity: &str,
+        horizon: Option<f64>,
+        names: &[String],
+    ) -> String {
         use SurvQuantity::*;
         let unit = &self.time_unit;
         let at = |h: Option<f64>| h.map_or(String::new(), |h| format!(" at {h} {unit}"));

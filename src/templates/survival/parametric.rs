@@ -57,10 +57,18 @@ pub static INFO: TemplateInfo = TemplateInfo {
 static QUANTITIES: [QuantityDef<SurvQuantity>; 9] = {
     use SurvQuantity::*;
     [
-        SurvivalProb.def("survival_prob", "P(event-free at horizon) = S(h)", "horizon"),
+        SurvivalProb.def(
+            "survival_prob",
+            "P(event-free at horizon) = S(h)",
+            "horizon",
+        ),
         EventProb.def("event_prob", "P(event by horizon) = 1 − S(h)", "horizon"),
         MedianSurvival.def("median_survival", "median survival", "profile (optional)"),
-        Rmst.def("rmst", "restricted mean survival time to horizon", "horizon"),
+        Rmst.def(
+            "rmst",
+            "restricted mean survival time to horizon",
+            "horizon",
+        ),
         HazardRatio.def(
             "hazard_ratio",
             "hazard ratio a vs b; for lognormal/loglogistic H_a(h)/H_b(h), H = −ln S",
@@ -76,7 +84,11 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 9] = {
             "rmst at a minus at b",
             "profiles = [a, b], horizon",
         ),
-        RmstRatio.def("rmst_ratio", "rmst at a / at b", "profiles = [a, b], horizon"),
+        RmstRatio.def(
+            "rmst_ratio",
+            "rmst at a / at b",
+            "profiles = [a, b], horizon",
+        ),
         MedianRatio.def("median_ratio", "median at a / at b", "profiles = [a, b]"),
     ]
 };

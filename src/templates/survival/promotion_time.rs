@@ -32,7 +32,10 @@ pub static INFO: TemplateInfo = TemplateInfo {
             "log of the scale of the promotion-time distribution F, in time_unit",
         ),
         ("shape", "shape of F (not for exponential)"),
-        ("theta_effect_<c>", "effect of covariate c on log θ (log hazard ratio)"),
+        (
+            "theta_effect_<c>",
+            "effect of covariate c on log θ (log hazard ratio)",
+        ),
         (
             "latency_effect_<c>",
             "effect of covariate c on log_scale (log time ratio of F)",

@@ -8,7 +8,12 @@ use crate::spec::{parse, Overrides, Spec};
 /// values, and the base columns (one per prior, in prior order).
 fn draws(text: &str) -> (Spec, Vec<Vec<f64>>, Vec<Vec<f64>>) {
     let spec = parse(text, None, &Overrides::default()).unwrap();
-    let h: Vec<f64> = spec.model.hypers().iter().map(|x| x.default_value()).collect();
+    let h: Vec<f64> = spec
+        .model
+        .hypers()
+        .iter()
+        .map(|x| x.default_value())
+        .collect();
     let base = spec
         .model
         .draw_base(spec.draws, &crate::rng::Plan::fit(spec.seed, spec.points));
@@ -193,7 +198,11 @@ fn hazard_ratio_needs_a_horizon_when_it_changes_with_time() {
     // A log-normal AFT effect: the ratio of cumulative hazards differs with t.
     let extra = [hr(Some(1.0)), hr(Some(100.0))].concat();
     let (_, out, _) = draws(&parametric("lognormal", "latency_effect", &extra));
-    let differ = out[1].iter().zip(&out[2]).filter(|(a, b)| (*a - *b).abs() > 1e-3).count();
+    let differ = out[1]
+        .iter()
+        .zip(&out[2])
+        .filter(|(a, b)| (*a - *b).abs() > 1e-3)
+        .count();
     assert!(differ > out[1].len() / 2, "{differ}");
 }
 
@@ -263,7 +272,11 @@ quantiles = { "0.1" = 0.5, "0.5" = 0.7, "0.9" = 0.9 }
         let sa = pa + (1.0 - pa) * (-hb * b.exp()).exp();
         let sb = pb + (1.0 - pb) * (-hb).exp();
         let want = sa.ln() / sb.ln();
-        assert!((out[2][i] - want).abs() < 1e-9 * want, "{i}: {} {want}", out[2][i]);
+        assert!(
+            (out[2][i] - want).abs() < 1e-9 * want,
+            "{i}: {} {want}",
+            out[2][i]
+        );
     }
 }
 
@@ -293,15 +306,60 @@ fn rmst_differences_against_scipy_quadrature() {
     // (model, latency, (c_a, λ_a), (c_b, λ_b), k, h, RMST_a − RMST_b, tolerance)
     let cases = [
         // promotion time, Weibull F: θ = 1.2 vs 0.8.
-        (Cure::PromotionTime, Latency::Weibull, (1.2, 12.0), (0.8, 12.0), 1.3, 36.0, -4.515931556810187, 1e-4),
+        (
+            Cure::PromotionTime,
+            Latency::Weibull,
+            (1.2, 12.0),
+            (0.8, 12.0),
+            1.3,
+            36.0,
+            -4.515931556810187,
+            1e-4,
+        ),
         // promotion time, log-normal F (sdlog 1/1.5): θ = 1.5 vs 0.9.
-        (Cure::PromotionTime, Latency::LogNormal, (1.5, 9.0), (0.9, 9.0), 1.5, 30.0, -4.531747739349088, 1e-4),
+        (
+            Cure::PromotionTime,
+            Latency::LogNormal,
+            (1.5, 9.0),
+            (0.9, 9.0),
+            1.5,
+            30.0,
+            -4.531747739349088,
+            1e-4,
+        ),
         // mixture cure, log-normal latency: π = 0.3, λ = 15 vs π = 0.2, λ = 10.
-        (Cure::Mixture, Latency::LogNormal, (0.3, 15.0), (0.2, 10.0), 1.5, 24.0, 3.97673131640072, 1e-4),
+        (
+            Cure::Mixture,
+            Latency::LogNormal,
+            (0.3, 15.0),
+            (0.2, 10.0),
+            1.5,
+            24.0,
+            3.97673131640072,
+            1e-4,
+        ),
         // mixture cure, Weibull latency (closed form): π = 0.25, λ = 18 vs 0.15, 12.
-        (Cure::Mixture, Latency::Weibull, (0.25, 18.0), (0.15, 12.0), 0.9, 48.0, 7.155436005067287, 1e-9),
+        (
+            Cure::Mixture,
+            Latency::Weibull,
+            (0.25, 18.0),
+            (0.15, 12.0),
+            0.9,
+            48.0,
+            7.155436005067287,
+            1e-9,
+        ),
         // parametric log-logistic: λ = 20 vs 14.
-        (Cure::None, Latency::LogLogistic, (0.0, 20.0), (0.0, 14.0), 2.0, 36.0, 4.475285916299914, 1e-6),
+        (
+            Cure::None,
+            Latency::LogLogistic,
+            (0.0, 20.0),
+            (0.0, 14.0),
+            2.0,
+            36.0,
+            4.475285916299914,
+            1e-6,
+        ),
     ];
     for (kind, lat, (ca, la), (cb, lb), k, h, want, tol) in cases {
         let m = fixed(kind, lat);
