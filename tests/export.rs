@@ -845,6 +845,38 @@ fn survival_cases() -> Vec<(&'static str, String)> {
             ),
         ),
         (
+            "mixture-gengamma-aft",
+            survival_spec(
+                "mixture-cure",
+                "gengamma",
+                &[
+                    "[prior.cure_logit]\nfamily = \"normal\"\nmean = -1.0\nsd = 0.4\n",
+                    LOG_SCALE,
+                    SHAPE,
+                    &eff("latency_effect_arm"),
+                ]
+                .concat(),
+                SURV_BELIEF,
+            )
+            .replace("\"gengamma\"", "\"gengamma\"\ngengamma_q = -0.5"),
+        ),
+        (
+            "promotion-gengamma-aft",
+            survival_spec(
+                "promotion-time-cure",
+                "gengamma",
+                &[
+                    "[prior.log_theta]\nfamily = \"normal\"\nmean = 0.3\nsd = 0.3\n",
+                    LOG_SCALE,
+                    SHAPE,
+                    &eff("latency_effect_arm"),
+                ]
+                .concat(),
+                SURV_BELIEF,
+            )
+            .replace("\"gengamma\"", "\"gengamma\"\ngengamma_q = 0.8"),
+        ),
+        (
             "parametric-exponential-ph",
             survival_spec(
                 "parametric-survival",

@@ -12,6 +12,10 @@
 //! * Weibull:      ln S_u = −e^z,            ln f_u = ln k − ln t + z − e^z
 //! * log-normal:   ln S_u = ln Φ(−z),        ln f_u = ln φ(z) + ln k − ln t
 //! * log-logistic: ln S_u = −ln(1 + e^z),    ln f_u = ln k − ln t + z − 2 ln(1 + e^z)
+//! * generalised gamma (Prentice's Q, a = Q⁻², u = a·e^{Qz}; Prentice 1974,
+//!   Biometrika 61): ln S_u = ln Q(a, u) for Q > 0, ln P(a, u) for Q < 0
+//!   (regularised incomplete gammas), ln f_u = ln|Q| + ln k − ln t + a ln u − u − ln Γ(a);
+//!   for |Q| < 0.01 the log-normal lines (as the fit computes it)
 //!
 //! and the contribution of one patient (δ = event) is
 //! * mixture cure, π = logistic(η):  δ·(ln(1 − π) + ln f_u) + (1 − δ)·ln(π + (1 − π)S_u)
@@ -25,7 +29,9 @@
 //! and `about`, `args`, `model` for PyMC; `locals` lists the local names the
 //! code uses (the exporters check that no parameter or covariate takes one).
 
+use super::latency::GG_Q_EPS;
 use super::{Cure, Effect, Latency, Survival};
+use crate::numerics::format::code as code_num;
 use crate::templates::Code;
 use std::collections::BTreeMap;
 
@@ -70,7 +76,23 @@ impl Survival {
     /// The comment lines every export states.
     fn about_lines(&self) -> Vec<String> {
         let unit = &self.time_unit;
+        let gg;
         let lat = match self.latency {
+            Latency::GenGamma(q) if q.abs() < GG_Q_EPS => {
+                gg = format!(
+                    "generalised gamma latency with Q = {} < {GG_Q_EPS} in absolute value, computed as its log-normal limit: S_u(t) = 1 - Phi(shape * (log t - log lambda)) (sdlog = 1/shape)",
+                    code_num(q)
+                );
+                gg.as_str()
+            }
+            Latency::GenGamma(q) => {
+                gg = format!(
+                    "generalised gamma latency (Prentice 1974), Q = {}, sigma = 1/shape, mu = log lambda: a = 1/Q^2, u = a exp(Q shape (log t - log lambda)), S_u(t) = {}",
+                    code_num(q),
+                    if q > 0.0 { "gamma_q(a, u)" } else { "gamma_p(a, u)" }
+                );
+                gg.as_str()
+            }
             Latency::Weibull => "Weibull latency: S_u(t) = exp(-(t/lambda)^shape)",
             Latency::Exponential => "exponential latency: S_u(t) = exp(-t/lambda)",
             Latency::LogNormal => {
@@ -121,11 +143,26 @@ impl Survival {
         let mut stan: BTreeMap<String, Vec<String>> = BTreeMap::new();
         stan.insert("about".into(), self.about_lines());
         let (surv, dens) = match self.latency {
+            Latency::GenGamma(q) if q.abs() >= GG_Q_EPS => {
+                let head = format!(
+                    "real Q = {};\n    real a = inv_square(Q);\n    real lu = log(a) + Q * shape * (log(t) - ls);",
+                    code_num(q)
+                );
+                (
+                    format!(
+                        "{head}\n    return log({}(a, exp(lu)));",
+                        if q > 0.0 { "gamma_q" } else { "gamma_p" }
+                    ),
+                    format!(
+                        "{head}\n    return log(abs(Q)) + log(shape) - log(t) + a * lu - exp(lu) - lgamma(a);"
+                    ),
+                )
+            }
             Latency::Weibull | Latency::Exponential => (
                 "return -exp(shape * (log(t) - ls));".to_string(),
                 "real z = shape * (log(t) - ls);\n    return log(shape) - log(t) + z - exp(z);".to_string(),
             ),
-            Latency::LogNormal => (
+            Latency::LogNormal | Latency::GenGamma(_) => (
                 "return std_normal_lccdf(shape * (log(t) - ls));".to_string(),
                 "return std_normal_lpdf(shape * (log(t) - ls)) + log(shape) - log(t);".to_string(),
             ),
@@ -138,10 +175,12 @@ impl Survival {
         let mut funcs = vec![
             "// ln S_u(t) and ln f_u(t) of the latency, ls = ln lambda.".to_string(),
             "real latency_log_surv(real t, real ls, real shape) {".into(),
-            format!("  {surv}"),
+            String::new(),
             "}".into(),
             "real latency_log_dens(real t, real ls, real shape) {".into(),
         ];
+        // A multi-line ln S_u body replaces the one-line placeholder.
+        funcs.splice(2..3, surv.lines().map(|l| format!("  {}", l.trim_start())));
         funcs.extend(dens.lines().map(|l| format!("  {}", l.trim_start())));
         funcs.push("}".into());
         stan.insert("functions".into(), funcs);
@@ -225,13 +264,25 @@ impl Survival {
             format!("z = {k} * (pt.log(time) - ls)"),
         ];
         match self.latency {
+            Latency::GenGamma(q) if q.abs() >= GG_Q_EPS => {
+                m.push(format!("gg_q = {}", code_num(q)));
+                m.push("gg_a = 1.0 / gg_q**2".into());
+                m.push("log_u = pt.log(gg_a) + gg_q * z".into());
+                m.push(format!(
+                    "log_surv = pt.log(pt.{}(gg_a, pt.exp(log_u)))",
+                    if q > 0.0 { "gammaincc" } else { "gammainc" }
+                ));
+                m.push(format!(
+                    "log_dens = pt.log(abs(gg_q)) + pt.log({k}) - pt.log(time) + gg_a * log_u - pt.exp(log_u) - pt.gammaln(gg_a)"
+                ));
+            }
             Latency::Weibull | Latency::Exponential => {
                 m.push("log_surv = -pt.exp(z)".into());
                 m.push(format!(
                     "log_dens = pt.log({k}) - pt.log(time) + z - pt.exp(z)"
                 ));
             }
-            Latency::LogNormal => {
+            Latency::LogNormal | Latency::GenGamma(_) => {
                 m.push("log_surv = pm.logcdf(pm.Normal.dist(0.0, 1.0), -z)".into());
                 m.push(format!(
                     "log_dens = pm.logp(pm.Normal.dist(0.0, 1.0), z) + pt.log({k}) - pt.log(time)"
@@ -279,6 +330,9 @@ impl Survival {
                 "log_cure",
                 "log_uncured",
                 "loglik",
+                "gg_q",
+                "gg_a",
+                "log_u",
                 "make_model",
             ]
             .map(String::from)

@@ -222,6 +222,48 @@ pub(crate) fn build(
             })?
         }
     };
+    let latency = match (latency, m.get("gengamma_q")) {
+        (Latency::GenGamma(_), None) => {
+            return Err(ctx
+                .err(
+                    &mp("latency"),
+                    "latency = \"gengamma\" needs [model] gengamma_q (Prentice's Q)",
+                )
+                .with_hint(format!(
+                    "add e.g. gengamma_q = 0.5 (Q = 1: Weibull, Q → 0: log-normal; |Q| ≤ {})",
+                    latency::GG_Q_MAX
+                )))
+        }
+        (Latency::GenGamma(_), Some(v)) => {
+            let q = match v {
+                toml::Value::Float(x) => *x,
+                toml::Value::Integer(i) => *i as f64,
+                _ => {
+                    return Err(ctx.err(&mp("gengamma_q"), format!("expected a number, found {v}")))
+                }
+            };
+            if !(q.abs() <= latency::GG_Q_MAX) {
+                return Err(ctx
+                    .err(
+                        &mp("gengamma_q"),
+                        format!("gengamma_q = {v} is outside [-{0}, {0}]", latency::GG_Q_MAX),
+                    )
+                    .with_hint(
+                        "beyond |Q| = 3 the incomplete gamma of shape Q⁻² is slow and inaccurate",
+                    ));
+            }
+            Latency::GenGamma(q)
+        }
+        (l, Some(_)) => {
+            return Err(ctx
+                .err(
+                    &mp("gengamma_q"),
+                    format!("gengamma_q given but latency = \"{}\"", l.name()),
+                )
+                .with_hint("remove gengamma_q, or set latency = \"gengamma\""))
+        }
+        (l, None) => l,
+    };
     let time_unit = match m.get("time_unit") {
         Some(v) => ctx.string(&mp("time_unit"), v)?.to_string(),
         None => "months".to_string(),
@@ -374,7 +416,7 @@ pub(crate) fn build(
                             format!(
                                 "a hazard effect needs a proportional-hazards latency; \
                                  {} is not one",
-                                LATENCIES[latency as usize]
+                                latency.name()
                             ),
                         )
                         .with_hint(format!(

@@ -37,7 +37,11 @@ pub static INFO: TemplateInfo = TemplateInfo {
         ("template", "\"parametric-survival\""),
         (
             "latency",
-            "weibull | exponential | lognormal | loglogistic (default weibull)",
+            "weibull | exponential | lognormal | loglogistic | gengamma (default weibull)",
+        ),
+        (
+            "gengamma_q",
+            "Prentice's Q of the gengamma latency, |Q| ≤ 3 (1: Weibull, → 0: log-normal)",
         ),
         (
             "time_unit",

@@ -50,7 +50,11 @@ pub static INFO: TemplateInfo = TemplateInfo {
         ("template", "\"promotion-time-cure\""),
         (
             "latency",
-            "distribution F: weibull | exponential | lognormal | loglogistic (default weibull)",
+            "distribution F: weibull | exponential | lognormal | loglogistic | gengamma (default weibull)",
+        ),
+        (
+            "gengamma_q",
+            "Prentice's Q of the gengamma latency, |Q| ≤ 3 (1: Weibull, → 0: log-normal)",
         ),
         (
             "time_unit",
