@@ -315,7 +315,26 @@ impl Latency {
 /// w at which the generalised gamma's S_u falls to s (|Q| ≥ [`GG_Q_EPS`]): a
 /// root of ln S_u(w) − ln s, decreasing in w, bracketed outward from the
 /// log-normal's w = Φ⁻¹(1 − s).
+///
+/// w depends on (Q, s) only, not on the draw: the last answer is kept per thread
+/// (medians ask for s = ½ draw after draw; deterministic, so thread counts do not
+/// change any number).
 fn gg_surv_inv(q: f64, s: f64) -> f64 {
+    use std::cell::Cell;
+    thread_local! {
+        static LAST: Cell<(u64, u64, f64)> = const { Cell::new((u64::MAX, u64::MAX, f64::NAN)) };
+    }
+    let key = (q.to_bits(), s.to_bits());
+    let (kq, ks, w) = LAST.with(Cell::get);
+    if (kq, ks) == key {
+        return w;
+    }
+    let w = gg_surv_inv_solve(q, s);
+    LAST.with(|c| c.set((key.0, key.1, w)));
+    w
+}
+
+fn gg_surv_inv_solve(q: f64, s: f64) -> f64 {
     if s.is_nan() || s <= 0.0 {
         return if s == 0.0 { f64::INFINITY } else { f64::NAN };
     }
