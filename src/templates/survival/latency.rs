@@ -480,7 +480,7 @@ mod tests {
         // mapped as a = Q⁻², c = Q/σ, scale = e^μ·(Q²)^(σ/Q) (Q ≠ 0; negative Q
         // allowed): ppf(0.1), ppf(0.5), ppf(0.9) and sf(e^μ). Ours: μ = ln λ,
         // σ = 1/k, the p-quantile is the time at which S_u = 1 − p.
-        let cases: [((f64, f64, f64), [f64; 3], f64); 6] = [
+        let cases = [
             (
                 (1.0, 0.7, 0.5),
                 [0.850831971821339, 2.4114834979251865, 5.574023714206105],

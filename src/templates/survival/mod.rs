@@ -242,7 +242,7 @@ pub(crate) fn build(
                     return Err(ctx.err(&mp("gengamma_q"), format!("expected a number, found {v}")))
                 }
             };
-            if !(q.abs() <= latency::GG_Q_MAX) {
+            if q.is_nan() || q.abs() > latency::GG_Q_MAX {
                 return Err(ctx
                     .err(
                         &mp("gengamma_q"),
