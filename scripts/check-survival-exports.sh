@@ -26,15 +26,24 @@ cargo build --release -q
 BIN=target/release/priorsmith
 OUT=$(mktemp -d /tmp/priorsmith-survival-XXXX)
 "$PY" -c "import stan, pymc, scipy, httpstan; print('pystan', stan.__version__ if hasattr(stan, '__version__') else '?', 'httpstan', httpstan.__version__, 'pymc', pymc.__version__, 'scipy', scipy.__version__)"
+# The parametric starter with a generalised gamma latency (Prentice's Q = -0.4, AFT
+# effect, hazard ratio at 12 months), as in tests/survival.rs.
+GG="$OUT/parametric-gengamma.toml"
+sed -e 's/latency = "weibull".*/latency = "gengamma"\ngengamma_q = -0.4/' \
+    -e 's/\[prior.hazard_effect_arm\]/[prior.latency_effect_arm]/' \
+    -e 's/mean = { fit = \[-1.5, 1.0\] }/mean = { fit = [-1.0, 1.5] }/' \
+    -e 's/quantity = "hazard_ratio".*/quantity = "hazard_ratio"\nhorizon = 12/' \
+    model-templates/parametric-survival.toml > "$GG"
 for spec in model-templates/mixture-cure.toml model-templates/promotion-time-cure.toml \
-            model-templates/parametric-survival.toml demo-data/two-arm-hazard-ratio.toml; do
+            model-templates/parametric-survival.toml demo-data/two-arm-hazard-ratio.toml "$GG"; do
   name=$(basename "$spec" .toml)
   "$BIN" fit "$spec" --out "$OUT/$name" --quiet
   "$BIN" export "$OUT/$name" --to stan --with-likelihood --out "$OUT/$name/model.stan" --quiet
   "$BIN" export "$OUT/$name" --to pymc --with-likelihood --out "$OUT/$name/model.py" --quiet
   "$BIN" export "$OUT/$name" --to brms --out "$OUT/$name/priors.R" --quiet
   # httpstan writes build files into the working folder: run from $OUT.
-  (cd "$OUT" && "$PY" "$ROOT/scripts/check_survival_exports.py" "$OUT/$name" "$ROOT/$spec" \
+  if [[ "$spec" = /* ]]; then sp="$spec"; else sp="$ROOT/$spec"; fi
+  (cd "$OUT" && "$PY" "$ROOT/scripts/check_survival_exports.py" "$OUT/$name" "$sp" \
       "$OUT/$name/model.stan" "$OUT/$name/model.py")
 done
 if command -v Rscript >/dev/null && Rscript -e 'library(brms)' >/dev/null 2>&1; then
