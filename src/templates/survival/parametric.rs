@@ -19,7 +19,7 @@ use crate::templates::{Model, QuantityDef, TemplateInfo};
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "parametric-survival",
-    about: "parametric survival without a cured fraction (weibull, exponential, lognormal, loglogistic)",
+    about: "parametric survival without a cured fraction (weibull, exponential, lognormal, loglogistic, gengamma)",
     parameters: &[
         ("log_scale", "log of the time scale, in time_unit"),
         ("shape", "shape (not for exponential)"),
