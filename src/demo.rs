@@ -17,6 +17,10 @@ pub static SCENARIOS: &[Scenario] = &[
         text: include_str!("../demo-data/two-arm-cure.toml"),
     },
     Scenario {
+        name: "two-arm-hazard-ratio",
+        text: include_str!("../demo-data/two-arm-hazard-ratio.toml"),
+    },
+    Scenario {
         name: "wide-design-r2",
         text: include_str!("../demo-data/wide-design-r2.toml"),
     },

@@ -6,8 +6,15 @@ use priorsmith::export::{self, Lang};
 use priorsmith::output;
 use std::path::Path;
 
-pub fn run(dir: &Path, to: Lang, out: Option<&Path>, quiet: bool, require_met: bool) -> Result<()> {
-    let text = export::export_dir(dir, to)?;
+pub fn run(
+    dir: &Path,
+    to: Lang,
+    out: Option<&Path>,
+    likelihood: bool,
+    quiet: bool,
+    require_met: bool,
+) -> Result<()> {
+    let text = export::export_dir_with(dir, to, likelihood)?;
     // The code carries the verdict as a comment only: say it where it is seen.
     let rec = priorsmith::fit::record::read(&dir.join("fit.json"))?;
     let what = format!("export of {}", dir.display());

@@ -186,6 +186,10 @@ pub enum Command {
         /// Write to FILE (atomically) instead of standard output.
         #[arg(long, short)]
         out: Option<PathBuf>,
+        /// Write a complete model: the template's likelihood (right-censored, in
+        /// our parameterisation) with the prior (survival templates; stan, pymc).
+        #[arg(long)]
+        with_likelihood: bool,
     },
     /// Write DIR/report.html (and DIR/plots/*.svg) from DIR/fit.json and DIR/draws.csv.
     Report {
@@ -356,9 +360,19 @@ pub fn run(cli: Cli) -> Result<()> {
             force,
         } => cmd_new(&template, out.as_deref(), force, quiet),
         Command::Demo { out } => cmd_demo(&out, quiet, require_met, &mem_only),
-        Command::Export { dir, to, out } => {
-            export::run(&dir, to.into(), out.as_deref(), quiet, require_met)
-        }
+        Command::Export {
+            dir,
+            to,
+            out,
+            with_likelihood,
+        } => export::run(
+            &dir,
+            to.into(),
+            out.as_deref(),
+            with_likelihood,
+            quiet,
+            require_met,
+        ),
         Command::Report { dir } => report::run(&dir, quiet),
         Command::Sweep {
             spec,

@@ -10,6 +10,9 @@
 //! brms rejects non-linear parameter names containing dots or underscores
 //! (brms `bf()` validation; its tests expect "not contain dots or underscores"),
 //! so `cure_logit` becomes `cureLogit`, and the export says so.
+//! A parameter whose brms name is one of brms's distributional parameters
+//! (`shape`, `sigma`, `nu`, …; [`DPARS`]) gets the prefix `nl` (`shape` →
+//! `nlShape`): brms would read `shape ~ 1` as the family's own shape.
 //! A family written on another scale (logit-normal, log-logistic) gets a helper
 //! nlpar (`pLogit`) and a comment `p is inv_logit(pLogit): write inv_logit(pLogit) for it in
 //! the non-linear formula`.
@@ -28,6 +31,34 @@ pub const RESERVED: &[&str] = &[
     "if", "else", "repeat", "while", "function", "for", "next", "break", "TRUE", "FALSE", "NULL",
     "Inf", "NaN", "NA", "in",
 ];
+
+/// Names brms gives its own distributional parameters (brms documentation,
+/// `brmsformula`, "Parameterization of the response distribution"; from memory:
+/// the common ones). A non-linear parameter named like one is read as that
+/// distributional parameter: `bf(y ~ …, shape ~ 1, nl = TRUE)` with
+/// `family = weibull()` makes `shape` Weibull's own shape, and validate_prior
+/// rejects a `nlpar = "shape"` prior ("do not correspond to any model parameter").
+pub const DPARS: &[&str] = &[
+    "mu", "sigma", "shape", "nu", "phi", "kappa", "beta", "zi", "hu", "zoi", "coi", "disc", "bs",
+    "ndt", "bias", "xi", "alpha", "quantile", "theta", "lambda",
+];
+
+/// The brms name of a parameter: `cure_logit` → `cureLogit` (brms forbids `_`
+/// and `.` in nlpar names), and a name brms keeps for a distributional
+/// parameter gets the prefix `nl`: `shape` → `nlShape` ([`DPARS`]).
+pub fn brms_name(name: &str) -> String {
+    let n = nlpar_name(name);
+    if DPARS.contains(&n.as_str()) {
+        let mut c = n.chars();
+        let first = c
+            .next()
+            .map(|f| f.to_uppercase().collect::<String>())
+            .unwrap_or_default();
+        format!("nl{first}{}", c.as_str())
+    } else {
+        n
+    }
+}
 
 /// `cure_logit` → `cureLogit` (brms forbids `_` and `.` in nlpar names).
 pub fn nlpar_name(name: &str) -> String {
@@ -55,10 +86,17 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
             Item::Scalar(s) => {
                 check_ident(&s.parameter, Lang::Brms, RESERVED)?;
                 let f = from_family(s, "brms", &s.family.forms.brms)?;
-                let nl = nlpar_name(&f.sampled);
+                // A brms class of its own keeps its name; a non-linear parameter
+                // must not take a distributional parameter's.
+                let rename = if layout.class(&s.parameter).is_some() {
+                    nlpar_name
+                } else {
+                    brms_name
+                };
+                let nl = rename(&f.sampled);
                 names.push(nl.clone());
                 let mut comments = Vec::new();
-                let target = nlpar_name(&s.parameter);
+                let target = rename(&s.parameter);
                 if !s.about.is_empty() {
                     comments.push(format!("{}: {}", s.parameter, s.about));
                 }
@@ -73,6 +111,12 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                     ));
                 } else if nl != s.parameter {
                     comments.push(format!("nlpar {nl} is the parameter {}", s.parameter));
+                    if nl != nlpar_name(&s.parameter) {
+                        comments.push(format!(
+                            "(renamed: brms reads `{}` as its own distributional parameter)",
+                            s.parameter
+                        ));
+                    }
                 }
                 // A parameter the template names as a brms class of its own (a
                 // prior on another scale stays a non-linear parameter): no bounds.
@@ -158,6 +202,10 @@ mod tests {
     fn nlpar_names_have_no_underscores() {
         assert_eq!(super::nlpar_name("cure_logit"), "cureLogit");
         assert_eq!(super::nlpar_name("shape"), "shape");
+        // brms's own distributional parameters are renamed (the Weibull `shape` clash).
+        assert_eq!(super::brms_name("shape"), "nlShape");
+        assert_eq!(super::brms_name("sigma"), "nlSigma");
+        assert_eq!(super::brms_name("log_scale"), "logScale");
         assert_eq!(
             super::nlpar_name("cure_effect_arm_logit"),
             "cureEffectArmLogit"

@@ -144,10 +144,59 @@ pub fn render(rec: &FitRecord, lang: Lang) -> Result<String> {
     }
 }
 
+/// A template's likelihood sections for one language (section → lines).
+pub type Sections = BTreeMap<String, Vec<String>>;
+
+/// Render `rec` in `lang` as a complete model: the template's likelihood (with
+/// right censoring, in our parameterisation; `fit.json` key `likelihood`) and
+/// the fitted prior. Stan and PyMC only; brms has no mixture-cure or
+/// promotion-time family, and its own Weibull is parameterised by its mean,
+/// so it is refused with the reason (the brms prior export stays available).
+pub fn render_complete(rec: &FitRecord, lang: Lang) -> Result<String> {
+    let lik = |l: Lang| {
+        rec.fit
+            .likelihood
+            .as_ref()
+            .and_then(|c| c.get(l.name()))
+            .ok_or_else(|| {
+                unsupported(format!(
+                    "template {} supplies no {} likelihood: export the prior alone (without \
+                     --with-likelihood)",
+                    rec.header.template,
+                    l.name()
+                ))
+            })
+    };
+    match lang {
+        Lang::Stan => stan::render_with(&rec.header, &rec.items, Some(lik(lang)?)),
+        Lang::Pymc => pymc::render_with(&rec.header, &rec.items, Some(lik(lang)?)),
+        Lang::Brms => Err(unsupported(
+            "--with-likelihood is not available for brms: brms has no mixture-cure or \
+             promotion-time family, and its weibull() family is parameterised by the mean \
+             (mu = lambda * Gamma(1 + 1/shape)), not by our scale; export --to stan or --to \
+             pymc for a complete model, or --to brms without --with-likelihood for the priors",
+        )),
+        Lang::Json => Err(unsupported(
+            "--with-likelihood writes model code: use --to stan or --to pymc",
+        )),
+    }
+}
+
 /// Read `dir/fit.json` and render its prior in `lang`.
 pub fn export_dir(dir: &Path, lang: Lang) -> Result<String> {
     let rec = record::read(&dir.join("fit.json"))?;
     render(&rec, lang)
+}
+
+/// Read `dir/fit.json` and render it in `lang`, with the template's likelihood
+/// when `likelihood` is set ([`render_complete`]).
+pub fn export_dir_with(dir: &Path, lang: Lang, likelihood: bool) -> Result<String> {
+    let rec = record::read(&dir.join("fit.json"))?;
+    if likelihood {
+        render_complete(&rec, lang)
+    } else {
+        render(&rec, lang)
+    }
 }
 
 pub use crate::numerics::format::code as num;

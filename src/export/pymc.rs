@@ -7,7 +7,7 @@
 //! renders it. A family that declares no PyMC form is a clear error.
 
 use super::stan::no_form;
-use super::{check_ident, check_unique, header_lines, num, Header, Item, Lang, Scalar};
+use super::{check_ident, check_unique, header_lines, num, Header, Item, Lang, Scalar, Sections};
 use crate::dist::forms::{Args, Form};
 use crate::error::Result;
 
@@ -56,6 +56,13 @@ fn statement(s: &Scalar) -> Result<(Vec<String>, Option<String>)> {
 }
 
 pub fn render(h: &Header, items: &[Item]) -> Result<String> {
+    render_with(h, items, None)
+}
+
+/// The prior, and with `likelihood` (the template's PyMC sections: `about`,
+/// `args`, `model`) a complete model: a function of the data arrays (`args`)
+/// returning the `pm.Model`, its likelihood after the priors.
+pub fn render_with(h: &Header, items: &[Item], likelihood: Option<&Sections>) -> Result<String> {
     let mut body = Vec::new();
     let mut names = Vec::new();
     for it in items {
@@ -78,7 +85,41 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
             }
         }
     }
+    let Some(lik) = likelihood else {
+        return prior_only(h, &names, body);
+    };
+    let args: Vec<String> = lik.get("args").cloned().unwrap_or_default();
+    for a in &args {
+        check_ident(a, Lang::Pymc, RESERVED)?;
+    }
+    names.extend(args.iter().cloned());
+    names.extend(["np", "pt"].map(String::from));
+    names.extend(lik.get("locals").into_iter().flatten().cloned());
     check_unique(&names, Lang::Pymc)?;
+    let mut out = String::new();
+    for l in header_lines(h, "PyMC") {
+        out.push_str(&format!("# {l}\n"));
+    }
+    for a in lik.get("about").into_iter().flatten() {
+        out.push_str(&format!("# {a}\n"));
+    }
+    out.push_str("import numpy as np\nimport pymc as pm\nimport pytensor.tensor as pt\n\n\n");
+    out.push_str(&format!("def make_model({}):\n", args.join(", ")));
+    out.push_str("    \"\"\"The fitted prior and the right-censored likelihood (see the comments above).\"\"\"\n");
+    for a in &args {
+        out.push_str(&format!("    {a} = np.asarray({a}, dtype=float)\n"));
+    }
+    out.push_str("    with pm.Model() as model:\n");
+    for l in body.iter().chain(lik.get("model").into_iter().flatten()) {
+        out.push_str(&format!("        {l}\n"));
+    }
+    out.push_str("    return model\n");
+    Ok(out)
+}
+
+/// The prior alone, inside a `with pm.Model()` context.
+fn prior_only(h: &Header, names: &[String], body: Vec<String>) -> Result<String> {
+    check_unique(names, Lang::Pymc)?;
     let mut out = String::new();
     for l in header_lines(h, "PyMC") {
         out.push_str(&format!("# {l}\n"));

@@ -11,7 +11,7 @@
 //! syntax and reuses [`from_family`] with the family's brms form.
 
 use super::{
-    check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar,
+    check_ident, check_unique, header_lines, num, unsupported, Header, Item, Lang, Scalar, Sections,
 };
 use crate::dist::forms::{Args, Form as Declared, StanFn};
 use crate::error::{Error, Result};
@@ -128,6 +128,13 @@ pub fn bounds(lower: Option<f64>, upper: Option<f64>) -> String {
 }
 
 pub fn render(h: &Header, items: &[Item]) -> Result<String> {
+    render_with(h, items, None)
+}
+
+/// The prior, and with `likelihood` (the template's Stan sections: `about`,
+/// `functions`, `data`, `model`) a complete program: its data names join the
+/// identifier checks, its likelihood follows the priors in `model`.
+pub fn render_with(h: &Header, items: &[Item], likelihood: Option<&Sections>) -> Result<String> {
     let (mut params, mut trans, mut model) = (Vec::new(), Vec::new(), Vec::new());
     let mut names = Vec::new();
     for it in items {
@@ -172,19 +179,52 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
             }
         }
     }
+    let section = |s: &str| -> Vec<String> {
+        likelihood
+            .and_then(|l| l.get(s))
+            .map(|v| v.iter().map(|l| format!("  {l}")).collect())
+            .unwrap_or_default()
+    };
+    if let Some(l) = likelihood {
+        names.extend(data_names(l.get("data")));
+        names.extend(l.get("locals").into_iter().flatten().cloned());
+    }
     check_unique(&names, Lang::Stan)?;
     let mut out = String::new();
     for l in header_lines(h, "Stan") {
         out.push_str(&format!("// {l}\n"));
     }
-    out.push_str("// Paste each block's lines into the same block of your Stan program.\n");
+    match likelihood {
+        None => {
+            out.push_str("// Paste each block's lines into the same block of your Stan program.\n")
+        }
+        Some(l) => {
+            for a in l.get("about").into_iter().flatten() {
+                out.push_str(&format!("// {a}\n"));
+            }
+            model.push(String::new());
+            model.extend(section("model"));
+        }
+    }
     let mut block = |name: &str, lines: &[String]| {
         if !lines.is_empty() {
             out.push_str(&format!("{name} {{\n{}\n}}\n", lines.join("\n")));
         }
     };
+    block("functions", &section("functions"));
+    block("data", &section("data"));
     block("parameters", &params);
     block("transformed parameters", &trans);
     block("model", &model);
     Ok(out)
+}
+
+/// The variable names a Stan `data` section declares (the word before `;`).
+fn data_names(lines: Option<&Vec<String>>) -> Vec<String> {
+    lines
+        .into_iter()
+        .flatten()
+        .filter_map(|l| l.split(';').next()?.split_whitespace().last())
+        .map(str::to_string)
+        .collect()
 }

@@ -94,6 +94,7 @@ pub fn assemble(spec: &Spec, p: Point, started: Instant) -> Result<FitResult> {
         optimiser: opt,
         wall_time_s: started.elapsed().as_secs_f64(),
         prior: spec.model.priors(&h),
+        likelihood: spec.model.likelihood(),
         tool_version: env!("CARGO_PKG_VERSION").to_string(),
         set_by: hy
             .iter()

@@ -15,7 +15,8 @@ use std::path::Path;
 /// Version of the fit.json layout. 1: the first round's files (no version key);
 /// 2: typed record with Monte Carlo errors, what set each hyperparameter, how
 /// the draws were chosen, and the tie-break as a tagged value; 3: the fit's
-/// `tolerance`.
+/// `tolerance` and, for the survival templates, the `likelihood` the exports
+/// write.
 pub const SCHEMA_VERSION: u32 = 3;
 
 /// An error at key `key` of fit.json `file`.

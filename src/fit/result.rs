@@ -125,6 +125,10 @@ pub struct FitResult {
     pub mc_error: BTreeMap<String, Option<f64>>,
     /// How the number of draws was chosen.
     pub draws_chosen: DrawsRecord,
+    /// The template's likelihood code (language → section → lines), for
+    /// `export --with-likelihood`; absent for templates that supply none.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub likelihood: Option<crate::templates::Code>,
     /// Fresh draws of each belief's quantity at the fitted prior (not serialised).
     #[serde(skip)]
     pub draws_fresh: Vec<Vec<f64>>,

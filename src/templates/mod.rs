@@ -22,12 +22,12 @@ pub mod linear;
 pub mod linear_multilevel;
 pub mod logistic;
 pub mod logistic_multilevel;
-pub mod mixture_cure;
 pub mod poisson;
 pub mod poisson_multilevel;
 pub mod priors;
 pub mod quantity;
 pub mod regression;
+pub mod survival;
 
 use crate::dist::Support;
 use crate::error::Result;
@@ -241,6 +241,12 @@ pub trait Model: Send + Sync {
     /// Mean log standard deviation of the prior's components at `h` (the spread
     /// the tie-breaking objective rewards; see `fit::pareto`).
     fn spread(&self, h: &[f64]) -> f64;
+    /// The likelihood matching the template's parameterisation, as export code
+    /// (language → section → lines; see `crate::export::likelihood`), or `None`
+    /// when the template supplies none.
+    fn likelihood(&self) -> Option<Code> {
+        None
+    }
     /// Estimated bytes [`Model::draw_base`] and one simulation allocate for `n`
     /// draws, and what they scale with (checked against [`crate::limits`] before a
     /// fit starts; 0 = small).
@@ -251,7 +257,9 @@ pub trait Model: Send + Sync {
 
 /// All templates. Adding a template adds one line here.
 pub static TEMPLATES: &[&TemplateInfo] = &[
-    &mixture_cure::INFO,
+    &survival::mixture_cure::INFO,
+    &survival::promotion_time::INFO,
+    &survival::parametric::INFO,
     &linear::INFO,
     &logistic::INFO,
     &poisson::INFO,

@@ -1,0 +1,959 @@
+//! Survival templates: shared machinery for the mixture cure
+//! ([`mixture_cure`]), the promotion-time cure ([`promotion_time`]) and
+//! parametric survival without a cure fraction ([`parametric`]). Each template
+//! file holds its registry entry and quantity table; this module holds the
+//! latency distributions ([`latency`]), the reading of `[model]` and the priors,
+//! and one simulator for all three.
+//!
+//! Population survival at covariates x, with latency S_u (scale
+//! λ = exp(log_scale + x'β_latency − x'β_hazard/k), shape k):
+//! * mixture cure (Berkson & Gage 1952, JASA 47; Farewell 1982, Biometrics 38):
+//!   S(t) = π + (1 − π)S_u(t), π = logistic(cure_logit + x'β_cure);
+//! * promotion-time cure (Yakovlev & Tsodikov 1996; Chen, Ibrahim & Sinha 1999,
+//!   JASA 94): S(t) = exp(−θ·F(t)), F = 1 − S_u, θ = exp(log_theta + x'β_theta),
+//!   cure fraction exp(−θ);
+//! * parametric survival: S(t) = S_u(t).
+//!
+//! Covariate effects on the time scale: `latency_effect_<c>` is an
+//! accelerated-failure-time effect (log time ratio: ln λ moves by +β), for every
+//! latency; `hazard_effect_<c>` is a proportional-hazards effect (log hazard
+//! ratio: ln λ moves by −β/k, so the hazard is multiplied by e^β at every t),
+//! for Weibull and exponential latencies only, the families closed under
+//! proportional hazards. For a Weibull an AFT effect β is the PH effect −kβ.
+//!
+//! Treatment effects compare two profiles a, b (`profiles = [a, b]`):
+//! * `hazard_ratio`: the population hazard ratio, stated as the ratio of
+//!   cumulative hazards H_a(h)/H_b(h), H = −ln S, at a horizon h. When the ratio
+//!   is the same at every t (parametric Weibull/exponential; promotion-time cure
+//!   whose profiles differ only in θ: θ_a/θ_b) it equals the ratio of hazards and
+//!   the horizon may be left out. A mixture cure's population hazard ratio varies
+//!   with t even for a PH latency (it tends to 1 as the uncured die out), so it
+//!   always takes a horizon.
+//! * `latency_hazard_ratio` (mixture cure): the same among the uncured,
+//!   −ln S_u,a(h) / −ln S_u,b(h); constant (no horizon needed) for a
+//!   Weibull/exponential latency.
+//! * `survival_difference`, `rmst_difference`, `rmst_ratio` at a horizon;
+//!   `median_ratio` (population medians for parametric survival; the medians of
+//!   the uncured for the cure templates, whose population median may be never
+//!   reached); `cure_difference`.
+//!
+//! RMST(h) = ∫₀ʰ S: closed form for the mixture cure with a Weibull latency
+//! (π·h + (1 − π)λΓ(1 + 1/k)P(1/k, (h/λ)^k)), 32-point Gauss–Legendre otherwise.
+
+mod code;
+pub mod latency;
+pub mod mixture_cure;
+pub mod parametric;
+pub mod promotion_time;
+
+pub use latency::Latency;
+use latency::{gauss, LATENCIES};
+
+use super::quantity::lookup;
+use super::{
+    At, BaseDraws, BrmsLayout, Detail, Hyper, Model, PriorSet, PriorStatement, QuantityDef,
+    Request, TemplateInfo,
+};
+use crate::error::{choice_hint, Result};
+use crate::input::raw::RawBelief;
+use crate::input::{key, Ctx, Seg};
+use crate::numerics::logistic;
+use std::cell::RefCell;
+
+/// How brms states the survival templates' priors: every parameter a
+/// non-linear parameter, `shape` written `nlShape` (brms keeps `shape` for its
+/// own families; `export::brms`).
+pub static BRMS: BrmsLayout = BrmsLayout {
+    usage: &[
+        "Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula, e.g.",
+        "bf(time | cens(1 - event) ~ <the likelihood in these parameters>, cureLogit ~ 1,",
+        "   logScale ~ 1, nlShape ~ 1, nl = TRUE) with your own custom_family: brms has no",
+        "cure family (`export --to stan --with-likelihood` writes the complete model).",
+        "Parameters named like a brms distributional parameter get the prefix nl (shape → nlShape).",
+        "Pass `prior = priors` to brm().",
+    ],
+    classes: &[],
+    coef_prefix: None,
+};
+
+/// How the cured fraction enters.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Cure {
+    /// S = π + (1 − π)S_u.
+    Mixture,
+    /// S = exp(−θF).
+    PromotionTime,
+    /// S = S_u.
+    None,
+}
+
+/// The quantities of the survival templates (each template's table holds the
+/// ones it offers).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SurvQuantity {
+    CureFraction,
+    SurvivalProb,
+    EventProb,
+    MedianSurvival,
+    MedianUncured,
+    Rmst,
+    CureDifference,
+    HazardRatio,
+    LatencyHazardRatio,
+    SurvivalDifference,
+    RmstDifference,
+    RmstRatio,
+    MedianRatio,
+}
+
+impl SurvQuantity {
+    /// Whether values are in `time_unit`.
+    fn in_time_unit(self) -> bool {
+        matches!(
+            self,
+            Self::MedianSurvival | Self::MedianUncured | Self::Rmst | Self::RmstDifference
+        )
+    }
+
+    /// Whether the quantity is about the cured fraction.
+    fn is_cure(self) -> bool {
+        matches!(self, Self::CureFraction | Self::CureDifference)
+    }
+
+    /// The one-profile quantity a two-profile comparison is built from.
+    fn per_profile(self) -> Option<SurvQuantity> {
+        Some(match self {
+            Self::SurvivalDifference => Self::SurvivalProb,
+            Self::RmstDifference | Self::RmstRatio => Self::Rmst,
+            Self::CureDifference => Self::CureFraction,
+            _ => return None,
+        })
+    }
+
+    fn is_hazard_ratio(self) -> bool {
+        matches!(self, Self::HazardRatio | Self::LatencyHazardRatio)
+    }
+}
+
+impl SurvQuantity {
+    /// The table entry of quantity `self`: where it is evaluated, whether it
+    /// takes a horizon, its support (shared by the three templates' tables).
+    pub(crate) const fn def(
+        self,
+        name: &'static str,
+        about: &'static str,
+        needs: &'static str,
+    ) -> QuantityDef<SurvQuantity> {
+        use crate::dist::Support::{Positive, Real, Unit};
+        use SurvQuantity::*;
+        let info = super::QuantityInfo::new(name, about, needs);
+        let (at, support) = match self {
+            CureFraction | SurvivalProb | EventProb => (At::Profile, Unit),
+            MedianSurvival | MedianUncured | Rmst => (At::Profile, Positive),
+            CureDifference | SurvivalDifference | RmstDifference => (At::TwoProfiles, Real),
+            HazardRatio | LatencyHazardRatio | RmstRatio | MedianRatio => {
+                (At::TwoProfiles, Positive)
+            }
+        };
+        let d = QuantityDef::new(self, info, at, support);
+        match self {
+            SurvivalProb | EventProb | Rmst | HazardRatio | LatencyHazardRatio
+            | SurvivalDifference | RmstDifference | RmstRatio => d.at_horizon(),
+            MedianSurvival => d.may_be_infinite(),
+            _ => d,
+        }
+    }
+}
+
+/// An effect on the latency scale.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Effect {
+    /// `latency_effect_<c>`: ln λ + β.
+    Aft,
+    /// `hazard_effect_<c>`: ln λ − β/k.
+    Ph,
+}
+
+/// What a request resolved: the quantity and, for a hazard ratio without a
+/// horizon, that it is constant in t.
+#[derive(Debug, Clone, Copy)]
+struct Asked {
+    q: SurvQuantity,
+    constant: bool,
+}
+
+/// A survival model of one of the three templates.
+pub struct Survival {
+    info: &'static TemplateInfo,
+    table: &'static [QuantityDef<SurvQuantity>],
+    pub cure_kind: Cure,
+    pub latency: Latency,
+    pub time_unit: String,
+    pub covariates: Vec<String>,
+    priors: PriorSet,
+    /// cure_logit (mixture) or log_theta (promotion time).
+    cure: Option<usize>,
+    log_scale: usize,
+    shape: Option<usize>,
+    cure_effects: Vec<Option<usize>>,
+    latency_effects: Vec<Option<(usize, Effect)>>,
+    gl: (Vec<f64>, Vec<f64>),
+}
+
+/// `[model]` table of a survival template, read into a model. `cure_option`:
+/// whether the template takes `cure = true | false` (the mixture cure, where
+/// `false` is parametric survival kept for older belief files).
+pub(crate) fn build(
+    ctx: &Ctx,
+    info: &'static TemplateInfo,
+    table: &'static [QuantityDef<SurvQuantity>],
+    kind: Cure,
+) -> Result<Box<dyn Model>> {
+    let m = ctx.model();
+    let mp = |k: &str| [key("model"), key(k)];
+    let keys: Vec<&str> = info.options.iter().map(|o| o.0).collect();
+    ctx.check_keys(&[key("model")], m, &keys)?;
+    let latency = match m.get("latency") {
+        None => Latency::Weibull,
+        Some(v) => {
+            let name = ctx.string(&mp("latency"), v)?;
+            Latency::from_name(name).ok_or_else(|| {
+                ctx.err(&mp("latency"), format!("unknown latency \"{name}\""))
+                    .with_hint(choice_hint(name, &LATENCIES))
+            })?
+        }
+    };
+    let latency = match (latency, m.get("gengamma_q")) {
+        (Latency::GenGamma(_), None) => {
+            return Err(ctx
+                .err(
+                    &mp("latency"),
+                    "latency = \"gengamma\" needs [model] gengamma_q (Prentice's Q)",
+                )
+                .with_hint(format!(
+                    "add e.g. gengamma_q = 0.5 (Q = 1: Weibull, Q → 0: log-normal; |Q| ≤ {})",
+                    latency::GG_Q_MAX
+                )))
+        }
+        (Latency::GenGamma(_), Some(v)) => {
+            let q = match v {
+                toml::Value::Float(x) => *x,
+                toml::Value::Integer(i) => *i as f64,
+                _ => {
+                    return Err(ctx.err(&mp("gengamma_q"), format!("expected a number, found {v}")))
+                }
+            };
+            if q.is_nan() || q.abs() > latency::GG_Q_MAX {
+                return Err(ctx
+                    .err(
+                        &mp("gengamma_q"),
+                        format!("gengamma_q = {v} is outside [-{0}, {0}]", latency::GG_Q_MAX),
+                    )
+                    .with_hint(
+                        "beyond |Q| = 3 the incomplete gamma of shape Q⁻² is slow and inaccurate",
+                    ));
+            }
+            Latency::GenGamma(q)
+        }
+        (l, Some(_)) => {
+            return Err(ctx
+                .err(
+                    &mp("gengamma_q"),
+                    format!("gengamma_q given but latency = \"{}\"", l.name()),
+                )
+                .with_hint("remove gengamma_q, or set latency = \"gengamma\""))
+        }
+        (l, None) => l,
+    };
+    let time_unit = match m.get("time_unit") {
+        Some(v) => ctx.string(&mp("time_unit"), v)?.to_string(),
+        None => "months".to_string(),
+    };
+    let kind = match (kind, m.get("cure")) {
+        (k, None) => k,
+        (Cure::Mixture, Some(toml::Value::Boolean(b))) => {
+            if *b {
+                Cure::Mixture
+            } else {
+                Cure::None
+            }
+        }
+        (_, Some(v)) => {
+            return Err(ctx.err(&mp("cure"), format!("expected true or false, found {v}")))
+        }
+    };
+    let covariates: Vec<String> = match m.get("covariates") {
+        None => Vec::new(),
+        Some(toml::Value::Array(a)) => a
+            .iter()
+            .enumerate()
+            .map(|(i, v)| {
+                let mut p = mp("covariates").to_vec();
+                p.push(Seg::Index(i));
+                ctx.string(&p, v).map(str::to_string)
+            })
+            .collect::<Result<_>>()?,
+        Some(v) => {
+            return Err(ctx.err(
+                &mp("covariates"),
+                format!("expected a list of names, found {v}"),
+            ))
+        }
+    };
+    let mut priors = PriorSet::default();
+    let real = crate::dist::names_where(|f| f.real_valued());
+    let (cure_param, cure_effect) = match kind {
+        Cure::PromotionTime => ("log_theta", "theta_effect"),
+        _ => ("cure_logit", "cure_effect"),
+    };
+    let cure = match kind {
+        Cure::Mixture => Some(priors.add(
+            ctx,
+            "cure_logit",
+            &real,
+            "family = \"normal\"\n  mean = { fit = [-4.0, 4.0] }\n  sd = { fit = [0.05, 2.5] }",
+        )?),
+        Cure::PromotionTime => Some(priors.add(
+            ctx,
+            "log_theta",
+            &real,
+            "family = \"normal\"\n  mean = { fit = [-3.0, 3.0] }\n  sd = { fit = [0.05, 2.0] }",
+        )?),
+        Cure::None => {
+            if ctx.has_prior("cure_logit") {
+                // Mark it used so the message below is the precise one.
+                let _ = ctx.prior_table("cure_logit", "");
+                let (msg, hint) = if info.name == "mixture-cure" {
+                    (
+                        "[prior.cure_logit] given but [model] cure = false",
+                        "remove the table, or set cure = true",
+                    )
+                } else {
+                    (
+                        "[prior.cure_logit] given but parametric survival has no cured fraction",
+                        "remove the table, or use template = \"mixture-cure\"",
+                    )
+                };
+                return Err(ctx
+                    .err(&[key("prior"), key("cure_logit")], msg)
+                    .with_hint(hint));
+            }
+            None
+        }
+    };
+    let log_scale = priors.add(
+        ctx,
+        "log_scale",
+        &real,
+        "family = \"normal\"\n  mean = { fit = [0.0, 5.0] }\n  sd = { fit = [0.05, 2.0] }",
+    )?;
+    let shape = if latency == Latency::Exponential {
+        if ctx.has_prior("shape") {
+            let _ = ctx.prior_table("shape", "");
+            return Err(ctx
+                .err(
+                    &[key("prior"), key("shape")],
+                    "exponential latency has no shape parameter",
+                )
+                .with_hint("remove [prior.shape], or choose latency = \"weibull\""));
+        }
+        None
+    } else {
+        Some(priors.add(
+            ctx,
+            "shape",
+            &crate::dist::names_where(|f| f.suits(crate::dist::Role::LatencyShape)),
+            "family = \"lognormal\"\n  meanlog = { fit = [-1.0, 1.0] }\n  sdlog = 0.25",
+        )?)
+    };
+    let mut cure_effects = Vec::new();
+    let mut latency_effects = Vec::new();
+    for c in &covariates {
+        let ce = format!("{cure_effect}_{c}");
+        let le = format!("latency_effect_{c}");
+        let he = format!("hazard_effect_{c}");
+        let has_ce = ctx.has_prior(&ce) && kind != Cure::None;
+        if !has_ce && !ctx.has_prior(&le) && !ctx.has_prior(&he) {
+            let mut hint = String::new();
+            if kind != Cure::None {
+                hint.push_str(&format!("[prior.{ce}] (effect on {cure_param}), "));
+            }
+            hint.push_str(&format!(
+                "[prior.{le}] (log time ratio, on log_scale) or [prior.{he}] (log hazard ratio; \
+                 Weibull and exponential latencies)"
+            ));
+            return Err(ctx
+                .err(
+                    &mp("covariates"),
+                    format!("covariate `{c}` has no effect prior"),
+                )
+                .with_hint(format!("add {hint}")));
+        }
+        cure_effects.push(if has_ce {
+            Some(priors.add(ctx, &ce, &real, "")?)
+        } else {
+            None
+        });
+        let effect = match (ctx.has_prior(&le), ctx.has_prior(&he)) {
+            (true, true) => {
+                let _ = ctx.prior_table(&he, "");
+                return Err(ctx
+                    .err(
+                        &[key("prior"), key(&he)],
+                        format!("covariate `{c}` has both [prior.{le}] and [prior.{he}]"),
+                    )
+                    .with_hint(
+                        "give one: a Weibull AFT effect β is the PH effect −k·β, so the two \
+                         would describe the same thing twice",
+                    ));
+            }
+            (true, false) => Some((priors.add(ctx, &le, &real, "")?, Effect::Aft)),
+            (false, true) => {
+                if !latency.is_ph() {
+                    let _ = ctx.prior_table(&he, "");
+                    return Err(ctx
+                        .err(
+                            &[key("prior"), key(&he)],
+                            format!(
+                                "a hazard effect needs a proportional-hazards latency; \
+                                 {} is not one",
+                                latency.name()
+                            ),
+                        )
+                        .with_hint(format!(
+                            "use [prior.{le}] (log time ratio), or latency = \"weibull\""
+                        )));
+                }
+                Some((priors.add(ctx, &he, &real, "")?, Effect::Ph))
+            }
+            (false, false) => None,
+        };
+        latency_effects.push(effect);
+    }
+    Ok(Box::new(Survival {
+        info,
+        table,
+        cure_kind: kind,
+        latency,
+        time_unit,
+        covariates,
+        priors,
+        cure,
+        log_scale,
+        shape,
+        cure_effects,
+        latency_effects,
+        gl: crate::numerics::gauss_legendre(32),
+    }))
+}
+
+type ProfileCache = Vec<(Vec<f64>, Vec<f64>, Vec<f64>)>;
+
+thread_local! {
+    /// Parameter draws and per-profile (covariates, c, ln λ) of the current
+    /// evaluation (c = π for the mixture cure, θ for the promotion time).
+    static SCRATCH: RefCell<(Vec<Vec<f64>>, ProfileCache)> = const { RefCell::new((Vec::new(), Vec::new())) };
+}
+
+impl Survival {
+    /// c (π or θ; 0 without cure), ln λ and k of draw i at covariates x.
+    #[inline]
+    fn at(&self, p: &[Vec<f64>], i: usize, x: &[f64]) -> (f64, f64, f64) {
+        let k = self.shape.map_or(1.0, |s| p[s][i]);
+        let c = match self.cure {
+            Some(c) => {
+                let mut eta = p[c][i];
+                for (j, e) in self.cure_effects.iter().enumerate() {
+                    if let Some(e) = e {
+                        eta += x[j] * p[*e][i];
+                    }
+                }
+                match self.cure_kind {
+                    Cure::PromotionTime => eta.exp(),
+                    _ => logistic(eta),
+                }
+            }
+            None => 0.0,
+        };
+        let mut ls = p[self.log_scale][i];
+        for (j, e) in self.latency_effects.iter().enumerate() {
+            match e {
+                Some((e, Effect::Aft)) => ls += x[j] * p[*e][i],
+                Some((e, Effect::Ph)) => ls -= x[j] * p[*e][i] / k,
+                None => {}
+            }
+        }
+        (c, ls, k)
+    }
+
+    /// Population survival at ln t.
+    #[inline]
+    fn surv_pop(&self, c: f64, ls: f64, k: f64, lt: f64) -> f64 {
+        match self.cure_kind {
+            Cure::PromotionTime => (-c * self.latency.cdf_log(lt, ls, k)).exp(),
+            _ => c + (1.0 - c) * self.latency.surv_log(lt, ls, k),
+        }
+    }
+
+    /// ln of the population cumulative hazard −ln S(t) at ln t.
+    #[inline]
+    fn ln_cum_hazard_pop(&self, c: f64, ls: f64, k: f64, lt: f64) -> f64 {
+        let lat = self.latency;
+        match self.cure_kind {
+            Cure::None => lat.ln_cum_hazard(lt, ls, k),
+            Cure::PromotionTime => c.ln() + lat.ln_cdf(lt, ls, k),
+            Cure::Mixture => {
+                // H = −ln(1 − (1 − π)F_u); ≈ (1 − π)F_u when that is small.
+                let a = (1.0 - c) * lat.cdf_log(lt, ls, k);
+                if a < 1e-8 {
+                    (-c).ln_1p() + lat.ln_cdf(lt, ls, k)
+                } else {
+                    (-(-a).ln_1p()).ln()
+                }
+            }
+        }
+    }
+
+    /// Quantity `q` of one draw at one profile; `lh` = ln h.
+    #[inline]
+    fn value(&self, q: SurvQuantity, c: f64, ls: f64, k: f64, h: f64, lh: f64) -> f64 {
+        use SurvQuantity::*;
+        let lat = self.latency;
+        let promo = self.cure_kind == Cure::PromotionTime;
+        match q {
+            CureFraction => {
+                if promo {
+                    (-c).exp()
+                } else {
+                    c
+                }
+            }
+            SurvivalProb => self.surv_pop(c, ls, k, lh),
+            EventProb => {
+                if promo {
+                    -(-c * lat.cdf_log(lh, ls, k)).exp_m1()
+                } else {
+                    (1.0 - c) * (1.0 - lat.surv_log(lh, ls, k))
+                }
+            }
+            MedianSurvival => {
+                if promo {
+                    // exp(−θF) = ½ ⇔ F = ln 2/θ, reached only when θ > ln 2.
+                    let f = std::f64::consts::LN_2 / c;
+                    if f >= 1.0 {
+                        f64::INFINITY
+                    } else {
+                        lat.surv_inv(1.0 - f, ls, k)
+                    }
+                } else if c >= 0.5 {
+                    f64::INFINITY
+                } else {
+                    lat.surv_inv((0.5 - c) / (1.0 - c), ls, k)
+                }
+            }
+            MedianUncured => {
+                if promo {
+                    // S_uncured = (S − e^{−θ})/(1 − e^{−θ}) = ½ ⇔ S = (1 + e^{−θ})/2
+                    // ⇔ F = −ln(1 + expm1(−θ)/2)/θ.
+                    let f = -(0.5 * (-c).exp_m1()).ln_1p() / c;
+                    lat.surv_inv(1.0 - f, ls, k)
+                } else {
+                    lat.median(ls, k)
+                }
+            }
+            Rmst => {
+                if promo {
+                    gauss(h, &self.gl, |t| {
+                        if t <= 0.0 {
+                            1.0
+                        } else {
+                            (-c * lat.cdf_log(t.ln(), ls, k)).exp()
+                        }
+                    })
+                    .clamp(0.0, h)
+                } else {
+                    c * h + (1.0 - c) * lat.integral(h, ls, k, &self.gl)
+                }
+            }
+            _ => f64::NAN,
+        }
+    }
+
+    /// ln of a hazard ratio's numerator or denominator at one profile (`lh` =
+    /// ln h; `constant`: no horizon, the ratio does not depend on t).
+    #[inline]
+    fn ln_hazard(&self, q: SurvQuantity, c: f64, ls: f64, k: f64, lh: f64, constant: bool) -> f64 {
+        let latency_only = q == SurvQuantity::LatencyHazardRatio || self.cure_kind == Cure::None;
+        if constant {
+            if latency_only {
+                // PH latency: ln H_u(t) = k(ln t − ln λ); the ratio is the same at t = 1.
+                -k * ls
+            } else {
+                // Promotion time with the same F at both profiles: θ_a/θ_b.
+                c.ln()
+            }
+        } else if latency_only {
+            self.latency.ln_cum_hazard(lh, ls, k)
+        } else {
+            self.ln_cum_hazard_pop(c, ls, k, lh)
+        }
+    }
+
+    /// Whether a hazard ratio between covariate vectors a and b is the same at
+    /// every t (then it needs no horizon).
+    fn constant_ratio(&self, q: SurvQuantity, a: &[f64], b: &[f64]) -> bool {
+        let differ = |effects: &mut dyn Iterator<Item = bool>| {
+            effects
+                .zip(a.iter().zip(b))
+                .any(|(has, (x, y))| has && x != y)
+        };
+        let latency_differs = differ(&mut self.latency_effects.iter().map(Option::is_some));
+        let cure_differs = differ(&mut self.cure_effects.iter().map(Option::is_some));
+        let latency_ph = self.latency.is_ph() || !latency_differs;
+        match (q, self.cure_kind) {
+            (SurvQuantity::LatencyHazardRatio, _) | (_, Cure::None) => latency_ph,
+            (_, Cure::PromotionTime) => !latency_differs,
+            (_, Cure::Mixture) => !latency_differs && !cure_differs,
+        }
+    }
+
+    fn horizon(&self, ctx: &Ctx, path: &[Seg], v: &toml::Value) -> Result<f64> {
+        let h = ctx.num(path, v)?;
+        if h <= 0.0 {
+            return Err(ctx.err(
+                path,
+                format!("horizon {h} must be > 0 ({})", self.time_unit),
+            ));
+        }
+        Ok(h)
+    }
+}
+
+impl Model for Survival {
+    fn template(&self) -> &'static str {
+        self.info.name
+    }
+
+    fn hypers(&self) -> &[Hyper] {
+        &self.priors.hypers
+    }
+
+    fn request(&self, ctx: &Ctx, path: &[Seg], quantity: &str, raw: &RawBelief) -> Result<Request> {
+        let sub = |k: &str| {
+            let mut p = path.to_vec();
+            p.push(key(k));
+            p
+        };
+        let def = lookup(self.table, quantity).ok_or_else(|| {
+            ctx.err(&sub("quantity"), format!("unknown quantity \"{quantity}\""))
+                .with_hint(choice_hint(quantity, &self.info.quantity_names()))
+        })?;
+        let q = def.kind;
+        if self.cure.is_none() && q.is_cure() {
+            return Err(ctx.err(
+                &sub("quantity"),
+                format!("{quantity} is fixed at 0 when [model] cure = false"),
+            ));
+        }
+        if raw.contrast.is_some() {
+            return Err(ctx.err(
+                &sub("contrast"),
+                format!(
+                    "{} quantities take no `contrast`; use `profiles = [a, b]` to compare two profiles",
+                    self.info.name
+                ),
+            ));
+        }
+        let (profiles, names) = if def.at == At::TwoProfiles {
+            let ps = raw
+                .profiles
+                .as_ref()
+                .filter(|p| p.len() == 2)
+                .ok_or_else(|| {
+                    ctx.err(
+                        path,
+                        format!("{quantity} needs `profiles = [\"a\", \"b\"]` (two profile names)"),
+                    )
+                })?;
+            if raw.profile.is_some() {
+                return Err(ctx.err(
+                    &sub("profile"),
+                    format!("{quantity} takes `profiles`, not `profile`"),
+                ));
+            }
+            (
+                vec![
+                    ctx.profile(&sub("profiles"), &ps[0], &self.covariates)?,
+                    ctx.profile(&sub("profiles"), &ps[1], &self.covariates)?,
+                ],
+                ps.clone(),
+            )
+        } else {
+            if raw.profiles.is_some() {
+                return Err(ctx.err(
+                    &sub("profiles"),
+                    format!("{quantity} takes one `profile`, not `profiles`"),
+                ));
+            }
+            let name = raw
+                .profile
+                .clone()
+                .unwrap_or_else(|| "reference".to_string());
+            (
+                vec![ctx.profile(&sub("profile"), &name, &self.covariates)?],
+                vec![name],
+            )
+        };
+        // Hazard ratios take a horizon unless the ratio is the same at every t.
+        let constant = q.is_hazard_ratio() && self.constant_ratio(q, &profiles[0], &profiles[1]);
+        let horizon = match (&raw.horizon, def.horizon) {
+            (Some(v), true) => Some(self.horizon(ctx, &sub("horizon"), v)?),
+            (None, true) if constant => None,
+            (None, true) => {
+                let why = if q.is_hazard_ratio() {
+                    " (the ratio of cumulative hazards at the horizon: in this model the hazard \
+                     ratio changes with time)"
+                } else {
+                    ""
+                };
+                return Err(ctx
+                    .err(path, format!("{quantity} needs `horizon`{why}"))
+                    .with_hint(format!("e.g. horizon = 36  # {}", self.time_unit)));
+            }
+            (Some(_), false) => {
+                return Err(ctx.err(&sub("horizon"), format!("{quantity} takes no horizon")))
+            }
+            (None, false) => None,
+        };
+        let unit = q.in_time_unit().then(|| self.time_unit.clone());
+        let label = self.label(q, quantity, horizon, &names);
+        Ok(Request {
+            quantity: quantity.to_string(),
+            detail: Detail::new(Asked {
+                q,
+                constant: q.is_hazard_ratio() && horizon.is_none(),
+            }),
+            horizon,
+            profiles,
+            profile_names: names,
+            support: def.support,
+            allows_inf: def.allows_inf,
+            label,
+            unit,
+        })
+    }
+
+    fn draw_base(&self, n: usize, plan: &crate::rng::Plan) -> BaseDraws {
+        BaseDraws {
+            n,
+            cols: self.priors.draw_base(n, plan),
+            extra: None,
+        }
+    }
+
+    fn simulate(
+        &self,
+        h: &[f64],
+        base: &BaseDraws,
+        reqs: &[&Request],
+        out: &mut [Vec<f64>],
+    ) -> Result<()> {
+        SCRATCH.with(|s| {
+            let mut s = s.borrow_mut();
+            let (p, cache) = &mut *s;
+            p.resize(self.priors.priors.len(), Vec::new());
+            self.priors.fill(h, &base.cols, p)?;
+            // c and ln λ once per distinct profile, shared by every request there.
+            // Entries [0, used) belong to this evaluation; later ones keep their
+            // buffers for reuse.
+            let mut used = 0usize;
+            let mut profile_of = |x: &Vec<f64>, cache: &mut ProfileCache| -> usize {
+                if let Some(j) = cache[..used].iter().position(|c| &c.0 == x) {
+                    return j;
+                }
+                if used == cache.len() {
+                    cache.push((Vec::new(), Vec::new(), Vec::new()));
+                }
+                let (cx, cs, lss) = &mut cache[used];
+                cx.clone_from(x);
+                cs.clear();
+                lss.clear();
+                for i in 0..base.n {
+                    let (c, ls, _) = self.at(p, i, x);
+                    cs.push(c);
+                    lss.push(ls);
+                }
+                used += 1;
+                used - 1
+            };
+            let ones;
+            let ks: &[f64] = match self.shape {
+                Some(s) => &p[s],
+                None => {
+                    ones = vec![1.0; base.n];
+                    &ones
+                }
+            };
+            for (r, o) in reqs.iter().zip(out.iter_mut()) {
+                let Asked { q, constant } = *r.detail.get::<Asked>()?;
+                o.resize(base.n, 0.0);
+                let hz = r.horizon.unwrap_or(1.0);
+                let lh = hz.ln();
+                let j = profile_of(&r.profiles[0], cache);
+                if r.profiles.len() == 2 {
+                    let j2 = profile_of(&r.profiles[1], cache);
+                    let (ca, la) = (&cache[j].1, &cache[j].2);
+                    let (cb, lb) = (&cache[j2].1, &cache[j2].2);
+                    use SurvQuantity::*;
+                    for (i, v) in o.iter_mut().enumerate() {
+                        let k = ks[i];
+                        *v = match q {
+                            HazardRatio | LatencyHazardRatio => (self
+                                .ln_hazard(q, ca[i], la[i], k, lh, constant)
+                                - self.ln_hazard(q, cb[i], lb[i], k, lh, constant))
+                            .exp(),
+                            MedianRatio => {
+                                let m = |c, l| {
+                                    if self.cure_kind == Cure::None {
+                                        self.latency.median(l, k)
+                                    } else {
+                                        self.value(MedianUncured, c, l, k, hz, lh)
+                                    }
+                                };
+                                m(ca[i], la[i]) / m(cb[i], lb[i])
+                            }
+                            RmstRatio => {
+                                self.value(Rmst, ca[i], la[i], k, hz, lh)
+                                    / self.value(Rmst, cb[i], lb[i], k, hz, lh)
+                            }
+                            _ => {
+                                let pq = q.per_profile().unwrap_or(q);
+                                self.value(pq, ca[i], la[i], k, hz, lh)
+                                    - self.value(pq, cb[i], lb[i], k, hz, lh)
+                            }
+                        };
+                    }
+                } else {
+                    let (cs, lss) = (&cache[j].1, &cache[j].2);
+                    // One loop per quantity, so the choice is not made per draw.
+                    macro_rules! each {
+                        ($q:expr) => {
+                            for (i, v) in o.iter_mut().enumerate() {
+                                *v = self.value($q, cs[i], lss[i], ks[i], hz, lh);
+                            }
+                        };
+                    }
+                    use SurvQuantity::*;
+                    match q {
+                        CureFraction => each!(CureFraction),
+                        SurvivalProb => each!(SurvivalProb),
+                        EventProb => each!(EventProb),
+                        MedianSurvival => each!(MedianSurvival),
+                        MedianUncured => each!(MedianUncured),
+                        Rmst => each!(Rmst),
+                        other => each!(other),
+                    }
+                }
+            }
+            Ok(())
+        })
+    }
+
+    fn priors(&self, h: &[f64]) -> Vec<PriorStatement> {
+        let unit = self.time_unit.clone();
+        self.priors.statements(h, |p| match p {
+            "cure_logit" => "logit of the cured fraction".to_string(),
+            "log_theta" => "log promotion-time rate θ (cured fraction exp(−θ))".to_string(),
+            "log_scale" => format!("log latency scale ({unit})"),
+            "shape" => "latency shape".to_string(),
+            other => match other.strip_prefix("hazard_effect_") {
+                Some(c) => format!("log hazard ratio per unit of {c} (proportional hazards)"),
+                None => other.replace('_', " "),
+            },
+        })
+    }
+
+    fn spread(&self, h: &[f64]) -> f64 {
+        self.priors.spread(h)
+    }
+
+    fn likelihood(&self) -> Option<super::Code> {
+        Some(self.code())
+    }
+}
+
+impl Survival {
+    /// A readable label: the quantity, its horizon and profiles.
+    fn label(
+        &self,
+        q: SurvQuantity,
+        quantity: &str,
+        horizon: Option<f64>,
+        names: &[String],
+    ) -> String {
+        use SurvQuantity::*;
+        let unit = &self.time_unit;
+        let at = |h: Option<f64>| h.map_or(String::new(), |h| format!(" at {h} {unit}"));
+        let two = || format!("{} vs {}", names[0], names[1]);
+        let cum = if horizon.is_some() {
+            "; ratio of cumulative hazards"
+        } else {
+            ""
+        };
+        match q {
+            HazardRatio => {
+                let whose = if self.cure_kind == Cure::None {
+                    ""
+                } else {
+                    ", population"
+                };
+                format!("hazard ratio{} ({}{whose}{cum})", at(horizon), two())
+            }
+            LatencyHazardRatio => format!(
+                "hazard ratio{} ({}, latency: among the uncured{cum})",
+                at(horizon),
+                two()
+            ),
+            SurvivalDifference => format!(
+                "survival difference{} ({} − {})",
+                at(horizon),
+                names[0],
+                names[1]
+            ),
+            RmstDifference => format!(
+                "RMST difference to {} {unit} ({} − {})",
+                horizon.unwrap_or(f64::NAN),
+                names[0],
+                names[1]
+            ),
+            RmstRatio => format!(
+                "RMST ratio to {} {unit} ({} / {})",
+                horizon.unwrap_or(f64::NAN),
+                names[0],
+                names[1]
+            ),
+            MedianRatio => {
+                let whose = if self.cure_kind == Cure::None {
+                    ""
+                } else {
+                    ", among the uncured"
+                };
+                format!("median ratio ({} / {}{whose})", names[0], names[1])
+            }
+            _ => {
+                // The labels the mixture-cure template always wrote.
+                let mut label = quantity.to_string();
+                if let Some(h) = horizon {
+                    label.push_str(&format!(" at {h} {unit}"));
+                }
+                if names != ["reference"] {
+                    label.push_str(&format!(" ({})", names.join(" vs ")));
+                }
+                label
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests;
