@@ -18,6 +18,7 @@ pub use crate::output::svg;
 mod assets;
 mod html;
 mod plots;
+pub mod predictive;
 mod view;
 
 pub use html::render;
