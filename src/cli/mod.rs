@@ -403,6 +403,17 @@ pub fn escalate(what: &str, r: &fit::FitResult, quiet: bool, require_met: bool) 
 
 /// Fit and write outputs; shared by `fit` and `demo`.
 pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitResult> {
+    fit_and_write_then(spec, out, quiet, &mut || Ok(()))
+}
+
+/// As [`fit_and_write`], running `before_report` once the fit's files are
+/// written and before the report (which re-simulates from OUT/spec.toml).
+fn fit_and_write_then(
+    spec: &Spec,
+    out: &Path,
+    quiet: bool,
+    before_report: &mut dyn FnMut() -> Result<()>,
+) -> Result<fit::FitResult> {
     output::ensure_dir(out)?;
     let pb = progress::Progress::new(quiet, "fitting");
     let cb = |done: usize, total: usize| {
@@ -415,6 +426,7 @@ pub fn fit_and_write(spec: &Spec, out: &Path, quiet: bool) -> Result<fit::FitRes
         pb.finish();
     }
     output::write_fit(out, &r)?;
+    before_report()?;
     priorsmith::report::write(out)?;
     Ok(r)
 }
@@ -436,8 +448,13 @@ fn cmd_fit(
         }
         spec.fit.replicates = k;
     }
-    let r = fit_and_write(&spec, out, quiet)?;
-    let copied = write_spec_copy(a, out)?;
+    // OUT/spec.toml is written before the report, which draws its survival
+    // curves from it.
+    let mut copied = false;
+    let r = fit_and_write_then(&spec, out, quiet, &mut || {
+        copied = write_spec_copy(a, out)?;
+        Ok(())
+    })?;
     if !quiet {
         print!("{}", output::summary::render(&r));
         println!(

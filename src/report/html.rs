@@ -285,7 +285,7 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         );
     }
     html.push_str("</section>\n");
-    let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder; the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
+    let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder (the survival curves from spec.toml); the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
         esc(CAUTION)
     );
     files.push((PathBuf::from("report.html"), html.into_bytes()));
@@ -305,8 +305,13 @@ fn predictive_section(
 ) -> Result<String> {
     let mut html =
         String::from("<section id=\"predictive\">\n<h2>What the fitted prior implies</h2>\n");
-    match super::predictive::survival_bands(dir, rec)? {
-        Some(bands) => {
+    // The picture is an addition: a spec.toml that no longer validates (a
+    // moved design file, say) costs the curves, not the report.
+    match super::predictive::survival_bands(dir, rec) {
+        Err(e) => {
+            let _ = writeln!(html, "<p class=\"help\">No survival curves: this folder's <code>spec.toml</code> could not be re-simulated ({}).</p>", esc(&e.to_string()));
+        }
+        Ok(Some(bands)) => {
             let _ = writeln!(html, "<p class=\"help\">Survival curves implied by the fitted prior, re-simulated from this folder's <code>spec.toml</code> at the fitted hyperparameters ({} prior draws, seed {}): pointwise 50, 80 and 95 % bands with their median and {} sample curves; the survival and median beliefs are drawn on them in blue (believed 10–90 % interval and median).</p>",
                 super::predictive::CURVE_DRAWS, rec.header.seed, super::predictive::SAMPLE_CURVES);
             html.push_str("<div class=\"figs\">\n");
@@ -323,10 +328,10 @@ fn predictive_section(
             }
             html.push_str("</div>\n");
         }
-        None if rec.header.template == "mixture-cure" => {
+        Ok(None) if rec.header.template == "mixture-cure" => {
             html.push_str("<p class=\"help\">No survival curves: this folder has no <code>spec.toml</code> to re-simulate them from (fit it again to write one).</p>\n");
         }
-        None => {}
+        Ok(None) => {}
     }
     let n = bs.len().min(PAIR_BELIEFS);
     if n >= 2 {

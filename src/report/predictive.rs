@@ -28,7 +28,7 @@ use std::path::Path;
 /// Prior draws behind each survival band (fixed, so the picture does not depend
 /// on the fit's draws or precision mode).
 pub const CURVE_DRAWS: usize = 2000;
-/// Times on the grid (excluding t = 0, where S = 1).
+/// Intervals of the even time grid (the belief horizons are added to it).
 pub const GRID: usize = 60;
 /// Sample curves drawn over the bands.
 pub const SAMPLE_CURVES: usize = 8;
@@ -169,7 +169,17 @@ pub fn survival_bands(dir: &Path, rec: &Record) -> Result<Option<Vec<SurvivalBan
         t_max = 60.0;
     }
     let t_max = nice_ceiling(1.25 * t_max);
-    let times: Vec<f64> = (0..=GRID).map(|i| t_max * i as f64 / GRID as f64).collect();
+    // An even grid plus every belief horizon, so a survival belief sits on it.
+    let mut times: Vec<f64> = (0..=GRID).map(|i| t_max * i as f64 / GRID as f64).collect();
+    for (_, m) in &markers {
+        if let MarkerKind::SurvivalAt(h) = m.kind {
+            if h > 0.0 && h < t_max {
+                times.push(h);
+            }
+        }
+    }
+    times.sort_by(f64::total_cmp);
+    times.dedup();
     // The same belief file with survival_prob requests on the grid instead of its beliefs.
     let uniform = {
         let mut d = toml::Table::new();
@@ -218,7 +228,7 @@ pub fn survival_bands(dir: &Path, rec: &Record) -> Result<Option<Vec<SurvivalBan
     let reqs: Vec<&crate::templates::Request> = spec.beliefs.iter().map(|b| &b.request).collect();
     let mut out = vec![Vec::new(); reqs.len()];
     spec.model.simulate(&h, &base, &reqs, &mut out)?;
-    let g = GRID;
+    let g = times.len() - 1;
     let mut result = Vec::new();
     for (pi, p) in profiles.iter().enumerate() {
         let cols = &out[pi * g..(pi + 1) * g];
