@@ -823,18 +823,34 @@ fn survival_bands_agree_with_the_recorded_implied_survival() {
     );
     std::fs::write(&spec, text).unwrap();
     let out = d.path().join("out");
-    ok(&["fit", spec.to_str().unwrap(), "--draws", "2000", "-q", "-o", out.to_str().unwrap()]);
+    ok(&[
+        "fit",
+        spec.to_str().unwrap(),
+        "--draws",
+        "2000",
+        "-q",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
     let rec = priorsmith::export::record::read(&out.join("fit.json")).unwrap();
     let bands = priorsmith::report::predictive::survival_bands(&out, &rec)
         .unwrap()
         .expect("a mixture-cure folder with spec.toml has survival bands");
     assert_eq!(bands.len(), 1, "one (reference) profile");
     let b = &bands[0];
-    let i = b.times.iter().position(|t| *t == 24.0).expect("the horizon is on the grid");
+    let i = b
+        .times
+        .iter()
+        .position(|t| *t == 24.0)
+        .expect("the horizon is on the grid");
     // Bands are nested and S(0) = 1.
     for j in 0..b.times.len() {
         for k in 1..b.bands.len() {
-            assert!(b.bands[k - 1][j] <= b.bands[k][j], "bands cross at t = {}", b.times[j]);
+            assert!(
+                b.bands[k - 1][j] <= b.bands[k][j],
+                "bands cross at t = {}",
+                b.times[j]
+            );
         }
     }
     assert!(b.bands.iter().all(|v| v[0] == 1.0));
@@ -851,7 +867,12 @@ fn survival_bands_agree_with_the_recorded_implied_survival() {
     let n_curve = priorsmith::report::predictive::CURVE_DRAWS as f64;
     let se = sd * (std::f64::consts::PI / 2.0 * (1.0 / n_fit + 1.0 / n_curve)).sqrt();
     let diff = (b.bands[3][i] - implied).abs();
-    assert!(diff <= 4.0 * se, "median S(24): bands {} vs fit.json {implied} (4 SE = {})", b.bands[3][i], 4.0 * se);
+    assert!(
+        diff <= 4.0 * se,
+        "median S(24): bands {} vs fit.json {implied} (4 SE = {})",
+        b.bands[3][i],
+        4.0 * se
+    );
     // The report draws them, with the pairwise plots, and renders the same twice.
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     for id in ["survival", "pair-1-2", "pair-1-3", "pair-2-3"] {
