@@ -1066,3 +1066,84 @@ fn brms_survival_export_renames_shape_so_it_cannot_clash() {
     assert!(!brms.contains("nlpar = \"shape\""));
     assert!(brms.contains("nlShape ~ 1"));
 }
+
+/// The report's prior-predictive picture: survival bands re-simulated from the
+/// folder's spec.toml agree with the fit's own implied draws, are the same on a
+/// second render, and the pairwise plots are drawn; without spec.toml the report
+/// says why there are no curves.
+#[test]
+fn survival_bands_agree_with_the_recorded_implied_survival() {
+    let d = tempfile::tempdir().unwrap();
+    let spec = d.path().join("spec.toml");
+    let text = format!(
+        "{SPEC}[[belief]]\nquantity = \"survival_prob\"\nhorizon = 24\ndistribution = {{ family = \"beta\", alpha = 12, beta = 18 }}\n"
+    );
+    std::fs::write(&spec, text).unwrap();
+    let out = d.path().join("out");
+    ok(&[
+        "fit",
+        spec.to_str().unwrap(),
+        "--draws",
+        "2000",
+        "-q",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    let rec = priorsmith::export::record::read(&out.join("fit.json")).unwrap();
+    let bands = priorsmith::report::predictive::survival_bands(&out, &rec)
+        .unwrap()
+        .expect("a mixture-cure folder with spec.toml has survival bands");
+    assert_eq!(bands.len(), 1, "one (reference) profile");
+    let b = &bands[0];
+    let i = b
+        .times
+        .iter()
+        .position(|t| *t == 24.0)
+        .expect("the horizon is on the grid");
+    // Bands are nested and S(0) = 1.
+    for j in 0..b.times.len() {
+        for k in 1..b.bands.len() {
+            assert!(
+                b.bands[k - 1][j] <= b.bands[k][j],
+                "bands cross at t = {}",
+                b.times[j]
+            );
+        }
+    }
+    assert!(b.bands.iter().all(|v| v[0] == 1.0));
+    // The pointwise median at the horizon against the implied median of the
+    // fit's fresh draws (fit.json, an independent draw set of the same prior).
+    // SE of a sample median: sd·√(π/(2n)) with sd ≈ IQR/1.349 (normal
+    // approximation, common practice); the difference of two independent
+    // medians has the two variances added; tolerance 4 SE.
+    let r = &rec.fit.beliefs[2];
+    assert_eq!(r.quantity, "survival_prob");
+    let implied = r.implied_quantiles[3];
+    let sd = (b.bands[4][i] - b.bands[2][i]) / 1.349;
+    let n_fit = rec.fit.draws as f64;
+    let n_curve = priorsmith::report::predictive::CURVE_DRAWS as f64;
+    let se = sd * (std::f64::consts::PI / 2.0 * (1.0 / n_fit + 1.0 / n_curve)).sqrt();
+    let diff = (b.bands[3][i] - implied).abs();
+    assert!(
+        diff <= 4.0 * se,
+        "median S(24): bands {} vs fit.json {implied} (4 SE = {})",
+        b.bands[3][i],
+        4.0 * se
+    );
+    // The report draws them, with the pairwise plots, and renders the same twice.
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    for id in ["survival", "pair-1-2", "pair-1-3", "pair-2-3"] {
+        assert!(html.contains(&format!("id=\"{id}\"")), "{id} missing");
+        assert!(out.join("plots").join(format!("{id}.svg")).is_file());
+    }
+    assert!(html.contains("not their joint behaviour"));
+    let svg1 = std::fs::read(out.join("plots/survival.svg")).unwrap();
+    ok(&["report", out.to_str().unwrap()]);
+    assert_eq!(svg1, std::fs::read(out.join("plots/survival.svg")).unwrap());
+    // Without spec.toml: no curves, and a sentence saying why.
+    std::fs::remove_file(out.join("spec.toml")).unwrap();
+    ok(&["report", out.to_str().unwrap()]);
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("No survival curves"));
+    assert!(!html.contains("id=\"survival\""));
+}

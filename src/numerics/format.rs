@@ -2,8 +2,8 @@
 //!
 //! * [`code`]: for modelling-language code, 6 significant digits in the shortest
 //!   form ("0.25", "-1.1014", "2e-07");
-//! * [`display`]: for the terminal and summary.txt (4 decimals, 1 above 100,
-//!   scientific outside [0.001, 100 000); "inf" / "-inf");
+//! * [`display`]: for the terminal, summary.txt and the report's tables: [`sig`]
+//!   at 4 significant digits ("0.1235", "123.5", "1e-5"), "inf" / "-inf";
 //! * [`html`]: as `display`, with "∞", "−∞" and "—" (not a number) for the report;
 //! * [`sig`]: `n` significant digits, trailing zeros dropped, scientific
 //!   ("2.83e-5") outside [0.001, 1 000 000): the explanations of verdicts, the
@@ -25,19 +25,13 @@ pub fn code(x: f64) -> String {
     }
 }
 
-/// A number for the terminal and summary.txt.
+/// Significant digits of every number a reader sees ([`display`], [`html`]).
+pub const DISPLAY_DIGITS: usize = 4;
+
+/// A number for the terminal, summary.txt and the report: [`sig`] at
+/// [`DISPLAY_DIGITS`] significant digits, one style for every magnitude.
 pub fn display(x: f64) -> String {
-    if x.is_infinite() {
-        return if x > 0.0 { "inf".into() } else { "-inf".into() };
-    }
-    let a = x.abs();
-    if a != 0.0 && !(1e-3..1e5).contains(&a) {
-        format!("{x:.3e}")
-    } else if a >= 100.0 {
-        format!("{x:.1}")
-    } else {
-        format!("{x:.4}")
-    }
+    sig(x, DISPLAY_DIGITS)
 }
 
 /// A number to `digits` significant digits, trailing zeros dropped ("0.0202",
@@ -112,7 +106,11 @@ mod tests {
         assert_eq!(code(2e-7), "2e-7");
         assert_eq!(display(0.123456), "0.1235");
         assert_eq!(display(123.456), "123.5");
-        assert_eq!(display(1e-5), "1.000e-5");
+        assert_eq!(display(1e-5), "1e-5");
+        assert_eq!(display(2.834e-4), "2.834e-4");
+        assert_eq!(display(0.0013), "0.0013");
+        assert_eq!(display(12345.6), "12350");
+        assert_eq!(display(0.5), "0.5");
         assert_eq!(html(f64::NAN), "—");
         assert_eq!(html(f64::NEG_INFINITY), "−∞");
         assert_eq!(csv(0.1 + 0.2), "0.30000000000000004");

@@ -99,12 +99,12 @@ pub fn render(r: &FitResult) -> String {
     for b in &r.beliefs {
         let _ = writeln!(
             s,
-            "  {:<lw$}  {:>11.3e}  {:>11.3e}  {:>7.2}  {:>8.4}  {}",
+            "  {:<lw$}  {:>11}  {:>11}  {:>7}  {:>8}  {}",
             labels::belief(b),
-            b.fresh,
-            b.noise_floor,
-            b.ratio,
-            b.rms_cdf_gap,
+            fmt_num(b.fresh),
+            fmt_num(b.noise_floor),
+            fmt_num(b.ratio),
+            fmt_num(b.rms_cdf_gap),
             explain::verdict_words(b, r.tolerance)
         );
         let largest = explain::largest_difference_line(b);
@@ -121,11 +121,11 @@ pub fn render(r: &FitResult) -> String {
     }
     let _ = writeln!(
         s,
-        "  {:<lw$}  {:>11.3e}  {:>11.3e}  {:>7.2}  {:>8}  {}",
+        "  {:<lw$}  {:>11}  {:>11}  {:>7}  {:>8}  {}",
         "total (weighted)",
-        r.total.fresh,
-        r.total.noise_floor,
-        r.total.fresh / r.total.noise_floor,
+        fmt_num(r.total.fresh),
+        fmt_num(r.total.noise_floor),
+        fmt_num(r.total.fresh / r.total.noise_floor),
         "",
         explain::overall_words(r)
     );
@@ -140,7 +140,7 @@ pub fn render(r: &FitResult) -> String {
         .map(|b| {
             b.probs
                 .iter()
-                .map(|p| format!("{:>9}", format!("{}%", p * 100.0)))
+                .map(|p| format!(" {:>9}", format!("{}%", p * 100.0)))
                 .collect()
         })
         .unwrap_or_default();
@@ -148,7 +148,7 @@ pub fn render(r: &FitResult) -> String {
     for b in &r.beliefs {
         let row = |v: &[f64]| {
             v.iter()
-                .map(|x| format!("{:>9}", fmt_num(*x)))
+                .map(|x| format!(" {:>9}", fmt_num(*x)))
                 .collect::<String>()
         };
         let _ = writeln!(
@@ -242,7 +242,7 @@ pub fn render(r: &FitResult) -> String {
             s,
             "  {:<12}  flat share {:>14}  {}{}",
             l.call.words(),
-            format!("{:.3}", l.width),
+            fmt_num(l.width),
             l.description,
             if l.call == crate::fit::profile::Call::PushedToBound {
                 " (the beliefs push it there)"
@@ -256,12 +256,12 @@ pub fn render(r: &FitResult) -> String {
             let p = &f.points[f.chosen];
             let _ = writeln!(
                 s,
-                "  tie-break: rule `{}` chose κ = {} on the Pareto front ({} points; discrepancy {:.3e}, spread {:.3})",
+                "  tie-break: rule `{}` chose κ = {} on the Pareto front ({} points; discrepancy {}, spread {})",
                 f.rule,
-                p.kappa,
+                fmt_num(p.kappa),
                 f.points.len(),
-                p.discrepancy,
-                -p.secondary
+                fmt_num(p.discrepancy),
+                fmt_num(-p.secondary)
             );
         }
         (_, crate::fit::TieBreakUsed::Widest) => {

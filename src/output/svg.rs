@@ -266,6 +266,58 @@ impl Plot {
         d.trim_end().to_string()
     }
 
+    /// A filled band between two curves over the same x (data units; points with
+    /// a non-finite value are skipped).
+    pub fn band(
+        &mut self,
+        x: &[f64],
+        lo: &[f64],
+        hi: &[f64],
+        fill: &str,
+        opacity: f64,
+        name: &str,
+    ) {
+        let pts: Vec<(f64, f64, f64)> = x
+            .iter()
+            .zip(lo.iter().zip(hi))
+            .filter(|(x, (l, h))| x.is_finite() && l.is_finite() && h.is_finite())
+            .map(|(x, (l, h))| (*x, *l, *h))
+            .collect();
+        if pts.len() < 2 {
+            return;
+        }
+        let mut d = String::new();
+        for (i, (x, _, h)) in pts.iter().enumerate() {
+            let _ = write!(
+                d,
+                "{}{:.2} {:.2} ",
+                if i == 0 { "M" } else { "L" },
+                self.x.px(*x),
+                self.y.px(*h)
+            );
+        }
+        for (x, l, _) in pts.iter().rev() {
+            let _ = write!(d, "L{:.2} {:.2} ", self.x.px(*x), self.y.px(*l));
+        }
+        let _ = writeln!(
+            self.body,
+            "<path class=\"band\" d=\"{}Z\" fill=\"{fill}\" fill-opacity=\"{opacity}\" stroke=\"none\" clip-path=\"url(#{}-clip)\"><title>{}</title></path>",
+            d,
+            self.id,
+            esc(name)
+        );
+    }
+
+    /// Dots as a path of zero-length segments in pixel coordinates (round caps).
+    pub fn raw_path(&mut self, d: &str, color: &str, name: &str) {
+        let _ = writeln!(
+            self.body,
+            "<path class=\"dots\" d=\"{d}\" fill=\"none\" stroke=\"{color}\" stroke-opacity=\"0.45\" stroke-width=\"3.2\" stroke-linecap=\"round\" clip-path=\"url(#{}-clip)\"><title>{}</title></path>",
+            self.id,
+            esc(name)
+        );
+    }
+
     /// Bars [x0, x1] × [0, y] in data units.
     pub fn bars(&mut self, bars: &[(f64, f64, f64)], fill: &str, stroke: &str, name: &str) {
         let _ = writeln!(

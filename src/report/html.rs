@@ -179,6 +179,8 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         }
         html.push_str("</section>\n");
     }
+    // The prior in the model's own terms: survival bands, pairwise draws.
+    html.push_str(&predictive_section(dir, &rec, &bs, &mut svgs)?);
     // The prior.
     html.push_str("<section id=\"prior\">\n<h2>The fitted prior</h2>\n<table class=\"prior\"><thead><tr><th>parameter</th><th>meaning</th><th>family</th><th>parameters</th></tr></thead><tbody>\n");
     for st in &fit.prior {
@@ -283,11 +285,75 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
         );
     }
     html.push_str("</section>\n");
-    let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder; the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
+    let _ = writeln!(html, "<footer><p>{}</p><p>Written by <code>priorsmith report</code> from fit.json and draws.csv in this folder (the survival curves from spec.toml); the plots are also in <code>plots/</code> as SVG files.</p></footer>\n</main>\n<script>{JS}</script>\n</body>\n</html>",
         esc(CAUTION)
     );
     files.push((PathBuf::from("report.html"), html.into_bytes()));
     Ok(files)
+}
+
+/// Beliefs paired in the pairwise plots (the first ones, in file order).
+const PAIR_BELIEFS: usize = 5;
+
+/// The section "What the prior implies": the survival bands per profile
+/// (survival templates) and the pairwise plots of the implied quantities.
+fn predictive_section(
+    dir: &Path,
+    rec: &record::FitRecord,
+    bs: &[BeliefView],
+    svgs: &mut dyn FnMut(&str, &str),
+) -> Result<String> {
+    let mut html =
+        String::from("<section id=\"predictive\">\n<h2>What the fitted prior implies</h2>\n");
+    // The picture is an addition: a spec.toml that no longer validates (a
+    // moved design file, say) costs the curves, not the report.
+    match super::predictive::survival_bands(dir, rec) {
+        Err(e) => {
+            let _ = writeln!(html, "<p class=\"help\">No survival curves: this folder's <code>spec.toml</code> could not be re-simulated ({}).</p>", esc(&e.to_string()));
+        }
+        Ok(Some(bands)) => {
+            let _ = writeln!(html, "<p class=\"help\">Survival curves implied by the fitted prior, re-simulated from this folder's <code>spec.toml</code> at the fitted hyperparameters ({} prior draws, seed {}): pointwise 50, 80 and 95 % bands with their median and {} sample curves; the survival and median beliefs are drawn on them in blue (believed 10–90 % interval and median).</p>",
+                super::predictive::CURVE_DRAWS, rec.header.seed, super::predictive::SAMPLE_CURVES);
+            html.push_str("<div class=\"figs\">\n");
+            for (k, b) in bands.iter().enumerate() {
+                let id = if b.profile.is_empty() {
+                    "survival".to_string()
+                } else {
+                    format!("survival-{}", k + 1)
+                };
+                let plot = survival_plot(&id, b);
+                svgs(&id, &plot);
+                let _ = writeln!(html, "<figure>{plot}<figcaption>Prior-predictive survival{}: S(t) = π + (1 − π)·S<sub>u</sub>(t) over prior draws.</figcaption></figure>",
+                    if b.profile.is_empty() { String::new() } else { format!(" for profile <code>{}</code>", esc(&b.profile)) });
+            }
+            html.push_str("</div>\n");
+        }
+        Ok(None) if rec.header.template == "mixture-cure" => {
+            html.push_str("<p class=\"help\">No survival curves: this folder has no <code>spec.toml</code> to re-simulate them from (fit it again to write one).</p>\n");
+        }
+        Ok(None) => {}
+    }
+    let n = bs.len().min(PAIR_BELIEFS);
+    if n >= 2 {
+        let cols = read_draws(&dir.join("draws.csv"), bs.len())?;
+        let _ = writeln!(html, "<h3>Implied quantities jointly</h3>\n<p class=\"help\">Each plot shows the same prior draws of two implied quantities (from <code>draws.csv</code>). The fit matches each quantity's distribution on its own, not their joint behaviour: check that what these plots imply together is plausible.{}</p>",
+            if bs.len() > n { format!(" The first {n} beliefs are paired.") } else { String::new() });
+        html.push_str("<div class=\"figs\">\n");
+        for i in 0..n {
+            for j in i + 1..n {
+                let rho = super::predictive::spearman(&cols[i], &cols[j]);
+                let id = format!("pair-{}-{}", i + 1, j + 1);
+                let xl = format!("{}. {}", i + 1, labels::belief(&bs[i].r));
+                let yl = format!("{}. {}", j + 1, labels::belief(&bs[j].r));
+                let plot = pair_plot(&id, &xl, &yl, &cols[i], &cols[j], rho);
+                svgs(&id, &plot);
+                let _ = writeln!(html, "<figure>{plot}<figcaption>Beliefs {} and {}: fresh prior draws; Spearman rank correlation {}.</figcaption></figure>", i + 1, j + 1, sig(rho, 2));
+            }
+        }
+        html.push_str("</div>\n");
+    }
+    html.push_str("</section>\n");
+    Ok(html)
 }
 
 /// The tie-break in a sentence.

@@ -1,6 +1,7 @@
 //! The report: one self-contained HTML page, `DIR/report.html`, with inline SVG
 //! plots (also written as `DIR/plots/*.svg`), built from `DIR/fit.json` and
-//! `DIR/draws.csv` only — never from the spec.
+//! `DIR/draws.csv`; only the prior-predictive survival curves re-simulate from
+//! `DIR/spec.toml` (the normalised belief file `fit` writes), see [`predictive`].
 //!
 //! For every belief: the believed CDF (from `believed_curve` in fit.json: atoms
 //! as vertical jumps, mass at +∞ in a separate "never reached" column right of
@@ -10,7 +11,8 @@
 //! verdict, the discrepancy against its noise floor, and quantiles. Then the
 //! fitted prior, the hyperparameters within their bounds, optional diagnostics
 //! (`identifiability`, `pareto`, `sweep` keys, rendered when present) and the
-//! caution text. The page has no external resources, prints to PDF (print CSS)
+//! caution text. "What the fitted prior implies": survival bands per profile
+//! (survival templates) and pairwise scatter plots of the implied quantities. The page has no external resources, prints to PDF (print CSS)
 //! and carries a small script that only marks, for tests, that every plot
 //! rendered.
 
@@ -18,6 +20,7 @@ pub use crate::output::svg;
 mod assets;
 mod html;
 mod plots;
+pub mod predictive;
 mod view;
 
 pub use html::render;

@@ -393,3 +393,182 @@ pub fn hyper_plot(id: &str, fit: &FitResult) -> Option<String> {
     b.push_str("</svg>\n");
     Some(b)
 }
+
+/// The prior-predictive survival curve of one profile: pointwise 95 / 80 / 50 %
+/// bands (vermillion, darker inward), the pointwise median (dashed), a few sample
+/// curves (grey), and the beliefs on it in blue: a survival belief as its 10–90 %
+/// interval at its horizon, a median belief as its 10–90 % interval at S = ½,
+/// each with its median as a dot and its number.
+pub fn survival_plot(id: &str, b: &super::predictive::SurvivalBands) -> String {
+    let t_max = b.times.last().copied().unwrap_or(1.0);
+    let who = if b.profile.is_empty() {
+        String::new()
+    } else {
+        format!(", profile {}", b.profile)
+    };
+    let mut p = Plot::new(
+        id,
+        &format!("Prior-predictive survival curve{who}"),
+        (0.0, t_max, false),
+        (0.0, 1.0),
+        0.0,
+    );
+    p.axes(
+        &format!("time ({})", b.time_unit),
+        "probability event-free, S(t)",
+    );
+    let bd = &b.bands;
+    p.band(
+        &b.times,
+        &bd[0],
+        &bd[6],
+        VERMILLION_FILL,
+        0.45,
+        "95 % pointwise band",
+    );
+    p.band(
+        &b.times,
+        &bd[1],
+        &bd[5],
+        VERMILLION_FILL,
+        0.7,
+        "80 % pointwise band",
+    );
+    p.band(
+        &b.times,
+        &bd[2],
+        &bd[4],
+        VERMILLION_DARK,
+        0.45,
+        "50 % pointwise band",
+    );
+    for (k, c) in b.samples.iter().enumerate() {
+        let pts: Vec<(f64, f64)> = b.times.iter().copied().zip(c.iter().copied()).collect();
+        p.line(&pts, GREY, 0.8, None, &format!("sample curve {}", k + 1));
+    }
+    let med: Vec<(f64, f64)> = b.times.iter().copied().zip(bd[3].iter().copied()).collect();
+    p.line(&med, VERMILLION, 2.0, Some("6 4"), "pointwise median");
+    for m in &b.markers {
+        let name = format!("belief {}", m.belief);
+        match m.kind {
+            super::predictive::MarkerKind::SurvivalAt(t) => {
+                let (lo, mid, hi) = (m.q[0], m.q[1], m.q[2]);
+                if lo.is_finite() && hi.is_finite() {
+                    p.line(
+                        &[(t, lo), (t, hi)],
+                        BLUE,
+                        3.0,
+                        None,
+                        &format!("{name}: believed 10–90 %"),
+                    );
+                }
+                if mid.is_finite() {
+                    p.point(
+                        t,
+                        mid,
+                        BLUE,
+                        4.5,
+                        &format!("{name}: believed median {}", fnum(mid)),
+                    );
+                    let (px, py) = (p.x.px(t), p.y.px(mid));
+                    p.text(px + 7.0, py - 6.0, "start", "note", &name);
+                }
+            }
+            super::predictive::MarkerKind::Median => {
+                let (lo, mid, hi) = (m.q[0], m.q[1], m.q[2]);
+                let hi_c = if hi.is_finite() { hi.min(t_max) } else { t_max };
+                if lo.is_finite() {
+                    p.line(
+                        &[(lo, 0.5), (hi_c, 0.5)],
+                        BLUE,
+                        3.0,
+                        None,
+                        &format!("{name}: believed 10–90 % of the median"),
+                    );
+                }
+                if mid.is_finite() {
+                    p.point(
+                        mid,
+                        0.5,
+                        BLUE,
+                        4.5,
+                        &format!("{name}: believed median of the median {}", fnum(mid)),
+                    );
+                    let (px, py) = (p.x.px(mid), p.y.px(0.5));
+                    p.text(px, py - 9.0, "middle", "note", &name);
+                }
+            }
+        }
+    }
+    p.legend(&[
+        (VERMILLION, Some("6 4"), "implied (50/80/95 %)"),
+        (GREY, None, "samples"),
+        (BLUE, None, "believed (10–90 %)"),
+    ]);
+    p.finish(false)
+}
+
+/// Fresh draws of two implied quantities against each other (at most 1,500
+/// points, finite pairs only), titled with their Spearman correlation.
+pub fn pair_plot(id: &str, xl: &str, yl: &str, x: &[f64], y: &[f64], rho: f64) -> String {
+    let pairs: Vec<(f64, f64)> = x
+        .iter()
+        .zip(y)
+        .filter(|(a, b)| a.is_finite() && b.is_finite())
+        .map(|(a, b)| (*a, *b))
+        .collect();
+    let range = |v: Vec<f64>| -> (f64, f64) {
+        let mut v = v;
+        v.sort_by(f64::total_cmp);
+        if v.is_empty() {
+            return (0.0, 1.0);
+        }
+        let (lo, hi) = (emp_q(&v, 0.005), emp_q(&v, 0.995));
+        let pad = if hi > lo { 0.04 * (hi - lo) } else { 0.5 };
+        (lo - pad, hi + pad)
+    };
+    let xr = range(pairs.iter().map(|p| p.0).collect());
+    let yr = range(pairs.iter().map(|p| p.1).collect());
+    let mut p = Plot::new(
+        id,
+        &format!(
+            "{yl} against {xl} (Spearman ρ = {})",
+            crate::numerics::format::sig(rho, 2)
+        ),
+        (xr.0, xr.1, false),
+        yr,
+        0.0,
+    );
+    p.axes(xl, yl);
+    let step = (pairs.len() / 1500).max(1);
+    let mut dots = String::new();
+    for (a, b) in pairs.iter().step_by(step) {
+        if *a < xr.0 || *a > xr.1 || *b < yr.0 || *b > yr.1 {
+            continue;
+        }
+        let _ = write!(dots, "M{:.1} {:.1}h0.01", p.x.px(*a), p.y.px(*b));
+    }
+    p.raw_path(
+        &dots,
+        VERMILLION,
+        &format!("{} fresh prior draws", pairs.len().div_ceil(step)),
+    );
+    let omitted = x.len() - pairs.len();
+    let note = if omitted > 0 {
+        format!(" · {omitted} draws with an infinite value not shown")
+    } else {
+        String::new()
+    };
+    let (px, py) = (p.x.p0, 18.0);
+    p.text(
+        px,
+        py,
+        "start",
+        "legend",
+        &format!(
+            "Spearman ρ = {}{note}",
+            crate::numerics::format::sig(rho, 2)
+        ),
+    );
+    p.finish(false)
+}
