@@ -1,8 +1,8 @@
 //! The prior-predictive picture in the model's own terms, for the report.
 //!
-//! Survival templates (mixture-cure, with or without a cured fraction): the
-//! population survival curve S(t) = π + (1 − π)·S_u(t) implied by the fitted
-//! prior, per profile the beliefs name, as pointwise 50 / 80 / 95 % bands over a
+//! Survival templates (every template with a `survival_prob` quantity:
+//! mixture cure, promotion-time cure, parametric survival): the population
+//! survival curve S(t) implied by the fitted prior, per profile the beliefs name, as pointwise 50 / 80 / 95 % bands over a
 //! time grid plus a few sample curves, with the survival and median beliefs drawn
 //! on it (believed 10–90 % interval and median).
 //!
@@ -77,11 +77,15 @@ fn num_of(v: Option<&toml::Value>) -> Option<f64> {
     v.and_then(|x| x.as_float().or_else(|| x.as_integer().map(|i| i as f64)))
 }
 
-/// The survival bands of a mixture-cure fit folder, one per profile its beliefs
+/// The survival bands of a survival template's fit folder, one per profile its beliefs
 /// name (the reference profile when none); `None` for other templates or when
 /// the folder has no spec.toml.
 pub fn survival_bands(dir: &Path, rec: &Record) -> Result<Option<Vec<SurvivalBands>>> {
-    if rec.header.template != "mixture-cure" {
+    // Every template with a survival-probability quantity (the survival
+    // templates) draws its curves through it.
+    let survival = crate::templates::find(&rec.header.template)
+        .is_some_and(|t| t.quantities.iter().any(|q| q.name == "survival_prob"));
+    if !survival {
         return Ok(None);
     }
     let path = dir.join("spec.toml");
