@@ -537,6 +537,12 @@ impl Model for MixtureCure {
                 "mixture-cure quantities take no `contrast`; use `profiles` for cure_difference",
             ));
         }
+        if raw.group.is_some() {
+            return Err(ctx.err(
+                &sub("group"),
+                "mixture-cure quantities take no `group` (only r2_share of the regression templates does)",
+            ));
+        }
         let (profiles, names) = if def.at == At::TwoProfiles {
             let ps = raw
                 .profiles
