@@ -128,7 +128,7 @@ impl Regression {
         cols.push(plan.uniforms(coef::R2_STREAM, n));
         // Groups of covariates: G − 1 stick-breaking uniforms ([`super::groups`]).
         if let Some(g) = &self.coef.groups {
-            for k in 0..g.len() - 1 {
+            for k in 0..g.count() - 1 {
                 cols.push(plan.uniforms(super::groups::SHARE_STREAM + k as u64, n));
             }
         }
@@ -233,6 +233,12 @@ impl Regression {
         }
         if needs.rows {
             per_draw += 8 * r;
+        }
+        // Groups of covariates: G − 1 stick uniforms, G² cross products, G values
+        // of Σ s_j²w_j² and of each form (beyond the ungrouped one each).
+        if let Some(g) = &self.coef.groups {
+            let g = g.count() as u64;
+            per_draw += 8 * ((g - 1) + (g * g - 1) + (g - 1) * (1 + forms));
         }
         // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
         let sim = 8 * (k + 8 + 3 * forms.max(1));

@@ -261,7 +261,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
         let why = format!(
             "r2d2 with {} groups of covariates (a Dirichlet over the groups' shares, then one \
              within each group) is not yet exported as code",
-            gr.len()
+            gr.count()
         );
         refuse(&mut code, "stan", why.clone());
         refuse(&mut code, "pymc", why);

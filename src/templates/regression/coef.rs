@@ -341,7 +341,7 @@ impl CoefPrior {
                 // With groups, the Dirichlet splits each group's share over its
                 // own columns ([`super::groups`]); without, one sum.
                 let of = self.groups.as_ref().map(|g| g.of.as_slice());
-                let mut s = vec![0.0; self.groups.as_ref().map_or(1, |g| g.len())];
+                let mut s = vec![0.0; self.groups.as_ref().map_or(1, |g| g.count())];
                 for (j, x) in loc.iter_mut().enumerate() {
                     *x = gamma_variate(self.shape, &mut r);
                     if !self.skip.get(j).copied().unwrap_or(false) {
@@ -503,7 +503,7 @@ pub fn products_grouped(
     let nr = d.rows();
     let nblocks = n.div_ceil(BLOCK);
     if let Some(gr) = grp {
-        let gn = gr.len();
+        let gn = gr.count();
         let one = |b: usize| -> Products {
             let i0 = b * BLOCK;
             let nb = BLOCK.min(n - i0);

@@ -196,7 +196,8 @@ pub fn parse(
 }
 
 impl Grouping {
-    pub fn len(&self) -> usize {
+    /// The number of groups G.
+    pub fn count(&self) -> usize {
         self.names.len()
     }
 
@@ -204,7 +205,7 @@ impl Grouping {
     /// (G − 1 columns), at the weights in `h`.
     pub fn shares(&self, h: &[f64], u: &[Vec<f64>], n: usize) -> Result<Vec<f64>> {
         use crate::dist::Continuous;
-        let g = self.len();
+        let g = self.count();
         let a: Vec<f64> = self.idx.iter().map(|i| h[*i]).collect();
         let mut betas = Vec::with_capacity(g - 1);
         for k in 0..g - 1 {

@@ -90,7 +90,7 @@ impl Regression {
             (g, Prod::Fresh(p))
         };
         let (ng, phi) = match &c.groups {
-            Some(gr) => (gr.len(), gr.shares(h, &base.cols[k + 3..], n)?),
+            Some(gr) => (gr.count(), gr.shares(h, &base.cols[k + 3..], n)?),
             None => (1, Vec::new()),
         };
         let sphi = phi.iter().map(|x| x.sqrt()).collect();

@@ -4,6 +4,7 @@
 
 use super::tests::{cvm_vs, draws, h0, spec, CVM_999_OVER_MEAN};
 use super::*;
+use crate::spec::{parse, Overrides};
 use crate::dist::Continuous;
 use std::sync::Arc;
 
@@ -147,5 +148,37 @@ fn grouped_design_variance_matches_explicit_coefficients() {
             (got - q_unit).abs() <= 1e-8 * q_unit.max(1e-12),
             "draw {i}: {got} vs explicit {q_unit}"
         );
+    }
+}
+
+#[test]
+fn bad_groups_are_named() {
+    // Each refusal names the key and the bad value.
+    let cases = [
+        (
+            GROUPED.replace("covariates = \"rest\"", "covariates = [\"x9\"]"),
+            "\"x10\" is in no group",
+        ),
+        (
+            GROUPED.replace("[\"x6\", \"x7\", \"x8\"]", "[\"x6\", \"x5\"]"),
+            "\"x5\" is already in group `a`",
+        ),
+        (
+            GROUPED.replace("[\"x6\", \"x7\", \"x8\"]", "[\"x6\", \"xx7\"]"),
+            "\"xx7\" is not a design column",
+        ),
+        (GROUPED.replace("weight = 0.5", "weight = -1.0"), "weight -1 must lie in"),
+        (GROUPED.replace("group = \"c\"", "group = \"d\""), "no coefficient group \"d\""),
+        (
+            GROUPED.replace("quantity = \"r2\"\n", "quantity = \"r2\"\ngroup = \"a\"\n"),
+            "only r2_share takes `group`",
+        ),
+    ];
+    for (text, want) in cases {
+        let Err(e) = parse(&text, None, &Overrides::default()) else {
+            panic!("{want}: accepted");
+        };
+        let msg = e.to_string();
+        assert!(msg.contains(want), "{want}: {msg}");
     }
 }
