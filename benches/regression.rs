@@ -8,6 +8,9 @@
 //!   when the objective is built (templates/regression/table.rs), an evaluation
 //!   interpolates them, O(draws × 64): 0.68 ms at p = 1,000 (load ≈ 7.5). Before
 //!   the table: 119 ms (p = 1,000) and 668 ms (p = 5,000) per evaluation, load ≈ 7.
+//! * `eval/r2d2-groups/5000`: R2D2 with two groups of covariates (20 and 4,980
+//!   columns), the weight of one group varied: cached per-group products; the
+//!   cost is the two Beta quantiles per draw (R² and the group share).
 //! * `fit/...`: a whole fit (set-up, global stage, local searches, fresh judgement).
 //!
 //! Run a subset: `cargo bench --bench regression -- eval` (keep runs under a minute).
@@ -51,6 +54,58 @@ distribution = {{ family = "beta", alpha = 3, beta = 9 }}
     parse(&text, None, &Overrides::default()).expect("bench spec")
 }
 
+/// The bench design's linear template with `coef` and the given beliefs.
+fn spec_beliefs(p: usize, coef: &str, beliefs: &str) -> Spec {
+    let text = format!(
+        r#"
+title = "bench"
+[model]
+template = "linear"
+[design]
+columns = {p}
+rows = 200
+correlation = "ar1"
+rho = 0.3
+standardise = true
+[simulation]
+draws = 4000
+seed = 1
+[prior.intercept]
+family = "normal"
+mean = 0.0
+sd = 1.0
+[prior.sigma]
+family = "half-normal"
+scale = 1.0
+[prior.coefficients]
+{coef}
+{beliefs}
+"#
+    );
+    parse(&text, None, &Overrides::default()).expect("bench spec")
+}
+
+/// R2D2 over two groups: x1–x20 ("clinical") and the other p − 20 columns.
+fn grouped(_p: usize) -> String {
+    let cols: Vec<String> = (1..=20).map(|j| format!("\"x{j}\"")).collect();
+    format!(
+        "family = \"r2d2\"\na = {{ fit = [0.2, 20.0] }}\nb = {{ fit = [0.2, 40.0] }}\nconcentration = 0.5\n\
+         [prior.coefficients.groups.clinical]\ncovariates = [{}]\nweight = {{ fit = [0.1, 50.0] }}\n\
+         [prior.coefficients.groups.omics]\ncovariates = \"rest\"\nweight = {{ fit = [0.1, 50.0] }}",
+        cols.join(", ")
+    )
+}
+
+const GROUPED_BELIEFS: &str = r#"
+[[belief]]
+quantity = "r2"
+distribution = { family = "beta", alpha = 3, beta = 9 }
+[[belief]]
+quantity = "r2_share"
+group = "clinical"
+distribution = { family = "beta", alpha = 6, beta = 4 }
+"#;
+
 const HS: &str =
     "family = \"horseshoe\"\nglobal = \"fixed\"\nglobal_scale = { fit = [0.00001, 0.1] }";
 const RHS: &str = "family = \"regularised-horseshoe\"\nglobal = \"fixed\"\nglobal_scale = { fit = [0.00001, 0.1] }\nslab_scale = { fit = [0.1, 5.0] }\nslab_df = 4";
@@ -82,6 +137,30 @@ fn bench(c: &mut Criterion) {
                 })
             });
         }
+    }
+    // R2D2 with two groups (x1–x20 and the rest), p = 5,000: the per-group
+    // products are cached; an evaluation is O(draws·G²) plus one Beta quantile
+    // per draw for W and one per draw for the group share.
+    {
+        let s = spec_beliefs(5000, &grouped(5000), GROUPED_BELIEFS);
+        let mut obj = None;
+        let mut h: Vec<f64> = s.hypers().iter().map(Hyper::default_value).collect();
+        let mut k = 0u32;
+        g.bench_function("r2d2-groups/5000", |b| {
+            let obj = obj.get_or_insert_with(|| {
+                Objective::new(
+                    &s,
+                    4000,
+                    &priorsmith::rng::Plan::fit(1, s.points),
+                    Kind::CramerVonMises,
+                )
+            });
+            b.iter(|| {
+                k += 1;
+                h[6] = 2.0 * (1.0 + 0.01 * (k % 50) as f64);
+                obj.total(&h).expect("objective")
+            })
+        });
     }
     g.finish();
     let mut g = c.benchmark_group("fit");

@@ -40,6 +40,8 @@ pub struct RawBelief {
     pub profile: Option<String>,
     pub profiles: Option<Vec<String>>,
     pub contrast: Option<String>,
+    /// A group of covariates (regression `r2_share`).
+    pub group: Option<String>,
     pub weight: Option<toml::Value>,
     pub distribution: Option<toml::Table>,
     pub quantiles: Option<toml::Table>,

@@ -6,7 +6,7 @@
 use super::quantity::catalogue;
 use super::regression::quantity::{AT_PROFILE, FOR_CONTRAST};
 use super::regression::{
-    self, q_mean, Link, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_SIGNAL,
+    self, q_mean, Link, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_SIGNAL,
 };
 use super::{At, Model, QuantityDef, QuantityInfo, TemplateInfo};
 use crate::dist::Support;
@@ -14,9 +14,10 @@ use crate::error::Result;
 use crate::input::Ctx;
 
 /// The quantity table (the catalogue lists it in this order).
-static QUANTITIES: [RegDef; 9] = [
+static QUANTITIES: [RegDef; 10] = [
     Q_R2,
     Q_R2_MARGINAL,
+    Q_R2_SHARE,
     QuantityDef::new(
         RegQuantity::R2Latent,
         QuantityInfo::new(

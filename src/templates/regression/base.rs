@@ -77,7 +77,7 @@ impl Regression {
     ) -> std::result::Result<Option<Arc<table::Table>>, &'static str> {
         let c = &self.coef;
         let hy = &self.priors.hypers;
-        let n = cols[cols.len() - 3].len();
+        let n = cols[self.priors.priors.len()].len();
         if let Some((p, t)) = self.tables.lock().map_err(|_| POISONED)?.as_ref() {
             if p == plan && t.draws >= n {
                 return Ok(Some(t.clone()));
@@ -91,7 +91,7 @@ impl Regression {
         if !(ulo.is_finite() && uhi.is_finite() && uhi > ulo) {
             return Ok(None);
         }
-        let k = cols.len() - 3;
+        let k = self.priors.priors.len();
         let (gu, cu) = (&cols[k], &cols[k + 1]);
         let mut unit = h0.to_vec();
         unit[c.idx[0]] = 1.0;
@@ -126,6 +126,12 @@ impl Regression {
         cols.push(plan.uniforms(coef::GLOBAL_STREAM, n));
         cols.push(plan.uniforms(coef::SLAB_STREAM, n));
         cols.push(plan.uniforms(coef::R2_STREAM, n));
+        // Groups of covariates: G − 1 stick-breaking uniforms ([`super::groups`]).
+        if let Some(g) = &self.coef.groups {
+            for k in 0..g.count() - 1 {
+                cols.push(plan.uniforms(super::groups::SHARE_STREAM + k as u64, n));
+            }
+        }
         let needs = &self.needs;
         let p = self.design.cols();
         let h0: Vec<f64> = self
@@ -152,7 +158,7 @@ impl Regression {
                 }
             };
             let eff = if needs.eff { Eff::Store } else { Eff::None };
-            ex.cached = Some(coef::products(
+            ex.cached = Some(coef::products_grouped(
                 d,
                 n,
                 &needs.forms,
@@ -161,6 +167,7 @@ impl Regression {
                 eff,
                 true,
                 &fill,
+                c.groups.as_ref(),
             ));
         } else {
             use rayon::prelude::*;
@@ -181,7 +188,9 @@ impl Regression {
                 if ex.table.is_some() {
                     let mut unit = h0.clone();
                     unit[c.idx[1]] = 1.0;
-                    ex.kappa = c.slabs(&unit, &cols[cols.len() - 2]).unwrap_or_default();
+                    ex.kappa = c
+                        .slabs(&unit, &cols[self.priors.priors.len() + 1])
+                        .unwrap_or_default();
                 }
             }
         }
@@ -224,6 +233,12 @@ impl Regression {
         }
         if needs.rows {
             per_draw += 8 * r;
+        }
+        // Groups of covariates: G − 1 stick uniforms, G² cross products, G values
+        // of Σ s_j²w_j² and of each form (beyond the ungrouped one each).
+        if let Some(g) = &self.coef.groups {
+            let g = g.count() as u64;
+            per_draw += 8 * ((g - 1) + (g * g - 1) + (g - 1) * (1 + forms));
         }
         // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
         let sim = 8 * (k + 8 + 3 * forms.max(1));

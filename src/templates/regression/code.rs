@@ -256,6 +256,25 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
         "{p} coefficients per unit of the {unit} design priorsmith fitted on (in design order{cols}{without})"
     );
     let mut code = BTreeMap::new();
+    if let Some(gr) = &c.groups {
+        // Not yet written as code: refused with the reason, never approximately.
+        let why = format!(
+            "r2d2 with {} groups of covariates (a Dirichlet over the groups' shares, then one \
+             within each group) is not yet exported as code",
+            gr.count()
+        );
+        refuse(&mut code, "stan", why.clone());
+        refuse(&mut code, "pymc", why);
+        refuse(
+            &mut code,
+            "brms",
+            "brms's R2D2() puts a single Dirichlet over all its components; the two-level split \
+             over groups and then within each group has no brms form (it is brms's flat one only \
+             when every group's weight equals its column count times the concentration)"
+                .into(),
+        );
+        return code;
+    }
     let stan_decl = format!("vector[{p}] beta;  // {about}");
     let pymc_note = format!("# beta: {about}");
     let mut stan_p = Vec::new();

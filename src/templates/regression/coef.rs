@@ -148,6 +148,8 @@ pub struct CoefPrior {
     /// column; empty when none did): their shared scale is 0, and R2D2's
     /// Dirichlet splits the explained variance over the other columns only.
     pub skip: Vec<bool>,
+    /// R2D2 with groups of covariates ([`super::groups`]).
+    pub groups: Option<super::groups::Grouping>,
 }
 
 fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
@@ -157,7 +159,7 @@ fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
 }
 
 /// Read `[prior.coefficients]`, pushing its hyperparameters onto `hypers`.
-pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
+pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
     let t = ctx.prior_table("coefficients", EXAMPLE)?;
     let path = [key("prior"), key("coefficients")];
     let fam = t.get("family").ok_or_else(|| {
@@ -177,6 +179,9 @@ pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
     let hs = matches!(kind, Kind::Horseshoe | Kind::RegHorseshoe);
     if hs {
         allowed.push("global");
+    }
+    if kind == Kind::R2d2 {
+        allowed.push("groups");
     }
     ctx.check_keys(&path, t, &allowed)?;
     let global_fixed =
@@ -246,6 +251,10 @@ pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
         names.push(*p);
         hypers.push(Hyper::new(format!("coefficients.{p}"), hv));
     }
+    let groups = match t.get("groups") {
+        Some(v) => Some(super::groups::parse(ctx, &path, v, design, hypers)?),
+        None => None,
+    };
     let cached = match kind {
         Kind::RegHorseshoe => false,
         Kind::SpikeSlab => !inclusion_free,
@@ -259,6 +268,7 @@ pub fn parse(ctx: &Ctx, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
         shape,
         cached,
         skip: Vec::new(),
+        groups,
     })
 }
 
@@ -328,14 +338,18 @@ impl CoefPrior {
                 }
             }
             Kind::R2d2 => {
-                let mut s = 0.0;
+                // With groups, the Dirichlet splits each group's share over its
+                // own columns ([`super::groups`]); without, one sum.
+                let of = self.groups.as_ref().map(|g| g.of.as_slice());
+                let mut s = vec![0.0; self.groups.as_ref().map_or(1, |g| g.count())];
                 for (j, x) in loc.iter_mut().enumerate() {
                     *x = gamma_variate(self.shape, &mut r);
                     if !self.skip.get(j).copied().unwrap_or(false) {
-                        s += *x;
+                        s[of.map_or(0, |o| o[j])] += *x;
                     }
                 }
-                for (x, v) in loc.iter_mut().zip(&d.var) {
+                for (j, (x, v)) in loc.iter_mut().zip(&d.var).enumerate() {
+                    let s = s[of.map_or(0, |o| o[j])];
                     *x = if *v > 0.0 { (*x / s / v).sqrt() } else { 0.0 };
                 }
             }
@@ -466,9 +480,103 @@ pub fn products(
     parallel: bool,
     fill: &Fill,
 ) -> Products {
+    products_grouped(d, n, forms, want_rows, want_q, eff, parallel, fill, None)
+}
+
+/// [`products`], with groups of columns ([`super::groups`]): then v and each
+/// form hold G values per draw (draw i at i·G, one per group, unit group
+/// multiplier), q holds the G × G cross products (X_g u_g)ᵀ(X_h u_h)/n per draw
+/// (draw i at i·G²), and the rows are not formed.
+#[allow(clippy::too_many_arguments)]
+pub fn products_grouped(
+    d: &Design,
+    n: usize,
+    forms: &[Vec<(usize, f64)>],
+    want_rows: bool,
+    want_q: bool,
+    eff: Eff,
+    parallel: bool,
+    fill: &Fill,
+    grp: Option<&super::groups::Grouping>,
+) -> Products {
     let p = d.cols();
     let nr = d.rows();
     let nblocks = n.div_ceil(BLOCK);
+    if let Some(gr) = grp {
+        let gn = gr.count();
+        let one = |b: usize| -> Products {
+            let i0 = b * BLOCK;
+            let nb = BLOCK.min(n - i0);
+            let mut bm: Vec<DMatrix<f64>> =
+                gr.cols.iter().map(|c| DMatrix::zeros(c.len(), nb)).collect();
+            let mut w = vec![0.0; p];
+            let mut z = vec![0.0; p];
+            let mut out = Products {
+                q: vec![0.0; nb * gn * gn],
+                v: vec![0.0; nb * gn],
+                forms: vec![vec![0.0; nb * gn]; forms.len()],
+                ..Default::default()
+            };
+            if matches!(eff, Eff::Store) {
+                out.eff_store = vec![0.0; nb * p];
+            }
+            for k in 0..nb {
+                fill(i0 + k, &mut w, &mut z);
+                for j in 0..p {
+                    out.v[k * gn + gr.of[j]] += d.var[j] * w[j] * w[j];
+                    z[j] *= w[j];
+                }
+                for (g, c) in gr.cols.iter().enumerate() {
+                    let mut col = bm[g].column_mut(k);
+                    for (r, j) in c.iter().enumerate() {
+                        col[r] = z[*j];
+                    }
+                }
+                for (f, o) in forms.iter().zip(out.forms.iter_mut()) {
+                    for (j, a) in f {
+                        o[k * gn + gr.of[*j]] += a * z[*j];
+                    }
+                }
+                if matches!(eff, Eff::Store) {
+                    let e = &mut out.eff_store[k * p..(k + 1) * p];
+                    for j in 0..p {
+                        e[j] = (nr as f64 * d.var[j] * w[j] * w[j]) as f32;
+                    }
+                }
+            }
+            if want_q {
+                let m: Vec<DMatrix<f64>> = gr.x.iter().zip(&bm).map(|(x, b)| x * b).collect();
+                for k in 0..nb {
+                    for a in 0..gn {
+                        for c in a..gn {
+                            let x = m[a].column(k).dot(&m[c].column(k)) / nr as f64;
+                            out.q[k * gn * gn + a * gn + c] = x;
+                            out.q[k * gn * gn + c * gn + a] = x;
+                        }
+                    }
+                }
+            }
+            out
+        };
+        let parts: Vec<Products> = if parallel && nblocks > 1 {
+            (0..nblocks).into_par_iter().map(one).collect()
+        } else {
+            (0..nblocks).map(one).collect()
+        };
+        let mut all = Products {
+            forms: vec![Vec::with_capacity(n * gn); forms.len()],
+            ..Default::default()
+        };
+        for b in parts {
+            all.q.extend(b.q);
+            all.v.extend(b.v);
+            for (a, f) in all.forms.iter_mut().zip(b.forms) {
+                a.extend(f);
+            }
+            all.eff_store.extend(b.eff_store);
+        }
+        return all;
+    }
     let one = |b: usize| -> Products {
         let i0 = b * BLOCK;
         let nb = BLOCK.min(n - i0);

@@ -40,6 +40,7 @@
 //! [`code`] (export code).
 
 mod base;
+pub mod groups;
 pub mod code;
 pub mod coef;
 mod link;
@@ -54,6 +55,8 @@ pub mod table;
 #[cfg(test)]
 mod tests;
 #[cfg(test)]
+mod tests_groups;
+#[cfg(test)]
 mod tests_multilevel;
 
 use super::{
@@ -66,7 +69,9 @@ use crate::input::{key, Ctx, Seg};
 use crate::rng;
 use coef::{CoefPrior, Kind};
 pub use link::Link;
-pub use quantity::{q_mean, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_SIGNAL};
+pub use quantity::{
+    q_mean, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_SIGNAL,
+};
 use request::Needs;
 
 pub struct Regression {
@@ -169,7 +174,15 @@ pub(super) fn make(
         None
     };
     let own = own::parse(ctx, &design, &mut priors)?;
-    let mut coef = coef::parse(ctx, &mut priors.hypers)?;
+    let mut coef = coef::parse(ctx, &design, &mut priors.hypers)?;
+    if coef.groups.is_some() && !own.is_empty() {
+        return Err(ctx
+            .err(
+                &[key("prior"), key("coefficients"), key("groups")],
+                "groups of covariates cannot be combined with covariate-specific priors",
+            )
+            .with_hint("put those covariates in a group of their own, or drop `groups`"));
+    }
     if !own.is_empty() {
         coef.skip = (0..design.cols())
             .map(|j| own.iter().any(|o| o.col == j))

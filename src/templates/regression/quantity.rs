@@ -28,6 +28,8 @@ pub enum RegQuantity {
     ClusterSpread,
     R2Fixed,
     R2Conditional,
+    /// A group's share φ_g of the explained variance (R2D2 with groups).
+    R2Share,
 }
 
 impl RegQuantity {
@@ -100,6 +102,17 @@ pub const Q_SIGNAL: RegDef = QuantityDef::new(
     ),
     At::Design,
     Support::Positive,
+);
+
+pub const Q_R2_SHARE: RegDef = QuantityDef::new(
+    RegQuantity::R2Share,
+    QuantityInfo::new(
+        "r2_share",
+        "a group's share φ_g of the explained variance (r2d2 with groups): Beta(A_g, A − A_g)",
+        "group = \"NAME\"",
+    ),
+    At::Design,
+    Support::Unit,
 );
 
 /// `mean_response`, whose support is the template's response scale.

@@ -18,6 +18,8 @@ use crate::templates::{At, Detail, Request};
 pub(super) struct RegDetail {
     pub(super) quantity: RegQuantity,
     pub(super) form: Option<Form>,
+    /// The group of `r2_share` ([`super::groups`]).
+    pub(super) group: Option<usize>,
 }
 
 /// What the beliefs ask for beyond the always-computed products.
@@ -118,6 +120,15 @@ impl Regression {
                 format!("{quantity} takes no `contrast` (only odds_ratio and rate_ratio do)"),
             ));
         }
+        let group = self.group_of(ctx, path, def.kind, raw)?;
+        if self.coef.groups.is_some() && def.kind.needs_rows(self.link) {
+            return Err(ctx
+                .err(
+                    &sub(path, "quantity"),
+                    format!("{quantity} is not available with coefficient groups"),
+                )
+                .with_hint("it needs the linear predictor at every design row; use r2_marginal, r2_share, signal_sd or quantities at a profile"));
+        }
         let mut label = super::multilevel::label(def.kind, self.link)
             .unwrap_or(quantity)
             .to_string();
@@ -146,11 +157,15 @@ impl Regression {
             }
             At::Design | At::TwoProfiles => (Vec::new(), Vec::new(), None),
         };
+        if let (Some(k), Some(gr)) = (group, &self.coef.groups) {
+            label.push_str(&format!(" ({})", gr.names[k]));
+        }
         Ok(Request {
             quantity: quantity.to_string(),
             detail: Detail::new(RegDetail {
                 quantity: def.kind,
                 form,
+                group,
             }),
             horizon: None,
             profiles,
@@ -160,5 +175,39 @@ impl Regression {
             label,
             unit: None,
         })
+    }
+}
+
+impl Regression {
+    /// The group of an `r2_share` belief; `group` on any other quantity is refused.
+    fn group_of(
+        &self,
+        ctx: &Ctx,
+        path: &[Seg],
+        kind: RegQuantity,
+        raw: &RawBelief,
+    ) -> Result<Option<usize>> {
+        let gp = sub(path, "group");
+        if kind != RegQuantity::R2Share {
+            return match &raw.group {
+                Some(_) => Err(ctx.err(&gp, "only r2_share takes `group`")),
+                None => Ok(None),
+            };
+        }
+        let Some(gr) = &self.coef.groups else {
+            return Err(ctx
+                .err(&sub(path, "quantity"), "r2_share needs groups of covariates")
+                .with_hint("family = \"r2d2\" with [prior.coefficients.groups.NAME] tables"));
+        };
+        let name = raw.group.as_deref().ok_or_else(|| {
+            ctx.err(path, "r2_share needs `group`")
+                .with_hint(format!("one of: {}", gr.names.join(", ")))
+        })?;
+        match gr.names.iter().position(|n| n == name) {
+            Some(k) => Ok(Some(k)),
+            None => Err(ctx
+                .err(&gp, format!("no coefficient group \"{name}\""))
+                .with_hint(format!("one of: {}", gr.names.join(", ")))),
+        }
     }
 }

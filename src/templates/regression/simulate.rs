@@ -38,6 +38,12 @@ pub(super) struct Eval<'a> {
     own: Vec<Vec<f64>>,
     /// Random-intercept variances σ_u² (multilevel templates; else empty).
     su2: Vec<f64>,
+    /// Groups of covariates ([`super::groups`]): the number of groups G (1
+    /// without), each draw's shares φ (draws × G) and their square roots, the
+    /// groups' multipliers relative to `g`.
+    ng: usize,
+    phi: Vec<f64>,
+    sphi: Vec<f64>,
 }
 
 impl Regression {
@@ -83,6 +89,11 @@ impl Regression {
             let (g, p) = self.recomputed(h, ex, n, gu, cu, &rho)?;
             (g, Prod::Fresh(p))
         };
+        let (ng, phi) = match &c.groups {
+            Some(gr) => (gr.count(), gr.shares(h, &base.cols[k + 3..], n)?),
+            None => (1, Vec::new()),
+        };
+        let sphi = phi.iter().map(|x| x.sqrt()).collect();
         Ok(Eval {
             model: self,
             n,
@@ -93,6 +104,9 @@ impl Regression {
             prod,
             own,
             su2,
+            ng,
+            phi,
+            sphi,
         })
     }
 
@@ -214,6 +228,10 @@ impl Eval<'_> {
             | RegQuantity::R2Fixed
             | RegQuantity::R2Conditional => self.multilevel(q, o)?,
             RegQuantity::ClusterSpread => self.cluster_spread(r, o)?,
+            RegQuantity::R2Share => {
+                let k = r.detail.get::<RegDetail>()?.group.unwrap_or(usize::MAX);
+                self.share(k, o)?
+            }
         }
         Ok(())
     }
@@ -223,7 +241,7 @@ impl Eval<'_> {
     fn q_total(&self, i: usize) -> f64 {
         let g = self.g[i];
         let prod = self.prod();
-        let mut q = g * g * prod.q[i];
+        let mut q = self.q_shared(i);
         let k = self.own.len();
         if k == 0 {
             return q;
@@ -239,6 +257,48 @@ impl Eval<'_> {
             }
         }
         q.max(0.0)
+    }
+
+    /// The shared coefficients' design variance of draw i: g²q, or with groups
+    /// g²·Σ_ab √(φ_a φ_b) Q_ab.
+    fn q_shared(&self, i: usize) -> f64 {
+        let g = self.g[i];
+        let q = &self.prod().q;
+        let m = self.ng;
+        if m == 1 {
+            return g * g * q[i];
+        }
+        let s = &self.sphi[i * m..(i + 1) * m];
+        let qq = &q[i * m * m..(i + 1) * m * m];
+        let mut t = 0.0;
+        for a in 0..m {
+            for b in 0..m {
+                t += s[a] * s[b] * qq[a * m + b];
+            }
+        }
+        g * g * t
+    }
+
+    /// The shared part of a linear form for draw i: g·f_i, or with groups
+    /// g·Σ_a √φ_a f_ia.
+    fn lin(&self, f: &[f64], i: usize) -> f64 {
+        let m = self.ng;
+        if m == 1 {
+            return self.g[i] * f[i];
+        }
+        let s = &self.sphi[i * m..(i + 1) * m];
+        self.g[i] * s.iter().zip(&f[i * m..(i + 1) * m]).map(|(a, b)| a * b).sum::<f64>()
+    }
+
+    /// The share of the explained variance of group `k`, per draw.
+    fn share(&self, k: usize, o: &mut [f64]) -> Result<()> {
+        if self.phi.len() != self.n * self.ng || k >= self.ng {
+            return Err(Error::Numeric("r2_share asked without coefficient groups".into()));
+        }
+        for (i, v) in o.iter_mut().enumerate() {
+            *v = self.phi[i * self.ng + k];
+        }
+        Ok(())
     }
 
     /// The linear predictor minus α at every design row of draw i, formed
@@ -324,7 +384,7 @@ impl Eval<'_> {
         let f = self.form(r)?;
         let link = self.model.link;
         for (i, v) in o.iter_mut().enumerate() {
-            let eta = self.alpha[i] + self.g[i] * f[i] + self.own_part(r, i)?;
+            let eta = self.alpha[i] + self.lin(f, i) + self.own_part(r, i)?;
             let h = Z95 * self.su2[i].sqrt();
             *v = (response(link, eta + h) - response(link, eta - h)).max(0.0);
         }
@@ -404,7 +464,14 @@ impl Eval<'_> {
                 .zip(&self.own)
                 .map(|(c, b)| var[c.col] * b[i] * b[i])
                 .sum();
-            *v = ratio(g[i] * g[i] * self.prod().v[i] + own, self.rho[i]);
+            let m = self.ng;
+            let vs = if m == 1 {
+                g[i] * g[i] * self.prod().v[i]
+            } else {
+                let vv = &self.prod().v[i * m..(i + 1) * m];
+                g[i] * g[i] * (0..m).map(|a| self.phi[i * m + a] * vv[a]).sum::<f64>()
+            };
+            *v = ratio(vs + own, self.rho[i]);
         }
     }
 
@@ -427,6 +494,19 @@ impl Eval<'_> {
                 "effective_nonzero not prepared in the base draws".into(),
             ));
         }
+        if let Some(gr) = &self.model.coef.groups {
+            let m = self.ng;
+            for (i, v) in o.iter_mut().enumerate() {
+                let t = g[i] * g[i] / self.rho[i];
+                let ph = &self.phi[i * m..(i + 1) * m];
+                *v = prod.eff_store[i * p..(i + 1) * p]
+                    .iter()
+                    .zip(&gr.of)
+                    .map(|(e, a)| coef::shrink_term(*e as f64 * t * ph[*a]))
+                    .sum();
+            }
+            return Ok(());
+        }
         for (i, v) in o.iter_mut().enumerate() {
             let t = g[i] * g[i] / self.rho[i];
             *v = prod.eff_store[i * p..(i + 1) * p]
@@ -441,7 +521,7 @@ impl Eval<'_> {
     fn at_profile(&self, q: RegQuantity, r: &Request, o: &mut [f64]) -> Result<()> {
         let f = self.form(r)?;
         for (i, v) in o.iter_mut().enumerate() {
-            let eta = self.alpha[i] + self.g[i] * f[i] + self.own_part(r, i)?;
+            let eta = self.alpha[i] + self.lin(f, i) + self.own_part(r, i)?;
             *v = match q {
                 RegQuantity::EventProb => logistic(eta),
                 RegQuantity::Rate => eta.exp(),
@@ -455,7 +535,7 @@ impl Eval<'_> {
     fn ratio(&self, r: &Request, o: &mut [f64]) -> Result<()> {
         let f = self.form(r)?;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = (self.g[i] * f[i] + self.own_part(r, i)?).exp();
+            *v = (self.lin(f, i) + self.own_part(r, i)?).exp();
         }
         Ok(())
     }
@@ -479,7 +559,9 @@ impl Eval<'_> {
     fn signal_sd(&self, o: &mut [f64]) {
         let g = &self.g;
         for (i, v) in o.iter_mut().enumerate() {
-            *v = if self.own.is_empty() {
+            *v = if self.ng > 1 {
+                self.q_shared(i).sqrt()
+            } else if self.own.is_empty() {
                 g[i].abs() * self.prod().q[i].sqrt()
             } else {
                 self.q_total(i).sqrt()

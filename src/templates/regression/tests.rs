@@ -312,6 +312,7 @@ fn logistic_event_prob_is_logistic_of_linear_predictor() {
         shape: 0.0,
         cached: true,
         skip: Vec::new(),
+        groups: None,
     };
     let des = crate::design::Design::from_rows(
         "t".into(),

@@ -664,6 +664,15 @@ impl Model for Survival {
                 ),
             ));
         }
+        if raw.group.is_some() {
+            return Err(ctx.err(
+                &sub("group"),
+                format!(
+                    "{} quantities take no `group` (only r2_share of the regression templates does)",
+                    self.info.name
+                ),
+            ));
+        }
         let (profiles, names) = if def.at == At::TwoProfiles {
             let ps = raw
                 .profiles
