@@ -36,6 +36,10 @@ pub struct SweepPoint {
 }
 
 /// Check and sort width factors (finite, > 0, distinct).
+/// Narrowest and widest width factors a sweep takes.
+pub const MIN_WIDTH: f64 = 0.01;
+pub const MAX_WIDTH: f64 = 100.0;
+
 pub fn check_widths(widths: &[f64]) -> std::result::Result<Vec<f64>, String> {
     if widths.is_empty() {
         return Err("give at least one width factor".into());
@@ -44,6 +48,11 @@ pub fn check_widths(widths: &[f64]) -> std::result::Result<Vec<f64>, String> {
     for x in &w {
         if !(x.is_finite() && *x > 0.0) {
             return Err(format!("width factor {x} must be a finite number > 0"));
+        }
+        if !(MIN_WIDTH..=MAX_WIDTH).contains(x) {
+            return Err(format!(
+                "width factor {x:e} is outside [{MIN_WIDTH}, {MAX_WIDTH}] (a belief {MAX_WIDTH}× wider or narrower says nothing more)"
+            ));
         }
     }
     w.sort_by(f64::total_cmp);

@@ -72,6 +72,11 @@ fn command_line_arguments_and_values_are_2() {
             vec!["sweep", s(&spec), "--widths", "1,x", "--out", s(&out)],
             "`x` is not a number",
         ),
+        // Used to fit every width, then fail on "File name too long".
+        (
+            vec!["sweep", s(&spec), "--widths", "1,1e300", "--out", s(&out)],
+            "width factor 1e300 is outside [0.01, 100]",
+        ),
         (
             vec!["simulate", s(&spec), "--set", "cure_logt.mean=1"],
             "did you mean `cure_logit.mean`",
@@ -105,6 +110,11 @@ fn command_line_arguments_and_values_are_2() {
         );
     }
     assert!(!out.exists(), "a usage error created the output folder");
+    // A thread count far beyond the cores is capped with a note, not obeyed
+    // (10,000 threads made a 0.6 s fit take 53 s).
+    let r = run(&["--threads", "10000", "check", s(&spec)]);
+    assert_eq!(r.status.code(), Some(0));
+    assert!(stderr(&r).contains("--threads 10000 capped at"), "{}", stderr(&r));
 }
 
 #[test]
