@@ -439,7 +439,9 @@ fn rows_left_to_precision_mode_fit_at_batch_draws_and_refit_the_same() {
     let m = out.join("models").join("r1");
     let v: serde_json::Value = serde_json::from_str(&read(&m.join("fit.json"))).unwrap();
     assert_eq!(v["draws"], priorsmith::batch::BATCH_DRAWS as u64);
-    assert!(read(&m.join("spec.toml")).contains(&format!("draws = {}", priorsmith::batch::BATCH_DRAWS)));
+    assert!(
+        read(&m.join("spec.toml")).contains(&format!("draws = {}", priorsmith::batch::BATCH_DRAWS))
+    );
     let refit = d.path().join("refit");
     let st = common::bin()
         .args(["-q", "fit"])

@@ -114,7 +114,11 @@ fn command_line_arguments_and_values_are_2() {
     // (10,000 threads made a 0.6 s fit take 53 s).
     let r = run(&["--threads", "10000", "check", s(&spec)]);
     assert_eq!(r.status.code(), Some(0));
-    assert!(stderr(&r).contains("--threads 10000 capped at"), "{}", stderr(&r));
+    assert!(
+        stderr(&r).contains("--threads 10000 capped at"),
+        "{}",
+        stderr(&r)
+    );
 }
 
 #[test]

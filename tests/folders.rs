@@ -104,7 +104,10 @@ fn a_refit_leaves_no_stale_files_and_keeps_the_previous_set() {
     let b = write(d.path(), "b.toml", &spec_with_seed(1));
     let out = d.path().join("out");
     assert!(fit(&a, &out, None).status.success());
-    assert!(out.join("pareto.csv").exists(), "the traced front is written");
+    assert!(
+        out.join("pareto.csv").exists(),
+        "the traced front is written"
+    );
     let o = fit(&b, &out, None);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(
@@ -137,7 +140,11 @@ fn a_second_writer_is_refused_and_a_file_is_not_a_folder() {
     let f = write(d.path(), "plain", "x");
     let o = fit(&a, &f, None);
     assert_eq!(o.status.code(), Some(4));
-    assert!(stderr(&o).contains("a file, not a folder"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("a file, not a folder"),
+        "{}",
+        stderr(&o)
+    );
     let l = d.path().join("dangling");
     std::os::unix::fs::symlink(d.path().join("nowhere"), &l).unwrap();
     let o = fit(&a, &l, None);

@@ -599,7 +599,8 @@ fn refuse_other_batch(dir: &Path, identity: &str) -> Result<()> {
     };
     let man_path = dir.join("batch.json");
     if man_path.exists() {
-        let text = crate::limits::read_text(&man_path, crate::limits::TEXT_BYTES, "batch manifest")?;
+        let text =
+            crate::limits::read_text(&man_path, crate::limits::TEXT_BYTES, "batch manifest")?;
         return match serde_json::from_str::<Manifest>(&text) {
             Ok(m) if m.identity.as_deref().is_none_or(|i| i == identity) => Ok(()),
             Ok(m) => refuse(format!(

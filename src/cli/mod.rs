@@ -510,7 +510,8 @@ fn cmd_fit(
 /// itself it is copied as it is. Returns whether it was rewritten.
 fn write_spec_copy(a: &SpecArgs, out: &Path, dir: &Path) -> Result<bool> {
     let target = dir.join("spec.toml");
-    let text = priorsmith::limits::read_text(&a.spec, priorsmith::limits::TEXT_BYTES, "belief file")?;
+    let text =
+        priorsmith::limits::read_text(&a.spec, priorsmith::limits::TEXT_BYTES, "belief file")?;
     if let (Ok(x), Ok(y)) = (a.spec.canonicalize(), out.join("spec.toml").canonicalize()) {
         if x == y {
             output::write_atomic(&target, text.as_bytes())?;
@@ -727,7 +728,10 @@ fn cmd_demo(out: &Path, quiet: bool, require_met: bool, ov: &Overrides) -> Resul
         let spec = spec::parse(s.text, Some(&spec_path), ov)
             .with_context(|| format!("demo scenario {}", s.name))?;
         let r = fit_and_write(&spec, &dir, quiet, |dir| {
-            Ok(output::write_atomic(&dir.join("spec.toml"), s.text.as_bytes())?)
+            Ok(output::write_atomic(
+                &dir.join("spec.toml"),
+                s.text.as_bytes(),
+            )?)
         })?;
         rows.push((s.name, r));
     }

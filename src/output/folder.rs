@@ -80,7 +80,9 @@ impl Staging {
                 };
                 return Err(Error::io(
                     target,
-                    std::io::Error::other(format!("the output path is {what}; choose another --out")),
+                    std::io::Error::other(format!(
+                        "the output path is {what}; choose another --out"
+                    )),
                 ));
             }
         }

@@ -3,14 +3,23 @@
 //! response. Machinery, formulas and references: [`super::regression`].
 
 use super::quantity::catalogue;
-use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_SIGNAL};
+use super::regression::{
+    self, q_mean, Link, RegDef, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_SIGNAL,
+};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
 use crate::error::Result;
 use crate::input::Ctx;
 
 /// The quantity table (the catalogue lists it in this order).
-static QUANTITIES: [RegDef; 6] = [Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_EFF, q_mean(Support::Real), Q_SIGNAL];
+static QUANTITIES: [RegDef; 6] = [
+    Q_R2,
+    Q_R2_MARGINAL,
+    Q_R2_SHARE,
+    Q_EFF,
+    q_mean(Support::Real),
+    Q_SIGNAL,
+];
 
 pub static INFO: TemplateInfo = TemplateInfo {
     name: "linear",

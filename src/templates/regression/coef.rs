@@ -507,8 +507,11 @@ pub fn products_grouped(
         let one = |b: usize| -> Products {
             let i0 = b * BLOCK;
             let nb = BLOCK.min(n - i0);
-            let mut bm: Vec<DMatrix<f64>> =
-                gr.cols.iter().map(|c| DMatrix::zeros(c.len(), nb)).collect();
+            let mut bm: Vec<DMatrix<f64>> = gr
+                .cols
+                .iter()
+                .map(|c| DMatrix::zeros(c.len(), nb))
+                .collect();
             let mut w = vec![0.0; p];
             let mut z = vec![0.0; p];
             let mut out = Products {

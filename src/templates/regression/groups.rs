@@ -76,7 +76,10 @@ pub fn parse(
         return Err(ctx
             .err(
                 &gpath,
-                format!("{} group(s) given; give between 2 and {MAX_GROUPS}", t.len()),
+                format!(
+                    "{} group(s) given; give between 2 and {MAX_GROUPS}",
+                    t.len()
+                ),
             )
             .with_hint(format!("e.g.\n  {EXAMPLE}")));
     }
@@ -95,7 +98,9 @@ pub fn parse(
         ctx.check_keys(&np, gt, &["covariates", "weight"])?;
         let cv = gt.get("covariates").ok_or_else(|| {
             ctx.err(&np, format!("group `{name}` needs `covariates`"))
-                .with_hint("a list of design columns, or \"rest\" for every column no other group names")
+                .with_hint(
+                    "a list of design columns, or \"rest\" for every column no other group names",
+                )
         })?;
         let cp = sub(&np, "covariates");
         match cv {

@@ -40,9 +40,9 @@
 //! [`code`] (export code).
 
 mod base;
-pub mod groups;
 pub mod code;
 pub mod coef;
+pub mod groups;
 mod link;
 pub mod multilevel;
 pub mod own;
@@ -69,9 +69,7 @@ use crate::input::{key, Ctx, Seg};
 use crate::rng;
 use coef::{CoefPrior, Kind};
 pub use link::Link;
-pub use quantity::{
-    q_mean, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_SIGNAL,
-};
+pub use quantity::{q_mean, RegDef, RegQuantity, Q_EFF, Q_R2, Q_R2_MARGINAL, Q_R2_SHARE, Q_SIGNAL};
 use request::Needs;
 
 pub struct Regression {

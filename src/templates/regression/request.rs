@@ -196,7 +196,10 @@ impl Regression {
         }
         let Some(gr) = &self.coef.groups else {
             return Err(ctx
-                .err(&sub(path, "quantity"), "r2_share needs groups of covariates")
+                .err(
+                    &sub(path, "quantity"),
+                    "r2_share needs groups of covariates",
+                )
                 .with_hint("family = \"r2d2\" with [prior.coefficients.groups.NAME] tables"));
         };
         let name = raw.group.as_deref().ok_or_else(|| {

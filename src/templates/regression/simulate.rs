@@ -287,13 +287,19 @@ impl Eval<'_> {
             return self.g[i] * f[i];
         }
         let s = &self.sphi[i * m..(i + 1) * m];
-        self.g[i] * s.iter().zip(&f[i * m..(i + 1) * m]).map(|(a, b)| a * b).sum::<f64>()
+        self.g[i]
+            * s.iter()
+                .zip(&f[i * m..(i + 1) * m])
+                .map(|(a, b)| a * b)
+                .sum::<f64>()
     }
 
     /// The share of the explained variance of group `k`, per draw.
     fn share(&self, k: usize, o: &mut [f64]) -> Result<()> {
         if self.phi.len() != self.n * self.ng || k >= self.ng {
-            return Err(Error::Numeric("r2_share asked without coefficient groups".into()));
+            return Err(Error::Numeric(
+                "r2_share asked without coefficient groups".into(),
+            ));
         }
         for (i, v) in o.iter_mut().enumerate() {
             *v = self.phi[i * self.ng + k];

@@ -4,8 +4,8 @@
 
 use super::tests::{cvm_vs, draws, h0, spec, CVM_999_OVER_MEAN};
 use super::*;
-use crate::spec::{parse, Overrides};
 use crate::dist::Continuous;
+use crate::spec::{parse, Overrides};
 use std::sync::Arc;
 
 const GROUPED: &str = r#"
@@ -71,7 +71,10 @@ fn dirichlet_aggregation_gives_beta_share() {
     let mut r = rng::stream(11, 0);
     let x: Vec<f64> = (0..n)
         .map(|_| {
-            let g: Vec<f64> = conc.iter().map(|c| coef::gamma_variate(*c, &mut r)).collect();
+            let g: Vec<f64> = conc
+                .iter()
+                .map(|c| coef::gamma_variate(*c, &mut r))
+                .collect();
             g[..5].iter().sum::<f64>() / g.iter().sum::<f64>()
         })
         .collect();
@@ -107,11 +110,17 @@ fn group_shares_are_beta_and_marginal_r2_stays_beta() {
     for (k, (a, b)) in [(0, (1.5, 2.5)), (1, (0.5, 3.5)), (4, (2.0, 2.0))] {
         let d0 = crate::dist::beta::Beta::new(a, b).unwrap();
         let (d, floor) = cvm_vs(Arc::new(d0), out[k].clone());
-        assert!(d < CVM_999_OVER_MEAN * floor, "belief {k}: CvM {d} vs floor {floor}");
+        assert!(
+            d < CVM_999_OVER_MEAN * floor,
+            "belief {k}: CvM {d} vs floor {floor}"
+        );
     }
     let d0 = crate::dist::beta::Beta::new(2.0, 5.0).unwrap();
     let (d, floor) = cvm_vs(Arc::new(d0), out[2].clone());
-    assert!(d < CVM_999_OVER_MEAN * floor, "r2_marginal: CvM {d} vs floor {floor}");
+    assert!(
+        d < CVM_999_OVER_MEAN * floor,
+        "r2_marginal: CvM {d} vs floor {floor}"
+    );
 }
 
 #[test]
@@ -127,14 +136,22 @@ fn grouped_design_variance_matches_explicit_coefficients() {
     let raw: crate::input::raw::RawSpec = toml::from_str(GROUPED).unwrap();
     let map = crate::input::SourceMap::new(GROUPED);
     let ctx = crate::input::Ctx::new(None, &map, &raw);
-    let m = make(&ctx, &crate::templates::linear::INFO, Link::Identity, &[], false).unwrap();
+    let m = make(
+        &ctx,
+        &crate::templates::linear::INFO,
+        Link::Identity,
+        &[],
+        false,
+    )
+    .unwrap();
     let d = &m.design;
     let gr = m.coef.groups.as_ref().unwrap();
     let (p, nr) = (d.cols(), d.rows());
     let mut z = vec![0.0; p];
     let mut loc = vec![0.0; p];
     for i in (0..n).step_by(7) {
-        m.coef.base_draw(d, plan.seed, plan.block, i, &mut z, &mut loc);
+        m.coef
+            .base_draw(d, plan.seed, plan.block, i, &mut z, &mut loc);
         let phi = [out[0][i], out[4][i], out[1][i]];
         let beta: Vec<f64> = (0..p)
             .map(|j| phi[gr.of[j]].sqrt() * loc[j] * z[j])
@@ -167,8 +184,14 @@ fn bad_groups_are_named() {
             GROUPED.replace("[\"x6\", \"x7\", \"x8\"]", "[\"x6\", \"xx7\"]"),
             "\"xx7\" is not a design column",
         ),
-        (GROUPED.replace("weight = 0.5", "weight = -1.0"), "weight -1 must lie in"),
-        (GROUPED.replace("group = \"c\"", "group = \"d\""), "no coefficient group \"d\""),
+        (
+            GROUPED.replace("weight = 0.5", "weight = -1.0"),
+            "weight -1 must lie in",
+        ),
+        (
+            GROUPED.replace("group = \"c\"", "group = \"d\""),
+            "no coefficient group \"d\"",
+        ),
         (
             GROUPED.replace("quantity = \"r2\"\n", "quantity = \"r2\"\ngroup = \"a\"\n"),
             "only r2_share takes `group`",
