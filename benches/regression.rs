@@ -23,35 +23,11 @@ use priorsmith::templates::Hyper;
 use std::time::Duration;
 
 fn spec(p: usize, coef: &str) -> Spec {
-    let text = format!(
-        r#"
-title = "bench"
-[model]
-template = "linear"
-[design]
-columns = {p}
-rows = 200
-correlation = "ar1"
-rho = 0.3
-standardise = true
-[simulation]
-draws = 4000
-seed = 1
-[prior.intercept]
-family = "normal"
-mean = 0.0
-sd = 1.0
-[prior.sigma]
-family = "half-normal"
-scale = 1.0
-[prior.coefficients]
-{coef}
-[[belief]]
-quantity = "r2"
-distribution = {{ family = "beta", alpha = 3, beta = 9 }}
-"#
-    );
-    parse(&text, None, &Overrides::default()).expect("bench spec")
+    spec_beliefs(
+        p,
+        coef,
+        "[[belief]]\nquantity = \"r2\"\ndistribution = { family = \"beta\", alpha = 3, beta = 9 }",
+    )
 }
 
 /// The bench design's linear template with `coef` and the given beliefs.
