@@ -33,6 +33,12 @@ pub const NAMES: &[(&str, &str)] = &[
     ("odds_ratio", "odds ratio"),
     ("rate_ratio", "rate ratio"),
     ("signal_sd", "signal standard deviation"),
+    ("r2_fixed", "marginal R² (fixed effects)"),
+    ("r2_conditional", "conditional R²"),
+    ("icc", "intraclass correlation"),
+    ("median_odds_ratio", "median odds ratio"),
+    ("median_rate_ratio", "median rate ratio"),
+    ("cluster_spread", "spread between clusters"),
 ];
 
 /// The readable name of a quantity (its name with spaces when unknown).

@@ -333,6 +333,7 @@ fn predictive_section(
         }
         Ok(None) => {}
     }
+    html.push_str(&regression_section(dir, rec, svgs));
     let n = bs.len().min(PAIR_BELIEFS);
     if n >= 2 {
         let cols = read_draws(&dir.join("draws.csv"), bs.len())?;
@@ -354,6 +355,80 @@ fn predictive_section(
     }
     html.push_str("</section>\n");
     Ok(html)
+}
+
+/// The regression picture (see [`super::regression`]): the response at each
+/// profile and the R²-type quantities, with their beliefs. Like the survival
+/// curves it is an addition: a spec.toml that no longer validates costs the
+/// picture, with a sentence saying why.
+fn regression_section(
+    dir: &Path,
+    rec: &record::FitRecord,
+    svgs: &mut dyn FnMut(&str, &str),
+) -> String {
+    let mut html = String::new();
+    let pic = match super::regression::regression_picture(dir, rec) {
+        Err(e) => {
+            let _ = writeln!(html, "<p class=\"help\">No prior-predictive picture of the model: this folder's <code>spec.toml</code> could not be re-simulated ({}).</p>", esc(&e.to_string()));
+            return html;
+        }
+        Ok(None) => {
+            if crate::templates::find(&rec.header.template)
+                .is_some_and(|t| t.quantities.iter().any(|q| q.name == "mean_response"))
+            {
+                html.push_str("<p class=\"help\">No prior-predictive picture of the model: this folder has no <code>spec.toml</code> to re-simulate it from (fit it again to write one).</p>\n");
+            }
+            return html;
+        }
+        Ok(Some(p)) => p,
+    };
+    let what = labels::quantity(&pic.response);
+    let _ = writeln!(html, "<p class=\"help\">What the fitted prior implies in the model's own terms, re-simulated from this folder's <code>spec.toml</code> at the fitted hyperparameters ({} prior draws, seed {}): for each quantity, the 50 % (dark), 80 % and 95 % (light) prior-predictive intervals and the median (dot); a belief about the same quantity is drawn beside it in blue (believed 10–90 % interval and median).</p>",
+        super::predictive::CURVE_DRAWS, rec.header.seed);
+    html.push_str("<div class=\"figs\">\n");
+    let cats: Vec<(String, &super::regression::Interval)> = pic
+        .profiles
+        .iter()
+        .map(|iv| {
+            let name = if iv.profile == "reference" {
+                "reference (design mean)".to_string()
+            } else {
+                iv.profile.clone()
+            };
+            (name, iv)
+        })
+        .collect();
+    let unit = pic.response == "event_prob";
+    let plot = interval_plot(
+        "response",
+        &format!("Prior-predictive {what} at each profile"),
+        &what,
+        &cats,
+        unit,
+    );
+    svgs("response", &plot);
+    let _ = writeln!(html, "<figure>{plot}<figcaption>Prior-predictive {} at the reference profile (every covariate at its design mean) and at each profile of the belief file{}.</figcaption></figure>",
+        esc(&what),
+        if pic.response == "rate" { ", per unit exposure" } else { "" });
+    if !pic.shares.is_empty() {
+        let cats: Vec<(String, &super::regression::Interval)> = pic
+            .shares
+            .iter()
+            .map(|iv| (labels::quantity(&iv.quantity), iv))
+            .collect();
+        let plot = interval_plot(
+            "variance-explained",
+            "Prior-predictive R² and variance shares",
+            "share of variance",
+            &cats,
+            true,
+        );
+        svgs("variance-explained", &plot);
+        let _ = writeln!(html, "<figure>{plot}<figcaption>How much of the outcome's variance the fitted prior lets the model explain: {}.</figcaption></figure>",
+            esc(&cats.iter().map(|c| c.0.clone()).collect::<Vec<_>>().join(", ")));
+    }
+    html.push_str("</div>\n");
+    html
 }
 
 /// The tie-break in a sentence.

@@ -21,6 +21,7 @@ mod assets;
 mod html;
 mod plots;
 pub mod predictive;
+pub mod regression;
 mod view;
 
 pub use html::render;
