@@ -1,0 +1,131 @@
+//! The report's prior-predictive pictures beyond the survival bands (those are
+//! tested in tests/export.rs): the regression templates' intervals of the
+//! response at each profile and of the R²-type quantities, and each expert's
+//! curve beside a pooled belief.
+
+mod common;
+use common::*;
+use std::path::{Path, PathBuf};
+
+/// `priorsmith new TEMPLATE` in `dir`, with `extra` appended; returns the file.
+fn starter(dir: &Path, template: &str, extra: &str) -> PathBuf {
+    let spec = dir.join(format!("{template}.toml"));
+    let o = run(&["new", template, "--out", spec.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let mut text = std::fs::read_to_string(&spec).unwrap();
+    text.push_str(extra);
+    std::fs::write(&spec, text).unwrap();
+    spec
+}
+
+fn fit(spec: &Path, out: &Path) {
+    let o = run(&[
+        "fit",
+        spec.to_str().unwrap(),
+        "--draws",
+        "2000",
+        "-q",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+}
+
+/// The picture's median of one interval against the implied median of the
+/// fit's fresh draws (fit.json: an independent draw set of the same prior).
+/// SE of a sample median: sd·√(π/(2n)) with sd ≈ IQR/1.349 (normal
+/// approximation, common practice); the difference of two independent medians
+/// has the two variances added; tolerance 4 SE (as the survival bands' test).
+fn agrees(what: &str, iv: &priorsmith::report::regression::Interval, r: &priorsmith::fit::BeliefReport, n_fit: f64) {
+    let k = r
+        .probs
+        .iter()
+        .position(|p| (p - 0.5).abs() < 1e-12)
+        .expect("the record has the implied median");
+    let implied = r.implied_quantiles[k];
+    let sd = (iv.q[4] - iv.q[2]) / 1.349;
+    let n_pic = priorsmith::report::predictive::CURVE_DRAWS as f64;
+    let se = sd * (std::f64::consts::PI / 2.0 * (1.0 / n_fit + 1.0 / n_pic)).sqrt();
+    assert!(se > 0.0, "{what}: a degenerate interval");
+    let diff = (iv.q[3] - implied).abs();
+    assert!(
+        diff <= 4.0 * se,
+        "{what}: picture median {} vs fit.json {implied} (4 SE = {})",
+        iv.q[3],
+        4.0 * se
+    );
+    // The intervals are nested around the median.
+    for j in 1..iv.q.len() {
+        assert!(iv.q[j - 1] <= iv.q[j], "{what}: intervals cross: {:?}", iv.q);
+    }
+}
+
+/// Logistic starter with a second profile: the event probability at the
+/// reference profile agrees with fit.json's implied event probability (belief
+/// 1), the named profile is drawn too, and the report holds both plots and
+/// renders them the same twice.
+#[test]
+fn regression_picture_agrees_with_the_recorded_event_probability() {
+    let d = tempfile::tempdir().unwrap();
+    let spec = starter(d.path(), "logistic", "\n[profile.high_x1]\nx1 = 2.0\n");
+    let out = d.path().join("out");
+    fit(&spec, &out);
+    let rec = priorsmith::export::record::read(&out.join("fit.json")).unwrap();
+    let pic = priorsmith::report::regression::regression_picture(&out, &rec)
+        .unwrap()
+        .expect("a logistic folder with spec.toml has a picture");
+    assert_eq!(pic.response, "event_prob");
+    let names: Vec<&str> = pic.profiles.iter().map(|p| p.profile.as_str()).collect();
+    assert_eq!(names, ["reference", "high_x1"]);
+    let r = &rec.fit.beliefs[0];
+    assert_eq!(r.quantity, "event_prob");
+    let iv = &pic.profiles[0];
+    assert_eq!(iv.belief.map(|b| b.0), Some(1), "belief 1 drawn at the reference");
+    assert!(pic.profiles[1].belief.is_none());
+    agrees("event_prob at the reference", iv, r, rec.fit.draws as f64);
+    // Logistic has the Bayesian and the latent-scale R², no belief on either.
+    let shares: Vec<&str> = pic.shares.iter().map(|s| s.quantity.as_str()).collect();
+    assert_eq!(shares, ["r2", "r2_latent"]);
+    assert!(pic.shares.iter().all(|s| s.belief.is_none()));
+    assert!(pic
+        .shares
+        .iter()
+        .all(|s| s.q.iter().all(|v| (0.0..=1.0).contains(v))));
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    for id in ["response", "variance-explained"] {
+        assert!(html.contains(&format!("id=\"{id}\"")), "{id} missing");
+        assert!(out.join("plots").join(format!("{id}.svg")).is_file());
+    }
+    assert!(html.contains("high_x1"));
+    let svg1 = std::fs::read(out.join("plots/response.svg")).unwrap();
+    let o = run(&["report", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(svg1, std::fs::read(out.join("plots/response.svg")).unwrap());
+    // Without spec.toml: no picture, and a sentence saying why.
+    std::fs::remove_file(out.join("spec.toml")).unwrap();
+    let o = run(&["report", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("No prior-predictive picture of the model"));
+    assert!(!html.contains("id=\"response\""));
+}
+
+/// Linear starter (an R² belief): the picture's R² agrees with fit.json's
+/// implied R², and the belief is drawn on it.
+#[test]
+fn regression_picture_agrees_with_the_recorded_r2() {
+    let d = tempfile::tempdir().unwrap();
+    let spec = starter(d.path(), "linear", "");
+    let out = d.path().join("out");
+    fit(&spec, &out);
+    let rec = priorsmith::export::record::read(&out.join("fit.json")).unwrap();
+    let pic = priorsmith::report::regression::regression_picture(&out, &rec)
+        .unwrap()
+        .expect("a linear folder with spec.toml has a picture");
+    assert_eq!(pic.response, "mean_response");
+    let r2 = pic.shares.iter().find(|s| s.quantity == "r2").unwrap();
+    assert_eq!(r2.belief.map(|b| b.0), Some(1));
+    let r = &rec.fit.beliefs[0];
+    assert_eq!(r.quantity, "r2");
+    agrees("R²", r2, r, rec.fit.draws as f64);
+}
