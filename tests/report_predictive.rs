@@ -129,3 +129,93 @@ fn regression_picture_agrees_with_the_recorded_r2() {
     assert_eq!(r.quantity, "r2");
     agrees("R²", r2, r, rec.fit.draws as f64);
 }
+
+/// The mixture-cure starter with its cure-fraction belief stated by two experts.
+fn pooled_spec(dir: &Path, weights: (&str, &str)) -> PathBuf {
+    let spec = dir.join("mixture-cure.toml");
+    let o = run(&["new", "mixture-cure", "--out", spec.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&spec).unwrap();
+    let single = "quantity = \"cure_fraction\"\nquantiles = { \"0.1\" = 0.15, \"0.5\" = 0.25, \"0.9\" = 0.40 }";
+    assert!(text.contains(single), "the starter's cure-fraction belief changed");
+    let pooled = format!(
+        "quantity = \"cure_fraction\"\nexperts = [\n  {{ name = \"Ana\", weight = {}, quantiles = {{ \"0.1\" = 0.12, \"0.5\" = 0.2, \"0.9\" = 0.32 }} }},\n  {{ name = \"Ben\", weight = {}, distribution = {{ family = \"beta\", alpha = 6, beta = 14 }} }},\n]",
+        weights.0, weights.1
+    );
+    std::fs::write(&spec, text.replace(single, &pooled)).unwrap();
+    spec
+}
+
+/// Linear interpolation of a tabulated CDF (flat outside the table).
+fn interp(x: &[f64], f: &[f64], at: f64) -> f64 {
+    let k = x.partition_point(|v| *v <= at);
+    if k == 0 {
+        return 0.0;
+    }
+    if k == x.len() {
+        return f[f.len() - 1];
+    }
+    let t = (at - x[k - 1]) / (x[k] - x[k - 1]);
+    f[k - 1] + t * (f[k] - f[k - 1])
+}
+
+/// A pooled belief: each expert's CDF is drawn beside the pool, labelled by name
+/// and weight in the pool; the stated weights 2 and 1 are said to be normalised;
+/// the pool recorded in fit.json is the weighted sum of the experts' curves the
+/// report draws (the linear opinion pool F = Σ w_e F_e, Stone 1961).
+#[test]
+fn pooled_belief_draws_each_expert() {
+    let d = tempfile::tempdir().unwrap();
+    let spec = pooled_spec(d.path(), ("2", "1"));
+    let out = d.path().join("out");
+    fit(&spec, &out);
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        html.contains("Ana (weight 2 → 0.667), Ben (weight 1 → 0.333); weights normalised to sum to 1"),
+        "expert line missing"
+    );
+    let svg = std::fs::read_to_string(out.join("plots/belief-1-cdf.svg")).unwrap();
+    for label in ["Ana (weight 0.667)", "Ben (weight 0.333)"] {
+        assert!(svg.contains(&format!("<title>{label}</title>")), "{label} curve");
+        assert!(svg.contains(&format!(">{label}</text>")), "{label} label");
+    }
+    // Beliefs without experts draw none.
+    let svg2 = std::fs::read_to_string(out.join("plots/belief-2-cdf.svg")).unwrap();
+    assert!(!svg2.contains("each expert"));
+    // The record's pool against Σ share_e F_e of the drawn expert curves.
+    let rec = priorsmith::export::record::read(&out.join("fit.json")).unwrap();
+    assert!(rec.fit.beliefs[0]
+        .stated_as
+        .ends_with("weights normalised to sum to 1"));
+    let mut bs =
+        priorsmith::report::beliefs(&rec.file, &rec.fit, &out.join("draws.csv")).unwrap();
+    assert!(priorsmith::report::experts::attach(&out, &mut bs).unwrap());
+    let ex = &bs[0].experts;
+    assert_eq!(ex.len(), 2);
+    assert!((ex[0].share - 2.0 / 3.0).abs() < 1e-12);
+    let pool = &rec.fit.beliefs[0].believed_curve;
+    let mut worst: f64 = 0.0;
+    for (x, f) in pool.x.iter().zip(&pool.cdf) {
+        let mix: f64 = ex
+            .iter()
+            .map(|e| e.share * interp(&e.curve.x, &e.curve.cdf, *x))
+            .sum();
+        worst = worst.max((mix - f).abs());
+    }
+    // Tolerance: linear interpolation between 200 tabulated points of a smooth
+    // CDF (the tables are not on the same x), common practice.
+    assert!(worst < 5e-3, "pool vs weighted experts: max |ΔF| = {worst}");
+    assert!(bs[1].experts.is_empty());
+}
+
+/// Weights that already sum to 1 are not said to be normalised.
+#[test]
+fn pooled_belief_with_unit_weights_says_nothing_about_normalising() {
+    let d = tempfile::tempdir().unwrap();
+    let spec = pooled_spec(d.path(), ("0.5", "0.5"));
+    let out = d.path().join("out");
+    fit(&spec, &out);
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("Ana (weight 0.5), Ben (weight 0.5)."), "expert line");
+    assert!(!html.contains("normalised to sum to 1"));
+}

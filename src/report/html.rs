@@ -20,7 +20,10 @@ use std::path::{Path, PathBuf};
 pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     let rec = record::read(&dir.join("fit.json"))?;
     let fit = &rec.fit;
-    let bs = beliefs(&rec.file, fit, &dir.join("draws.csv"))?;
+    let mut bs = beliefs(&rec.file, fit, &dir.join("draws.csv"))?;
+    // Each expert of a pooled belief, from spec.toml; like the survival curves
+    // an addition: a spec.toml that no longer validates costs these curves only.
+    let experts_error = super::experts::attach(dir, &mut bs).err();
     let h = &rec.header;
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let mut svgs = |name: &str, inline: &str| {
@@ -139,7 +142,39 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
             }
             html.push_str("</ul>\n");
         }
-        let _ = writeln!(html, "<div class=\"figs\">\n<figure>{cdf}<figcaption>Cumulative distribution: believed (solid blue) and implied by the fitted prior (dashed vermillion, {} draws). Point masses appear as vertical jumps{}.</figcaption></figure>\n<figure>{den}<figcaption>Density of the continuous part: believed (blue line) over a histogram of the implied draws; bar areas are fractions of all draws. The x range covers 1–99 % of both distributions.</figcaption></figure>\n</div>",
+        let pooled = b.r.stated_as.starts_with("linear pool");
+        if !b.experts.is_empty() {
+            let list: Vec<String> = b
+                .experts
+                .iter()
+                .map(|e| {
+                    if super::experts::normalised(&b.experts) {
+                        format!("{} (weight {} → {})", e.name, sig(e.weight, 3), sig(e.share, 3))
+                    } else {
+                        format!("{} (weight {})", e.name, sig(e.share, 3))
+                    }
+                })
+                .collect();
+            let _ = writeln!(
+                html,
+                "<p class=\"experts\">Linear pool of {} experts: {}{}. Each expert's own distribution is drawn in the cumulative plot as a thin light-blue line.</p>",
+                b.experts.len(),
+                esc(&list.join(", ")),
+                if super::experts::normalised(&b.experts) {
+                    "; weights normalised to sum to 1"
+                } else {
+                    ""
+                }
+            );
+        } else if pooled {
+            let why = match &experts_error {
+                Some(e) => format!("this folder's spec.toml could not be read again ({e})"),
+                None => "this folder has no spec.toml to read them from".into(),
+            };
+            let _ = writeln!(html, "<p class=\"help\">The experts' own curves are not drawn: {}.</p>", esc(&why));
+        }
+        let _ = writeln!(html, "<div class=\"figs\">\n<figure>{cdf}<figcaption>Cumulative distribution: believed (solid blue{}) and implied by the fitted prior (dashed vermillion, {} draws). Point masses appear as vertical jumps{}.</figcaption></figure>\n<figure>{den}<figcaption>Density of the continuous part: believed (blue line) over a histogram of the implied draws; bar areas are fractions of all draws. The x range covers 1–99 % of both distributions.</figcaption></figure>\n</div>",
+            if b.experts.is_empty() { "" } else { "; each expert thin and light blue" },
             b.draws.len(),
             if b.r.implied_mass_at_inf > 0.0 || b.curve.as_ref().is_some_and(|c| c.inf_mass() > 0.0) {
                 "; the column at ∞ holds the mass that is never reached"

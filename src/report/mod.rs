@@ -18,6 +18,7 @@
 
 pub use crate::output::svg;
 mod assets;
+pub mod experts;
 mod html;
 mod plots;
 pub mod predictive;

@@ -91,30 +91,11 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         imp.push((*x, ecdf(s, *x)));
     }
     // Believed.
-    let mut bel = Vec::new();
-    if let Some(c) = &b.curve {
-        let atoms: Vec<(f64, f64)> = c
-            .atoms
-            .iter()
-            .copied()
-            .filter(|a| a.0.is_finite())
-            .collect();
-        // Left of the first tabulated point the CDF stays at that point's left limit.
-        if let (Some(x0), Some(f0)) = (c.x.first(), c.cdf.first()) {
-            let left = atoms.iter().find(|a| a.0 == *x0).map_or(*f0, |a| f0 - a.1);
-            bel.push((lo.min(*x0), left));
-        }
-        for (x, f) in c.x.iter().zip(&c.cdf) {
-            if let Some((_, m)) = atoms.iter().find(|a| a.0 == *x) {
-                bel.push((*x, f - m));
-            }
-            bel.push((*x, *f));
-        }
-        if let Some(l) = c.cdf.last() {
-            bel.push((hi.max(c.x.last().copied().unwrap_or(hi)), *l));
-        }
-        bel.sort_by(|a, b| a.0.total_cmp(&b.0));
-    }
+    let bel = b
+        .curve
+        .as_ref()
+        .map(|c| curve_points(c, lo, hi))
+        .unwrap_or_default();
     p.line(
         &imp,
         VERMILLION,
@@ -122,8 +103,29 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
         Some("6 3"),
         "implied by the fitted prior (empirical CDF of the draws)",
     );
+    // Each expert of a pool, thinner, labelled by name and weight in the pool
+    // at a different height each, so labels of close curves do not collide.
+    let n_ex = b.experts.len();
+    for (e, ex) in b.experts.iter().enumerate() {
+        let dash = EXPERT_DASHES[e % EXPERT_DASHES.len()];
+        let label = format!("{} (weight {})", ex.name, crate::numerics::format::sig(ex.share, 3));
+        p.line(&curve_points(&ex.curve, lo, hi), SKY, 1.3, Some(dash), &label);
+        let level = 0.15 + 0.7 * (e + 1) as f64 / (n_ex + 1) as f64;
+        if let Some(x) = ex.curve.quantile(level) {
+            if x >= lo && x <= hi {
+                let (px, py) = (p.x.px(x), p.y.px(level));
+                p.text(px + 5.0, py + 4.0, "start", "note", &label);
+            }
+        }
+    }
     if b.curve.is_some() {
-        p.line(&bel, BLUE, 2.2, None, "believed");
+        p.line(
+            &bel,
+            BLUE,
+            2.2,
+            None,
+            if n_ex > 0 { "believed (pool of the experts)" } else { "believed" },
+        );
     } else {
         for (q, pr) in b.r.believed_quantiles.iter().zip(&b.r.probs) {
             p.point(
@@ -185,11 +187,50 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
             &format!("implied {}", pct(b.r.implied_mass_at_inf)),
         );
     }
-    p.legend(&[
-        (BLUE, None, "believed"),
-        (VERMILLION, Some("6 3"), "implied by the fitted prior"),
-    ]);
+    if n_ex > 0 {
+        p.legend(&[
+            (BLUE, None, "believed (pool)"),
+            (SKY, Some(EXPERT_DASHES[0]), "each expert"),
+            (VERMILLION, Some("6 3"), "implied by the fitted prior"),
+        ]);
+    } else {
+        p.legend(&[
+            (BLUE, None, "believed"),
+            (VERMILLION, Some("6 3"), "implied by the fitted prior"),
+        ]);
+    }
     p.finish(false)
+}
+
+/// Dash patterns of the experts' curves (one per expert, cycling).
+const EXPERT_DASHES: [&str; 4] = ["4 2", "1 2", "8 3 2 3", "2 4"];
+
+/// A tabulated believed CDF as plot points over [lo, hi]: atoms as vertical
+/// jumps, flat to the edges of the range.
+fn curve_points(c: &Curve, lo: f64, hi: f64) -> Vec<(f64, f64)> {
+    let mut bel = Vec::new();
+    let atoms: Vec<(f64, f64)> = c
+        .atoms
+        .iter()
+        .copied()
+        .filter(|a| a.0.is_finite())
+        .collect();
+    // Left of the first tabulated point the CDF stays at that point's left limit.
+    if let (Some(x0), Some(f0)) = (c.x.first(), c.cdf.first()) {
+        let left = atoms.iter().find(|a| a.0 == *x0).map_or(*f0, |a| f0 - a.1);
+        bel.push((lo.min(*x0), left));
+    }
+    for (x, f) in c.x.iter().zip(&c.cdf) {
+        if let Some((_, m)) = atoms.iter().find(|a| a.0 == *x) {
+            bel.push((*x, f - m));
+        }
+        bel.push((*x, *f));
+    }
+    if let Some(l) = c.cdf.last() {
+        bel.push((hi.max(c.x.last().copied().unwrap_or(hi)), *l));
+    }
+    bel.sort_by(|a, b| a.0.total_cmp(&b.0));
+    bel
 }
 
 /// Believed density over a histogram of the implied draws.

@@ -44,6 +44,9 @@ pub struct BeliefView {
     pub curve: Option<Curve>,
     /// Implied draws, sorted ascending (+∞ last).
     pub draws: Vec<f64>,
+    /// Each expert of a pooled belief (empty otherwise; filled by
+    /// [`super::experts::attach`] from spec.toml).
+    pub experts: Vec<super::experts::Expert>,
 }
 
 /// A record part as a JSON value, for display.
@@ -76,6 +79,7 @@ pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<Bel
             r: b.clone(),
             curve,
             draws,
+            experts: Vec::new(),
         });
     }
     Ok(out)

@@ -437,6 +437,7 @@ pub fn validate(
             ));
         }
         let mut parts = Vec::new();
+        let mut stated_total = 0.0;
         for (e, ex) in experts.iter().enumerate() {
             let mut ep = sub(&path, "experts");
             ep.push(Seg::Index(e));
@@ -457,6 +458,7 @@ pub fn validate(
                 request.allows_inf,
                 scale,
             )?;
+            stated_total += w;
             parts.push((w, m));
         }
         let mut pooled = linear_pool(parts).map_err(|m| ctx.err(&sub(&path, "experts"), m))?;
@@ -480,7 +482,16 @@ pub fn validate(
             }
             pooled = Mixed::new(all, pooled.cont).map_err(|m| ctx.err(&sub(&path, "atoms"), m))?;
         }
-        (pooled, format!("linear pool of {} experts", experts.len()))
+        // Say so where the stated weights were rescaled.
+        let normalised = if (stated_total - 1.0_f64).abs() > 1e-9 {
+            ", weights normalised to sum to 1"
+        } else {
+            ""
+        };
+        (
+            pooled,
+            format!("linear pool of {} experts{normalised}", experts.len()),
+        )
     } else {
         stated(
             ctx,
