@@ -1,6 +1,6 @@
 //! Progress on standard error: a bar with an ETA on a terminal, and a plain
 //! line every few seconds otherwise (a log file, a cluster job), so a long run
-//! is never silent. Nothing is drawn until the amount of work is known, so the
+//! is never silent (every 5 s, or as `PRIORSMITH_PROGRESS_EVERY` says). Nothing is drawn until the amount of work is known, so the
 //! first frame is never a full "0/0" bar.
 
 use indicatif::{ProgressBar, ProgressStyle};
@@ -11,12 +11,37 @@ use std::time::{Duration, Instant};
 /// Seconds between two plain progress lines (common practice for log output).
 const PLAIN_EVERY: Duration = Duration::from_secs(5);
 
+/// The environment variable that sets the seconds between two plain progress
+/// lines (a decimal number from 0 to 86,400; 0 prints one line per step). For
+/// logs that want more or fewer lines, and for tests.
+pub const PLAIN_EVERY_VAR: &str = "PRIORSMITH_PROGRESS_EVERY";
+
+/// The interval between plain lines: [`PLAIN_EVERY_VAR`] when set to a valid
+/// number of seconds, else [`PLAIN_EVERY`] (a bad value is named on stderr once).
+fn plain_every() -> Duration {
+    let Ok(v) = std::env::var(PLAIN_EVERY_VAR) else {
+        return PLAIN_EVERY;
+    };
+    match v.trim().parse::<f64>() {
+        Ok(s) if (0.0..=86_400.0).contains(&s) => Duration::from_secs_f64(s),
+        _ => {
+            eprintln!(
+                "priorsmith: warning: {PLAIN_EVERY_VAR}=\"{v}\" is not a number of seconds from 0 to 86400; progress lines every {} s",
+                PLAIN_EVERY.as_secs()
+            );
+            PLAIN_EVERY
+        }
+    }
+}
+
 pub struct Progress {
     what: String,
     bar: Option<ProgressBar>,
     /// When the last plain line was printed (plain mode only).
     last: Mutex<Instant>,
     start: Instant,
+    /// Seconds between two plain lines.
+    every: Duration,
 }
 
 impl Progress {
@@ -36,8 +61,14 @@ impl Progress {
             pb
         });
         let now = Instant::now();
+        let every = if bar.is_none() {
+            plain_every()
+        } else {
+            PLAIN_EVERY
+        };
         Some(Progress {
             what: what.to_string(),
+            every,
             bar,
             last: Mutex::new(now),
             start: now,
@@ -72,7 +103,7 @@ impl Progress {
                 let Ok(mut last) = self.last.lock() else {
                     return;
                 };
-                if last.elapsed() < PLAIN_EVERY {
+                if last.elapsed() < self.every {
                     return;
                 }
                 *last = Instant::now();
