@@ -219,3 +219,80 @@ fn pooled_belief_with_unit_weights_says_nothing_about_normalising() {
     assert!(html.contains("Ana (weight 0.5), Ben (weight 0.5)."), "expert line");
     assert!(!html.contains("normalised to sum to 1"));
 }
+
+/// Headless Chromium renders every plot of a report folder (the page's check
+/// script counts plots and rendered boxes); `None` where chromium is missing.
+fn chromium_renders(out: &Path) -> Option<()> {
+    use std::process::Command;
+    let chrome = ["chromium", "chromium-browser", "google-chrome"]
+        .iter()
+        .find(|c| {
+            Command::new(c)
+                .arg("--version")
+                .output()
+                .is_ok_and(|o| o.status.success())
+        })?;
+    let profile = tempfile::tempdir().unwrap();
+    let url = format!("file://{}", out.join("report.html").display());
+    let o = Command::new(chrome)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-quic",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            &format!("--user-data-dir={}", profile.path().display()),
+            "--window-size=1200,3000",
+            "--dump-dom",
+            &url,
+        ])
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "chromium failed: {}", stderr(&o));
+    let dom = String::from_utf8_lossy(&o.stdout);
+    let attr = |name: &str| -> Option<String> {
+        let k = format!("{name}=\"");
+        let i = dom.find(&k)? + k.len();
+        Some(dom[i..].split('"').next()?.to_string())
+    };
+    assert_eq!(attr("data-errors"), None, "script errors in the report");
+    let plots = attr("data-plots").expect("the check script ran");
+    let files = std::fs::read_dir(out.join("plots"))
+        .unwrap()
+        .flatten()
+        .filter(|e| e.path().extension().is_some_and(|x| x == "svg"))
+        .count();
+    assert_eq!(plots, files.to_string());
+    assert_eq!(
+        attr("data-plots-rendered").as_deref(),
+        Some(plots.as_str()),
+        "some plots did not render"
+    );
+    Some(())
+}
+
+/// The new plots (regression picture, experts' curves) render in headless
+/// Chromium with every other plot. Skips (with a message) without chromium.
+#[test]
+fn new_plots_render_in_headless_chromium() {
+    let d = tempfile::tempdir().unwrap();
+    let spec = starter(d.path(), "logistic-multilevel", "");
+    let reg = d.path().join("reg");
+    fit(&spec, &reg);
+    assert!(reg.join("plots/response.svg").is_file());
+    assert!(reg.join("plots/variance-explained.svg").is_file());
+    let pooled = d.path().join("pooled");
+    std::fs::create_dir(&pooled).unwrap();
+    let spec = pooled_spec(&pooled, ("2", "1"));
+    let pool = d.path().join("pool");
+    fit(&spec, &pool);
+    for out in [&reg, &pool] {
+        if chromium_renders(out).is_none() {
+            eprintln!("SKIP new_plots_render_in_headless_chromium: chromium not found (apt-get install -y chromium)");
+            return;
+        }
+    }
+}

@@ -1,7 +1,9 @@
 //! The report: one self-contained HTML page, `DIR/report.html`, with inline SVG
 //! plots (also written as `DIR/plots/*.svg`), built from `DIR/fit.json` and
-//! `DIR/draws.csv`; only the prior-predictive survival curves re-simulate from
-//! `DIR/spec.toml` (the normalised belief file `fit` writes), see [`predictive`].
+//! `DIR/draws.csv`; only the prior-predictive survival curves, the regression
+//! picture and the experts' curves of a pooled belief re-read `DIR/spec.toml` (the
+//! normalised belief file `fit` writes), see [`predictive`], [`regression`] and
+//! [`experts`].
 //!
 //! For every belief: the believed CDF (from `believed_curve` in fit.json: atoms
 //! as vertical jumps, mass at +∞ in a separate "never reached" column right of
@@ -12,7 +14,8 @@
 //! fitted prior, the hyperparameters within their bounds, optional diagnostics
 //! (`identifiability`, `pareto`, `sweep` keys, rendered when present) and the
 //! caution text. "What the fitted prior implies": survival bands per profile
-//! (survival templates) and pairwise scatter plots of the implied quantities. The page has no external resources, prints to PDF (print CSS)
+//! (survival templates), the response per profile and the R²-type quantities
+//! (regression templates), and pairwise scatter plots of the implied quantities. The page has no external resources, prints to PDF (print CSS)
 //! and carries a small script that only marks, for tests, that every plot
 //! rendered.
 
