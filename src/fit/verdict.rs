@@ -289,9 +289,9 @@ pub fn describe(
         let gap = a.implied - a.believed;
         if gap.abs() > 0.02 + 0.25 * a.believed {
             let place = if a.at.is_infinite() {
-                "at inf (never reached)".to_string()
+                "never reached (at ∞)".to_string()
             } else {
-                format!("at {}", a.at)
+                format!("at {}", crate::numerics::format::sig(a.at, 4))
             };
             out.push(format!(
                 "{} mass {place}: believed {:.1} %, implied {:.1} %",

@@ -358,12 +358,21 @@ fn predictive_section(
                 };
                 let plot = survival_plot(&id, b);
                 svgs(&id, &plot);
-                let _ = writeln!(html, "<figure>{plot}<figcaption>Prior-predictive survival{}: S(t) = π + (1 − π)·S<sub>u</sub>(t) over prior draws.</figcaption></figure>",
+                // The template's own survival function (each template's module doc).
+                let formula = match rec.header.template.as_str() {
+                    "mixture-cure" => "S(t) = π + (1 − π)·S<sub>u</sub>(t)",
+                    "promotion-time-cure" => "S(t) = exp(−θ·F(t))",
+                    _ => "S(t) of the latency distribution",
+                };
+                let _ = writeln!(html, "<figure>{plot}<figcaption>Prior-predictive survival{}: {formula} over prior draws.</figcaption></figure>",
                     if b.profile.is_empty() { String::new() } else { format!(" for profile <code>{}</code>", esc(&b.profile)) });
             }
             html.push_str("</div>\n");
         }
-        Ok(None) if rec.header.template == "mixture-cure" => {
+        Ok(None)
+            if crate::templates::find(&rec.header.template)
+                .is_some_and(|t| t.quantities.iter().any(|q| q.name == "survival_prob")) =>
+        {
             html.push_str("<p class=\"help\">No survival curves: this folder has no <code>spec.toml</code> to re-simulate them from (fit it again to write one).</p>\n");
         }
         Ok(None) => {}
