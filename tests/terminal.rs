@@ -161,3 +161,27 @@ fn sigint_ends_a_batch_with_130_and_says_what_was_committed() {
     let s = common::stdout(&o);
     assert!(s.contains("0 fitted, 3 already done (skipped)"), "{s}");
 }
+
+/// `report` on a lean batch model folder (no draws.csv) fails with exit 4 and
+/// says why and what to do, once.
+#[test]
+fn report_of_a_lean_batch_folder_names_the_cause() {
+    let d = tempfile::tempdir().unwrap();
+    let (base, table) = setup(d.path(), 1);
+    let out = d.path().join("out");
+    let o = common::bin()
+        .args(["-q", "batch", "--spec"])
+        .arg(&base)
+        .arg(&table)
+        .arg("--out")
+        .arg(&out)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", common::stderr(&o));
+    let o = common::run(&["report", out.join("models/r000").to_str().unwrap()]);
+    let err = common::stderr(&o);
+    assert_eq!(o.status.code(), Some(4), "{err}");
+    assert!(err.contains("draws.csv: not found"), "{err}");
+    assert!(err.contains("--model-files full"), "{err}");
+    assert_eq!(err.matches("draws.csv").count(), 1, "printed once: {err}");
+}

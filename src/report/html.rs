@@ -20,7 +20,21 @@ use std::path::{Path, PathBuf};
 pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     let rec = record::read(&dir.join("fit.json"))?;
     let fit = &rec.fit;
-    let mut bs = beliefs(&rec.file, fit, &dir.join("draws.csv"))?;
+    let draws = dir.join("draws.csv");
+    if !draws.is_file() {
+        // Name the likely cause: a lean batch model folder holds no draws.
+        return Err(crate::error::Error::io(
+            draws,
+            std::io::Error::new(
+                std::io::ErrorKind::NotFound,
+                format!(
+                    "not found; the report needs the prior draws `fit` writes (a batch model folder written with --model-files lean has none: run the batch with --model-files full, or `priorsmith fit {}` to refit it)",
+                    dir.join("spec.toml").display()
+                ),
+            ),
+        ));
+    }
+    let mut bs = beliefs(&rec.file, fit, &draws)?;
     // Each expert of a pooled belief, from spec.toml; like the survival curves
     // an addition: a spec.toml that no longer validates costs these curves only.
     let experts_error = super::experts::attach(dir, &mut bs).err();
@@ -443,10 +457,15 @@ fn regression_section(
         })
         .collect();
     let unit = pic.response == "event_prob";
+    let ylabel = if pic.response == "rate" {
+        format!("{what} (per unit exposure)")
+    } else {
+        what.clone()
+    };
     let plot = interval_plot(
         "response",
         &format!("Prior-predictive {what} at each profile"),
-        &what,
+        &ylabel,
         &cats,
         unit,
     );
