@@ -36,7 +36,12 @@ fn fit(spec: &Path, out: &Path) {
 /// SE of a sample median: sd·√(π/(2n)) with sd ≈ IQR/1.349 (normal
 /// approximation, common practice); the difference of two independent medians
 /// has the two variances added; tolerance 4 SE (as the survival bands' test).
-fn agrees(what: &str, iv: &priorsmith::report::regression::Interval, r: &priorsmith::fit::BeliefReport, n_fit: f64) {
+fn agrees(
+    what: &str,
+    iv: &priorsmith::report::regression::Interval,
+    r: &priorsmith::fit::BeliefReport,
+    n_fit: f64,
+) {
     let k = r
         .probs
         .iter()
@@ -56,7 +61,11 @@ fn agrees(what: &str, iv: &priorsmith::report::regression::Interval, r: &priorsm
     );
     // The intervals are nested around the median.
     for j in 1..iv.q.len() {
-        assert!(iv.q[j - 1] <= iv.q[j], "{what}: intervals cross: {:?}", iv.q);
+        assert!(
+            iv.q[j - 1] <= iv.q[j],
+            "{what}: intervals cross: {:?}",
+            iv.q
+        );
     }
 }
 
@@ -80,7 +89,11 @@ fn regression_picture_agrees_with_the_recorded_event_probability() {
     let r = &rec.fit.beliefs[0];
     assert_eq!(r.quantity, "event_prob");
     let iv = &pic.profiles[0];
-    assert_eq!(iv.belief.map(|b| b.0), Some(1), "belief 1 drawn at the reference");
+    assert_eq!(
+        iv.belief.map(|b| b.0),
+        Some(1),
+        "belief 1 drawn at the reference"
+    );
     assert!(pic.profiles[1].belief.is_none());
     agrees("event_prob at the reference", iv, r, rec.fit.draws as f64);
     // Logistic has the Bayesian and the latent-scale R², no belief on either.
@@ -137,7 +150,10 @@ fn pooled_spec(dir: &Path, weights: (&str, &str)) -> PathBuf {
     assert!(o.status.success(), "{}", stderr(&o));
     let text = std::fs::read_to_string(&spec).unwrap();
     let single = "quantity = \"cure_fraction\"\nquantiles = { \"0.1\" = 0.15, \"0.5\" = 0.25, \"0.9\" = 0.40 }";
-    assert!(text.contains(single), "the starter's cure-fraction belief changed");
+    assert!(
+        text.contains(single),
+        "the starter's cure-fraction belief changed"
+    );
     let pooled = format!(
         "quantity = \"cure_fraction\"\nexperts = [\n  {{ name = \"Ana\", weight = {}, quantiles = {{ \"0.1\" = 0.12, \"0.5\" = 0.2, \"0.9\" = 0.32 }} }},\n  {{ name = \"Ben\", weight = {}, distribution = {{ family = \"beta\", alpha = 6, beta = 14 }} }},\n]",
         weights.0, weights.1
@@ -171,12 +187,17 @@ fn pooled_belief_draws_each_expert() {
     fit(&spec, &out);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(
-        html.contains("Ana (weight 2 → 0.667), Ben (weight 1 → 0.333); weights normalised to sum to 1"),
+        html.contains(
+            "Ana (weight 2 → 0.667), Ben (weight 1 → 0.333); weights normalised to sum to 1"
+        ),
         "expert line missing"
     );
     let svg = std::fs::read_to_string(out.join("plots/belief-1-cdf.svg")).unwrap();
     for label in ["Ana (weight 0.667)", "Ben (weight 0.333)"] {
-        assert!(svg.contains(&format!("<title>{label}</title>")), "{label} curve");
+        assert!(
+            svg.contains(&format!("<title>{label}</title>")),
+            "{label} curve"
+        );
         assert!(svg.contains(&format!(">{label}</text>")), "{label} label");
     }
     // Beliefs without experts draw none.
@@ -187,8 +208,7 @@ fn pooled_belief_draws_each_expert() {
     assert!(rec.fit.beliefs[0]
         .stated_as
         .ends_with("weights normalised to sum to 1"));
-    let mut bs =
-        priorsmith::report::beliefs(&rec.file, &rec.fit, &out.join("draws.csv")).unwrap();
+    let mut bs = priorsmith::report::beliefs(&rec.file, &rec.fit, &out.join("draws.csv")).unwrap();
     assert!(priorsmith::report::experts::attach(&out, &mut bs).unwrap());
     let ex = &bs[0].experts;
     assert_eq!(ex.len(), 2);
@@ -216,7 +236,10 @@ fn pooled_belief_with_unit_weights_says_nothing_about_normalising() {
     let out = d.path().join("out");
     fit(&spec, &out);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(html.contains("Ana (weight 0.5), Ben (weight 0.5)."), "expert line");
+    assert!(
+        html.contains("Ana (weight 0.5), Ben (weight 0.5)."),
+        "expert line"
+    );
     assert!(!html.contains("normalised to sum to 1"));
 }
 

@@ -40,7 +40,11 @@ fn setup(dir: &Path, n: usize) -> (PathBuf, PathBuf) {
     let base = common::write(dir, "base.toml", BASE);
     let mut t = String::from("id,belief.1.quantiles.0.5,simulation.seed\n");
     for k in 0..n {
-        t.push_str(&format!("r{k:03},{},{}\n", 0.18 + 0.02 * (k % 10) as f64, 100 + k));
+        t.push_str(&format!(
+            "r{k:03},{},{}\n",
+            0.18 + 0.02 * (k % 10) as f64,
+            100 + k
+        ));
     }
     (base, common::write(dir, "table.csv", &t))
 }
@@ -99,7 +103,10 @@ fn plain_progress_lines_when_stderr_is_not_a_terminal() {
         .unwrap();
     assert!(o.status.success(), "{}", common::stderr(&o));
     let err = common::stderr(&o);
-    assert!(err.contains("PRIORSMITH_PROGRESS_EVERY=\"soon\" is not a number of seconds"), "{err}");
+    assert!(
+        err.contains("PRIORSMITH_PROGRESS_EVERY=\"soon\" is not a number of seconds"),
+        "{err}"
+    );
 }
 
 /// SIGINT to the real binary while a batch runs (stderr a pipe): exit 130, the
@@ -111,7 +118,7 @@ fn sigint_ends_a_batch_with_130_and_says_what_was_committed() {
     // Far more rows than can finish before the signal (about 0.1 s each).
     let (base, table) = setup(d.path(), 300);
     let out = d.path().join("out");
-    let mut child = common::bin()
+    let child = common::bin()
         .args(["batch", "--threads", "1", "--spec"])
         .arg(&base)
         .arg(&table)
@@ -144,7 +151,10 @@ fn sigint_ends_a_batch_with_130_and_says_what_was_committed() {
         err.contains(&format!("interrupted: {n} row(s) are committed in ")),
         "{err}"
     );
-    assert!(err.contains("run the same command again to resume"), "{err}");
+    assert!(
+        err.contains("run the same command again to resume"),
+        "{err}"
+    );
     assert_eq!(err.matches("interrupted").count(), 1, "said once: {err}");
     assert!(!out.join("results.csv").exists(), "no tables after Ctrl-C");
     // The same command resumes: its first shard of 100 (rows 1–3, contiguous,

@@ -163,7 +163,12 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
                 .iter()
                 .map(|e| {
                     if super::experts::normalised(&b.experts) {
-                        format!("{} (weight {} → {})", e.name, sig(e.weight, 3), sig(e.share, 3))
+                        format!(
+                            "{} (weight {} → {})",
+                            e.name,
+                            sig(e.weight, 3),
+                            sig(e.share, 3)
+                        )
                     } else {
                         format!("{} (weight {})", e.name, sig(e.share, 3))
                     }
@@ -185,7 +190,11 @@ pub fn render(dir: &Path) -> Result<Vec<(PathBuf, Vec<u8>)>> {
                 Some(e) => format!("this folder's spec.toml could not be read again ({e})"),
                 None => "this folder has no spec.toml to read them from".into(),
             };
-            let _ = writeln!(html, "<p class=\"help\">The experts' own curves are not drawn: {}.</p>", esc(&why));
+            let _ = writeln!(
+                html,
+                "<p class=\"help\">The experts' own curves are not drawn: {}.</p>",
+                esc(&why)
+            );
         }
         let _ = writeln!(html, "<div class=\"figs\">\n<figure>{cdf}<figcaption>Cumulative distribution: believed (solid blue{}) and implied by the fitted prior (dashed vermillion, {} draws). Point masses appear as vertical jumps{}.</figcaption></figure>\n<figure>{den}<figcaption>Density of the continuous part: believed (blue line) over a histogram of the implied draws; bar areas are fractions of all draws. The x range covers 1–99 % of both distributions.</figcaption></figure>\n</div>",
             if b.experts.is_empty() { "" } else { "; each expert thin and light blue" },

@@ -108,8 +108,18 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
     let n_ex = b.experts.len();
     for (e, ex) in b.experts.iter().enumerate() {
         let dash = EXPERT_DASHES[e % EXPERT_DASHES.len()];
-        let label = format!("{} (weight {})", ex.name, crate::numerics::format::sig(ex.share, 3));
-        p.line(&curve_points(&ex.curve, lo, hi), SKY, 1.3, Some(dash), &label);
+        let label = format!(
+            "{} (weight {})",
+            ex.name,
+            crate::numerics::format::sig(ex.share, 3)
+        );
+        p.line(
+            &curve_points(&ex.curve, lo, hi),
+            SKY,
+            1.3,
+            Some(dash),
+            &label,
+        );
         let level = 0.15 + 0.7 * (e + 1) as f64 / (n_ex + 1) as f64;
         if let Some(x) = ex.curve.quantile(level) {
             if x >= lo && x <= hi {
@@ -124,7 +134,11 @@ pub fn cdf_plot(id: &str, b: &BeliefView) -> String {
             BLUE,
             2.2,
             None,
-            if n_ex > 0 { "believed (pool of the experts)" } else { "believed" },
+            if n_ex > 0 {
+                "believed (pool of the experts)"
+            } else {
+                "believed"
+            },
         );
     } else {
         for (q, pr) in b.r.believed_quantiles.iter().zip(&b.r.probs) {
@@ -630,19 +644,14 @@ pub fn interval_plot(
     let n = cats.len().max(1);
     let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
     for (_, iv) in cats {
-        let vals = iv
-            .q
-            .iter()
-            .chain(iv.belief.iter().flat_map(|b| b.1.iter()));
+        let vals = iv.q.iter().chain(iv.belief.iter().flat_map(|b| b.1.iter()));
         for v in vals.filter(|v| v.is_finite()) {
             lo = lo.min(*v);
             hi = hi.max(*v);
         }
     }
     let log = !unit && lo > 0.0 && hi / lo >= 100.0;
-    let (y0, y1) = if unit {
-        (0.0, 1.0)
-    } else if !lo.is_finite() || !hi.is_finite() {
+    let (y0, y1) = if unit || !lo.is_finite() || !hi.is_finite() {
         (0.0, 1.0)
     } else if log {
         (lo / 1.3, hi * 1.3)
@@ -684,7 +693,18 @@ pub fn interval_plot(
                 fnum(q[0]),
                 fnum(q[6])
             );
-            p.point(k as f64 + 1.0 - if with_belief { 8.0 / px_per_unit(&p) } else { 0.0 }, q[3], VERMILLION, 4.5, &label);
+            p.point(
+                k as f64 + 1.0
+                    - if with_belief {
+                        8.0 / px_per_unit(&p)
+                    } else {
+                        0.0
+                    },
+                q[3],
+                VERMILLION,
+                4.5,
+                &label,
+            );
         }
         if let Some((num, bq)) = iv.belief {
             let xb = xc + 8.0;
@@ -700,7 +720,13 @@ pub fn interval_plot(
                     &format!("belief {num}: believed median {}", fnum(bq[1])),
                 );
                 let py = p.y.px(bq[1]);
-                p.text(xb + 7.0, py + 4.0, "start", "note", &format!("belief {num}"));
+                p.text(
+                    xb + 7.0,
+                    py + 4.0,
+                    "start",
+                    "note",
+                    &format!("belief {num}"),
+                );
             }
         }
         p.text(xc, p.y.p0 + 18.0, "middle", "", name);

@@ -100,7 +100,11 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
     } else {
         "mean_response"
     };
-    let shares: Vec<&str> = SHARE_QUANTITIES.iter().copied().filter(|q| has(q)).collect();
+    let shares: Vec<&str> = SHARE_QUANTITIES
+        .iter()
+        .copied()
+        .filter(|q| has(q))
+        .collect();
     let text = crate::limits::read_text(&path, crate::limits::TEXT_BYTES, "belief file")?;
     let mut table = crate::spec::parse_table(&text, Some(&path))?;
     let beliefs: Vec<toml::Table> = table
