@@ -110,6 +110,16 @@ fn regression_picture_agrees_with_the_recorded_event_probability() {
         assert!(out.join("plots").join(format!("{id}.svg")).is_file());
     }
     assert!(html.contains("high_x1"));
+    // 40 of the 300 design rows, sorted by implied median, intervals nested.
+    assert_eq!(pic.design_rows, 300);
+    assert_eq!(pic.rows.len(), 40);
+    for w in pic.rows.windows(2) {
+        assert!(w[0].q[3] <= w[1].q[3], "rows not sorted by median");
+    }
+    for r in &pic.rows {
+        assert!(r.q.windows(2).all(|w| w[0] <= w[1]), "{:?}", r.q);
+    }
+    assert!(out.join("plots/design-rows.svg").is_file());
     let svg1 = std::fs::read(out.join("plots/response.svg")).unwrap();
     let o = run(&["report", out.to_str().unwrap()]);
     assert!(o.status.success(), "{}", stderr(&o));
@@ -318,4 +328,37 @@ fn new_plots_render_in_headless_chromium() {
             return;
         }
     }
+}
+
+/// The design rows are spelled out as their raw covariate values (the design is
+/// stored centred and standardised): a CSV row equal to the column means gives
+/// exactly the reference profile's interval (same base draws, η − α = 0).
+#[test]
+fn a_design_row_at_the_means_is_the_reference_profile() {
+    let d = tempfile::tempdir().unwrap();
+    // Column means (3, 1); row 3 is (3, 1).
+    write(d.path(), "x.csv", "a,b\n1,2\n2,0\n3,1\n4,5\n5,-3\n");
+    let spec = write(
+        d.path(),
+        "lin.toml",
+        "title = \"design rows (invented)\"\n[model]\ntemplate = \"linear\"\n[design]\nfile = \"x.csv\"\nstandardise = true\n[simulation]\ndraws = 2000\nseed = 4\n[prior.intercept]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n[prior.sigma]\nfamily = \"half-normal\"\nscale = 1.0\n[prior.coefficients]\nfamily = \"normal\"\nscale = { fit = [0.01, 3.0] }\n[[belief]]\nquantity = \"r2\"\nquantiles = { \"0.1\" = 0.1, \"0.5\" = 0.3, \"0.9\" = 0.5 }\n",
+    );
+    let out = d.path().join("out");
+    fit(&spec, &out);
+    let rec = priorsmith::export::record::read(&out.join("fit.json")).unwrap();
+    let pic = priorsmith::report::regression::regression_picture(&out, &rec)
+        .unwrap()
+        .unwrap();
+    assert_eq!(pic.rows.len(), 5, "all five rows");
+    let row3 = pic.rows.iter().find(|r| r.profile == "row 3").unwrap();
+    let reference = &pic.profiles[0];
+    for (a, b) in row3.q.iter().zip(&reference.q) {
+        assert!(
+            (a - b).abs() <= 1e-9 * b.abs().max(1.0),
+            "row 3 {a} vs reference {b}"
+        );
+    }
+    // Another row differs (its covariates are not at the means).
+    let row1 = pic.rows.iter().find(|r| r.profile == "row 1").unwrap();
+    assert!((row1.q[6] - reference.q[6]).abs() > 1e-3);
 }

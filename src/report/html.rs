@@ -482,6 +482,22 @@ fn regression_section(
     let _ = writeln!(html, "<figure>{plot}<figcaption>Prior-predictive {} at the reference profile (every covariate at its design mean) and at each profile of the belief file{}.</figcaption></figure>",
         esc(&what),
         if pic.response == "rate" { ", per unit exposure" } else { "" });
+    if pic.rows.len() >= 2 {
+        let plot = rows_plot(
+            "design-rows",
+            &format!("Prior-predictive {what} across design rows"),
+            &ylabel,
+            &pic.rows,
+            unit,
+        );
+        svgs("design-rows", &plot);
+        let _ = writeln!(html, "<figure>{plot}<figcaption>Prior-predictive {} at {} of the design's {} rows ({}), sorted by their implied median: pointwise 50, 80 and 95 % bands and the median{}.</figcaption></figure>",
+            esc(&what),
+            pic.rows.len(),
+            pic.design_rows,
+            if pic.rows.len() == pic.design_rows { "all of them".to_string() } else { "evenly spaced".to_string() },
+            if rec.header.template.ends_with("-multilevel") { ", in a typical cluster (random intercept 0)" } else { "" });
+    }
     if !pic.shares.is_empty() {
         let cats: Vec<(String, &super::regression::Interval)> = pic
             .shares

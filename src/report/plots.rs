@@ -746,3 +746,63 @@ pub fn interval_plot(
 fn px_per_unit(p: &Plot) -> f64 {
     (p.x.p1 - p.x.p0) / (p.x.hi - p.x.lo)
 }
+
+/// The response across design rows, sorted by implied median: pointwise 95 /
+/// 80 / 50 % bands over the rows' ranks and the median (dashed), in the style of
+/// the survival bands. `unit`: the y axis is [0, 1].
+pub fn rows_plot(
+    id: &str,
+    title: &str,
+    ylabel: &str,
+    rows: &[super::regression::Interval],
+    unit: bool,
+) -> String {
+    let x: Vec<f64> = (1..=rows.len()).map(|k| k as f64).collect();
+    let col = |j: usize| -> Vec<f64> { rows.iter().map(|r| r.q[j]).collect() };
+    let fin: Vec<f64> = rows
+        .iter()
+        .flat_map(|r| [r.q[0], r.q[6]])
+        .filter(|v| v.is_finite())
+        .collect();
+    let (lo, hi) = fin
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| {
+            (a.min(*v), b.max(*v))
+        });
+    let log = !unit && lo > 0.0 && hi / lo >= 100.0;
+    let y = if unit || !lo.is_finite() || hi <= lo {
+        (0.0, 1.0)
+    } else if log {
+        (lo / 1.3, hi * 1.3)
+    } else {
+        let pad = 0.06 * (hi - lo);
+        (
+            if lo >= 0.0 && lo < 0.3 * (hi - lo) {
+                0.0
+            } else {
+                lo - pad
+            },
+            hi + pad,
+        )
+    };
+    let mut p = Plot::new(
+        id,
+        title,
+        (0.5, rows.len().max(1) as f64 + 0.5, false),
+        y,
+        0.0,
+    );
+    p.y.log = log;
+    p.axes("design rows, sorted by implied median", ylabel);
+    p.band(&x, &col(0), &col(6), VERMILLION_FILL, 0.45, "95 % band");
+    p.band(&x, &col(1), &col(5), VERMILLION_FILL, 0.7, "80 % band");
+    p.band(&x, &col(2), &col(4), VERMILLION_DARK, 0.45, "50 % band");
+    let med: Vec<(f64, f64)> = x.iter().copied().zip(col(3)).collect();
+    p.line(&med, VERMILLION, 2.0, Some("6 4"), "median per row");
+    p.legend(&[(
+        VERMILLION,
+        Some("6 4"),
+        "implied median, 50/80/95 % per row",
+    )]);
+    p.finish(false)
+}

@@ -8,7 +8,9 @@
 //!   probability logistic(η) (logistic templates), the rate exp(η) per unit
 //!   exposure (poisson templates) or the mean response η (linear templates), at
 //!   the reference profile (the design mean) and at every `[profile.NAME]` of
-//!   the belief file;
+//!   the belief file; and across the design rows (up to [`MAX_ROWS`], evenly
+//!   spaced, each spelled out as a profile of its raw covariate values), sorted
+//!   by implied median and drawn as pointwise bands over the rows' ranks;
 //! - how much the model explains: the template's R²-type quantities (Bayesian R²
 //!   over the design — Gelman, Goodrich, Gabry & Vehtari 2019 —, the latent-scale
 //!   R² of McKelvey & Zavoina 1975 for logistic, the marginal and conditional R²
@@ -33,6 +35,10 @@ use std::path::Path;
 
 /// Profiles drawn at most (the reference profile first, then the file's).
 pub const MAX_PROFILES: usize = 12;
+/// Design rows drawn at most (evenly spaced through the design), and the most
+/// covariate values they may spell out in total (rows × columns).
+pub const MAX_ROWS: usize = 40;
+const MAX_ROW_CELLS: usize = 200_000;
 
 /// The R²-type quantities drawn, in this order, where the template has them.
 const SHARE_QUANTITIES: [&str; 5] = ["r2", "r2_latent", "r2_fixed", "r2_conditional", "icc"];
@@ -60,6 +66,11 @@ pub struct RegressionPicture {
     pub profiles: Vec<Interval>,
     /// The R²-type quantities.
     pub shares: Vec<Interval>,
+    /// The response at design rows (1-based row numbers in `profile`, "row 17"),
+    /// sorted by their implied median.
+    pub rows: Vec<Interval>,
+    /// Rows in the design.
+    pub design_rows: usize,
 }
 
 fn str_of(v: Option<&toml::Value>) -> Option<String> {
@@ -130,6 +141,56 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
             add(p);
         }
     }
+    // Design rows, evenly spaced, as profiles of their raw covariate values
+    // (the design stores them centred, and scaled when standardised).
+    let design = {
+        let raw: crate::spec::raw::RawSpec =
+            toml::Value::Table(table.clone())
+                .try_into()
+                .map_err(|e: toml::de::Error| {
+                    crate::error::Error::input(
+                        crate::error::Location {
+                            file: Some(path.clone()),
+                            line: None,
+                            key: None,
+                        },
+                        e.to_string(),
+                    )
+                })?;
+        let map = crate::spec::SourceMap::new(&text);
+        let ctx = crate::spec::Ctx::new(Some(&path), &map, &raw);
+        crate::design::from_ctx(&ctx)?
+    };
+    let (n_rows, p_cols) = (design.rows(), design.cols());
+    let m = MAX_ROWS.min(n_rows).min(MAX_ROW_CELLS / p_cols.max(1));
+    let row_ids: Vec<usize> = (0..m).map(|k| k * n_rows / m.max(1)).collect();
+    let mut row_names = Vec::new();
+    {
+        let prof = table
+            .entry("profile")
+            .or_insert_with(|| toml::Value::Table(toml::Table::new()));
+        if let Some(prof) = prof.as_table_mut() {
+            for &r in &row_ids {
+                let mut t = toml::Table::new();
+                for (j, name) in design.names.iter().enumerate() {
+                    let sd = if design.standardised {
+                        design.raw_sds[j]
+                    } else {
+                        1.0
+                    };
+                    let v = design.xc[(r, j)] * sd + design.raw_means[j];
+                    t.insert(name.clone(), toml::Value::Float(v));
+                }
+                // A name no user profile can clash with (the file's names are kept).
+                let mut name = format!("design row {}", r + 1);
+                while prof.contains_key(&name) {
+                    name.push('\'');
+                }
+                prof.insert(name.clone(), toml::Value::Table(t));
+                row_names.push(name);
+            }
+        }
+    }
     // A distribution on the quantity's range for each request (it only
     // satisfies validation; nothing is fitted).
     let placeholder = |q: &str| {
@@ -156,6 +217,13 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
         if p != "reference" {
             b.insert("profile".into(), p.clone().into());
         }
+        b.insert("distribution".into(), placeholder(response));
+        synth.push(toml::Value::Table(b));
+    }
+    for p in &row_names {
+        let mut b = toml::Table::new();
+        b.insert("quantity".into(), response.into());
+        b.insert("profile".into(), p.clone().into());
         b.insert("distribution".into(), placeholder(response));
         synth.push(toml::Value::Table(b));
     }
@@ -224,7 +292,19 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
         response: response.to_string(),
         profiles: Vec::new(),
         shares: Vec::new(),
+        rows: Vec::new(),
+        design_rows: n_rows,
     };
+    let np = profiles.len();
+    for (k, &r) in row_ids.iter().enumerate() {
+        picture.rows.push(Interval {
+            quantity: response.to_string(),
+            profile: format!("row {}", r + 1),
+            q: quantiles(&out[np + k]),
+            belief: None,
+        });
+    }
+    picture.rows.sort_by(|a, b| a.q[3].total_cmp(&b.q[3]));
     for (k, p) in profiles.iter().enumerate() {
         picture.profiles.push(Interval {
             quantity: response.to_string(),
@@ -237,7 +317,7 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
         picture.shares.push(Interval {
             quantity: (*q).to_string(),
             profile: String::new(),
-            q: quantiles(&out[profiles.len() + k]),
+            q: quantiles(&out[np + row_ids.len() + k]),
             belief: belief_of(q, ""),
         });
     }
