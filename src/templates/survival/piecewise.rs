@@ -375,8 +375,8 @@ impl Model for Piecewise {
         let unit = self.time_unit.clone();
         let mut v = self.priors.statements(h, |p| match p {
             "log_hazard_1" => format!(
-                "log hazard of the first interval [0, {}), per {unit}",
-                self.cuts[1]
+                "log hazard of the first interval [0, {}) {unit} (events per unit of time)",
+                crate::numerics::format::code(self.cuts[1])
             ),
             "hazard_walk_sd" => "sd of the random walk on the log hazards".to_string(),
             other => match other.strip_prefix("hazard_effect_") {
