@@ -3,7 +3,9 @@
 //! parametric survival without a cure fraction ([`parametric`]). Each template
 //! file holds its registry entry and quantity table; this module holds the
 //! latency distributions ([`latency`]), the reading of `[model]` and the priors,
-//! and one simulator for all three.
+//! and one simulator for all three. The piecewise-exponential template
+//! ([`piecewise`]) is a model of its own that shares the request validation
+//! ([`request_in`]) and the two-profile quantities ([`contrast`]).
 //!
 //! Population survival at covariates x, with latency S_u (scale
 //! λ = exp(log_scale + x'β_latency − x'β_hazard/k), shape k):

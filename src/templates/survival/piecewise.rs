@@ -7,8 +7,8 @@
 //!   H(t) = e^{x'β}·Σ_j h_j·Δ_j(t),   S(t) = exp(−H(t))
 //!
 //! (Friedman 1982, Ann. Statist. 10; Ibrahim, Chen & Sinha, Bayesian Survival
-//! Analysis, 2001, §3.1 for the piecewise exponential model and its correlated
-//! priors across intervals.)
+//! Analysis, 2001, §3.1, section number from memory, for the piecewise
+//! exponential model and its correlated priors across intervals.)
 //!
 //! Prior: a Gaussian random walk on the log hazards, ln h_1 = `log_hazard_1`,
 //! ln h_{j+1} = ln h_j + ε_j, ε_j = τ·z_j with z_j ~ N(0, 1) independent and
