@@ -118,7 +118,13 @@ fn bad_cuts_name_file_line_key_and_value() {
         let text = SPEC.replace("cuts = [0, 6, 12, 24]", &format!("cuts = {cuts}"));
         let name = format!("bad{k}.toml");
         let spec = write(d.path(), &name, &text);
-        assert_rejected(d.path(), &spec, &format!("{name}:5"), 3, &["model.cuts", needle]);
+        assert_rejected(
+            d.path(),
+            &spec,
+            &format!("{name}:5"),
+            3,
+            &["model.cuts", needle],
+        );
     }
     let many: Vec<String> = (0..60).map(|k| k.to_string()).collect();
     let text = SPEC.replace(
@@ -126,7 +132,13 @@ fn bad_cuts_name_file_line_key_and_value() {
         &format!("cuts = [{}]", many.join(", ")),
     );
     let spec = write(d.path(), "many.toml", &text);
-    assert_rejected(d.path(), &spec, "many.toml:5", 3, &["60 values", "at most 50"]);
+    assert_rejected(
+        d.path(),
+        &spec,
+        "many.toml:5",
+        3,
+        &["60 values", "at most 50"],
+    );
 }
 
 /// The export without the lines that hold fitted numbers (the scalar priors,
@@ -189,7 +201,10 @@ fn scalar_priors_match(code: &str, lang: &str, v: &serde_json::Value) {
             numbers_after(code, "hazard_walk_sd = pm.HalfNormal(")[0],
         ),
     };
-    assert!(close(lh[0], m) && close(lh[1], s), "{lang}: {lh:?} vs {m}, {s}");
+    assert!(
+        close(lh[0], m) && close(lh[1], s),
+        "{lang}: {lh:?} vs {m}, {s}"
+    );
     assert!(close(walk, t), "{lang}: {walk} vs {t}");
 }
 
@@ -249,7 +264,13 @@ fn catalogue_and_new_know_the_template() {
     let r = run(&["templates"]);
     assert!(stdout(&r).contains("piecewise-hazard"));
     let r = run(&["templates", "piecewise-hazard"]);
-    for w in ["cuts", "hazard_walk_sd", "log_hazard_1", "hazard_ratio", "rmst_ratio"] {
+    for w in [
+        "cuts",
+        "hazard_walk_sd",
+        "log_hazard_1",
+        "hazard_ratio",
+        "rmst_ratio",
+    ] {
         assert!(stdout(&r).contains(w), "{w}: {}", stdout(&r));
     }
     assert!(!stdout(&r).contains("cure_fraction"));

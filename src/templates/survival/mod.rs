@@ -473,7 +473,14 @@ impl Model for Survival {
                                     if self.cure_kind == Cure::None {
                                         self.latency.median(l[p], k)
                                     } else {
-                                        self.value(SurvQuantity::MedianUncured, c[p], l[p], k, hz, lh)
+                                        self.value(
+                                            SurvQuantity::MedianUncured,
+                                            c[p],
+                                            l[p],
+                                            k,
+                                            hz,
+                                            lh,
+                                        )
                                     }
                                 } else {
                                     self.value(pq, c[p], l[p], k, hz, lh)
@@ -531,6 +538,9 @@ impl Model for Survival {
     }
 }
 
+/// Whether a hazard ratio between two covariate vectors is the same at every t.
+pub(crate) type ConstantRatio<'a> = dyn Fn(SurvQuantity, &[f64], &[f64]) -> bool + 'a;
+
 /// What [`request_in`] reads from a survival model: its registry entry, quantity
 /// table, covariates, time unit and cure form (for the labels).
 pub(crate) struct Frame<'a> {
@@ -551,7 +561,7 @@ pub(crate) fn request_in(
     path: &[Seg],
     quantity: &str,
     raw: &RawBelief,
-    constant: &dyn Fn(SurvQuantity, &[f64], &[f64]) -> bool,
+    constant: &ConstantRatio<'_>,
 ) -> Result<Request> {
     let sub = |k: &str| {
         let mut p = path.to_vec();
@@ -606,8 +616,8 @@ pub(crate) fn request_in(
         }
         (
             vec![
-                ctx.profile(&sub("profiles"), &ps[0], &frame.covariates)?,
-                ctx.profile(&sub("profiles"), &ps[1], &frame.covariates)?,
+                ctx.profile(&sub("profiles"), &ps[0], frame.covariates)?,
+                ctx.profile(&sub("profiles"), &ps[1], frame.covariates)?,
             ],
             ps.clone(),
         )
@@ -623,7 +633,7 @@ pub(crate) fn request_in(
             .clone()
             .unwrap_or_else(|| "reference".to_string());
         (
-            vec![ctx.profile(&sub("profile"), &name, &frame.covariates)?],
+            vec![ctx.profile(&sub("profile"), &name, frame.covariates)?],
             vec![name],
         )
     };

@@ -29,8 +29,8 @@
 //! `rmst_difference`, `rmst_ratio`, `median_ratio` (population medians).
 
 use super::{
-    contrast, request_in, Asked, Cure, Frame, SurvQuantity, BaseDraws, Hyper, Model, PriorSet,
-    PriorStatement, QuantityDef, Request, TemplateInfo,
+    contrast, request_in, Asked, BaseDraws, Cure, Frame, Hyper, Model, PriorSet, PriorStatement,
+    QuantityDef, Request, SurvQuantity, TemplateInfo,
 };
 use crate::error::Result;
 use crate::input::raw::RawBelief;
@@ -206,7 +206,11 @@ impl Curve<'_> {
             }
             let d = tau.min(self.end(j)) - c;
             let x = self.m * h * d;
-            let f = if x > 1e-10 { -(-x).exp_m1() / x } else { 1.0 - 0.5 * x };
+            let f = if x > 1e-10 {
+                -(-x).exp_m1() / x
+            } else {
+                1.0 - 0.5 * x
+            };
             area += (-acc).exp() * d * f;
             acc += x;
         }
@@ -214,10 +218,13 @@ impl Curve<'_> {
     }
 }
 
+/// Per distinct profile of an evaluation: (covariates, x'β of each draw).
+type EtaCache = Vec<(Vec<f64>, Vec<f64>)>;
+
 thread_local! {
-    /// Baseline hazards of the current evaluation, draw-major (n × J), and the
-    /// log hazard ratio of each draw at the profiles of the requests.
-    static SCRATCH: RefCell<(Vec<Vec<f64>>, Vec<f64>, Vec<(Vec<f64>, Vec<f64>)>)> =
+    /// Parameter draws, baseline hazards of the current evaluation (draw-major,
+    /// n × J) and the log hazard ratio of each draw at the requests' profiles.
+    static SCRATCH: RefCell<(Vec<Vec<f64>>, Vec<f64>, EtaCache)> =
         const { RefCell::new((Vec::new(), Vec::new(), Vec::new())) };
 }
 
@@ -311,7 +318,7 @@ impl Model for Piecewise {
             let n = base.n;
             // x'β per draw, once per distinct profile.
             let mut used = 0usize;
-            let mut eta_of = |x: &Vec<f64>, etas: &mut Vec<(Vec<f64>, Vec<f64>)>| -> usize {
+            let mut eta_of = |x: &Vec<f64>, etas: &mut EtaCache| -> usize {
                 if let Some(j) = etas[..used].iter().position(|e| &e.0 == x) {
                     return j;
                 }
@@ -452,14 +459,20 @@ fn read_cuts(ctx: &Ctx) -> Result<Vec<f64>> {
         }
         if i == 0 && c != 0.0 {
             return Err(ctx
-                .err(&p, format!("cuts[0] = {x}: the first interval must start at 0"))
+                .err(
+                    &p,
+                    format!("cuts[0] = {x}: the first interval must start at 0"),
+                )
                 .with_hint(format!("e.g. cuts = [0, {x}, …]")));
         }
         if let Some(&prev) = cuts.last() {
             if c == prev {
                 return Err(ctx.err(
                     &p,
-                    format!("cuts[{i}] = {x} repeats cuts[{}]: an interval would be empty", i - 1),
+                    format!(
+                        "cuts[{i}] = {x} repeats cuts[{}]: an interval would be empty",
+                        i - 1
+                    ),
                 ));
             }
             if c < prev {

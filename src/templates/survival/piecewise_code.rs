@@ -94,7 +94,11 @@ impl Piecewise {
             params: Vec::new(),
             about: format!(
                 "random walk on the log hazards of the {j} intervals starting at {} {}",
-                self.cuts.iter().map(|c| code_num(*c)).collect::<Vec<_>>().join(", "),
+                self.cuts
+                    .iter()
+                    .map(|c| code_num(*c))
+                    .collect::<Vec<_>>()
+                    .join(", "),
                 self.time_unit
             ),
             code: Some(code),
@@ -215,9 +219,17 @@ impl Piecewise {
         stan.insert("model".into(), model);
         stan.insert(
             "locals".into(),
-            ["n", "cut", "hazard", "lp", "log_hazard", "pw_cum_hazard", "pw_log_hazard"]
-                .map(String::from)
-                .to_vec(),
+            [
+                "n",
+                "cut",
+                "hazard",
+                "lp",
+                "log_hazard",
+                "pw_cum_hazard",
+                "pw_log_hazard",
+            ]
+            .map(String::from)
+            .to_vec(),
         );
         code.insert("stan".into(), stan);
 

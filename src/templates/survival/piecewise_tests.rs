@@ -76,7 +76,10 @@ fn hazards_of(cols: &[Vec<f64>], i: usize, tau_scale: f64) -> (Vec<f64>, f64) {
     for j in 1..CUTS.len() {
         lh.push(lh[j - 1] + tau * cols[2 + j][i]);
     }
-    (lh.iter().map(|x| x.exp()).collect(), -0.4 + 0.2 * cols[2][i])
+    (
+        lh.iter().map(|x| x.exp()).collect(),
+        -0.4 + 0.2 * cols[2][i],
+    )
 }
 
 /// S(t) = exp(−m·Σ_j h_j·Δ_j(t)), Δ_j(t) = clamp(t − c_j, 0, c_{j+1} − c_j).
@@ -106,7 +109,11 @@ fn survival_is_exp_of_minus_sum_of_hazard_times_time_in_interval() {
             ));
         }
     }
-    beliefs.push_str(&belief("event_prob", "horizon = 20\nprofile = \"treated\"", [0.2, 0.5, 0.8]));
+    beliefs.push_str(&belief(
+        "event_prob",
+        "horizon = 20\nprofile = \"treated\"",
+        [0.2, 0.5, 0.8],
+    ));
     let (_, out, cols) = draws(&spec_text(0.3, 3000, &beliefs));
     let mut k = 0;
     for t in horizons {
@@ -126,16 +133,31 @@ fn survival_is_exp_of_minus_sum_of_hazard_times_time_in_interval() {
     for (i, v) in out[k].iter().enumerate() {
         let (h, beta) = hazards_of(&cols, i, 0.3);
         let want = 1.0 - surv_direct(&h, beta.exp(), 20.0);
-        assert!((v - want).abs() < 1e-12, "event_prob draw {i}: {v} vs {want}");
+        assert!(
+            (v - want).abs() < 1e-12,
+            "event_prob draw {i}: {v} vs {want}"
+        );
     }
 }
 
 #[test]
 fn median_and_rmst_of_that_survival_curve() {
     let beliefs = [
-        belief("median_survival", "profile = \"treated\"", [10.0, 20.0, 40.0]),
-        belief("rmst", "horizon = 20\nprofile = \"treated\"", [5.0, 10.0, 15.0]),
-        belief("rmst", "horizon = 60\nprofile = \"control\"", [5.0, 10.0, 15.0]),
+        belief(
+            "median_survival",
+            "profile = \"treated\"",
+            [10.0, 20.0, 40.0],
+        ),
+        belief(
+            "rmst",
+            "horizon = 20\nprofile = \"treated\"",
+            [5.0, 10.0, 15.0],
+        ),
+        belief(
+            "rmst",
+            "horizon = 60\nprofile = \"control\"",
+            [5.0, 10.0, 15.0],
+        ),
     ]
     .concat();
     let (_, out, cols) = draws(&spec_text(0.5, 2000, &beliefs));
@@ -145,7 +167,10 @@ fn median_and_rmst_of_that_survival_curve() {
         // The median: S(median) = ½.
         let med = out[0][i];
         assert!(med.is_finite() && med > 0.0);
-        assert!((surv_direct(&h, m, med) - 0.5).abs() < 1e-12, "draw {i}: median {med}");
+        assert!(
+            (surv_direct(&h, m, med) - 0.5).abs() < 1e-12,
+            "draw {i}: median {med}"
+        );
         // RMST: composite Simpson on 4,000 panels per interval of the direct S
         // (S is smooth inside each interval; error far below the tolerance).
         for (o, tau, mm) in [(&out[1], 20.0, m), (&out[2], 60.0, 1.0)] {
@@ -204,7 +229,11 @@ fn walk_increments_have_the_fitted_sd() {
     let se = s * s * (8.0 / n as f64).sqrt();
     for j in 0..3 {
         let v = var(&|i| lh(i, j + 1) - lh(i, j));
-        assert!((v - s * s).abs() < 4.0 * se, "step {j}: var {v} vs {}", s * s);
+        assert!(
+            (v - s * s).abs() < 4.0 * se,
+            "step {j}: var {v} vs {}",
+            s * s
+        );
     }
     // Two steps: ε_1 + ε_2 = τ(z_1 + z_2), Var = 2s², Var of its square
     // E[τ⁴]E[(z₁+z₂)⁴] − 4s⁴ = 3s⁴·12 − 4s⁴ = 32s⁴.
@@ -215,7 +244,11 @@ fn walk_increments_have_the_fitted_sd() {
 
 #[test]
 fn hazard_ratio_is_exp_beta_at_every_t() {
-    let mut beliefs = belief("hazard_ratio", "profiles = [\"treated\", \"control\"]", [0.5, 0.7, 0.9]);
+    let mut beliefs = belief(
+        "hazard_ratio",
+        "profiles = [\"treated\", \"control\"]",
+        [0.5, 0.7, 0.9],
+    );
     for t in [0.5, 5.0, 12.0, 100.0] {
         beliefs.push_str(&belief(
             "hazard_ratio",
@@ -247,13 +280,26 @@ fn hazard_ratio_is_exp_beta_at_every_t() {
         let sd = surv_direct(&h, beta.exp(), 10.0) - surv_direct(&h, 1.0, 10.0);
         assert!((out[5][i] - sd).abs() < 1e-12);
         // A hazard ratio below 1 lengthens the median, above 1 shortens it.
-        assert_eq!(out[6][i] > 1.0, beta < 0.0, "draw {i}: {} at β = {beta}", out[6][i]);
+        assert_eq!(
+            out[6][i] > 1.0,
+            beta < 0.0,
+            "draw {i}: {} at β = {beta}",
+            out[6][i]
+        );
     }
 }
 
 #[test]
 fn bad_cuts_are_refused_with_the_key_and_value() {
-    let base = spec_text(0.3, 1000, &belief("survival_prob", "horizon = 12\nprofile = \"control\"", [0.2, 0.5, 0.8]));
+    let base = spec_text(
+        0.3,
+        1000,
+        &belief(
+            "survival_prob",
+            "horizon = 12\nprofile = \"control\"",
+            [0.2, 0.5, 0.8],
+        ),
+    );
     for (cuts, needle) in [
         ("[0, 12, 6]", "cuts[2] = 6 is below cuts[1] = 12"),
         ("[0, -3, 6]", "cuts[1] = -3 is negative"),
@@ -267,7 +313,10 @@ fn bad_cuts_are_refused_with_the_key_and_value() {
         ("6", "expected a list"),
     ] {
         let text = base.replace("cuts = [0, 3, 7.5, 12, 30]", &format!("cuts = {cuts}"));
-        let e = parse(&text, None, &Overrides::default()).err().unwrap().to_string();
+        let e = parse(&text, None, &Overrides::default())
+            .err()
+            .unwrap()
+            .to_string();
         assert!(e.contains(needle), "{cuts}: {e}");
         assert!(e.contains("cuts"), "{cuts}: {e}");
     }
@@ -276,9 +325,15 @@ fn bad_cuts_are_refused_with_the_key_and_value() {
         "cuts = [0, 3, 7.5, 12, 30]",
         &format!("cuts = [{}]", many.join(", ")),
     );
-    let e = parse(&text, None, &Overrides::default()).err().unwrap().to_string();
+    let e = parse(&text, None, &Overrides::default())
+        .err()
+        .unwrap()
+        .to_string();
     assert!(e.contains("at most 50"), "{e}");
     let text = base.replace("cuts = [0, 3, 7.5, 12, 30]\n", "");
-    let e = parse(&text, None, &Overrides::default()).err().unwrap().to_string();
+    let e = parse(&text, None, &Overrides::default())
+        .err()
+        .unwrap()
+        .to_string();
     assert!(e.contains("needs [model] cuts"), "{e}");
 }
