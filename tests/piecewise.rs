@@ -105,12 +105,12 @@ fn bad_cuts_name_file_line_key_and_value() {
     let d = tempfile::tempdir().unwrap();
     // cuts sits on line 5 of SPEC.
     for (k, (cuts, needle)) in [
-        ("[0, 12, 6]", "cuts[2] = 6 is below cuts[1] = 12"),
-        ("[0, -3, 6]", "cuts[1] = -3 is negative"),
-        ("[0, 6, 6, 12]", "cuts[2] = 6 repeats cuts[1]"),
+        ("[0, 12, 6]", "cuts[3] = 6 is below cuts[2] = 12"),
+        ("[0, -3, 6]", "cuts[2] = -3 is negative"),
+        ("[0, 6, 6, 12]", "cuts[3] = 6 repeats cuts[2]"),
         ("[]", "cuts = [] is empty"),
-        ("[0, 6, inf]", "cuts[2] = inf is not finite"),
-        ("[4, 6]", "cuts[0] = 4: the first interval must start at 0"),
+        ("[0, 6, inf]", "cuts[3] = inf is not finite"),
+        ("[4, 6]", "cuts[1] = 4: the first interval must start at 0"),
     ]
     .into_iter()
     .enumerate()

@@ -442,26 +442,28 @@ fn read_cuts(ctx: &Ctx) -> Result<Vec<f64>> {
     }
     let mut cuts = Vec::with_capacity(a.len());
     for (i, x) in a.iter().enumerate() {
+        // Positions are 1-based, as in the key path the error prints.
+        let (k, prev_k) = (i + 1, i);
         let mut p = path.to_vec();
         p.push(Seg::Index(i));
         let c = match x {
             toml::Value::Float(f) => *f,
-            toml::Value::Integer(k) => *k as f64,
-            _ => return Err(ctx.err(&p, format!("cuts[{i}] = {x}: expected a number"))),
+            toml::Value::Integer(n) => *n as f64,
+            _ => return Err(ctx.err(&p, format!("cuts[{k}] = {x}: expected a number"))),
         };
         if !c.is_finite() {
             return Err(ctx
-                .err(&p, format!("cuts[{i}] = {x} is not finite"))
+                .err(&p, format!("cuts[{k}] = {x} is not finite"))
                 .with_hint("the last interval is open-ended already: do not close it with inf"));
         }
         if c < 0.0 {
-            return Err(ctx.err(&p, format!("cuts[{i}] = {x} is negative: times start at 0")));
+            return Err(ctx.err(&p, format!("cuts[{k}] = {x} is negative: times start at 0")));
         }
         if i == 0 && c != 0.0 {
             return Err(ctx
                 .err(
                     &p,
-                    format!("cuts[0] = {x}: the first interval must start at 0"),
+                    format!("cuts[1] = {x}: the first interval must start at 0"),
                 )
                 .with_hint(format!("e.g. cuts = [0, {x}, …]")));
         }
@@ -469,17 +471,14 @@ fn read_cuts(ctx: &Ctx) -> Result<Vec<f64>> {
             if c == prev {
                 return Err(ctx.err(
                     &p,
-                    format!(
-                        "cuts[{i}] = {x} repeats cuts[{}]: an interval would be empty",
-                        i - 1
-                    ),
+                    format!("cuts[{k}] = {x} repeats cuts[{prev_k}]: an interval would be empty"),
                 ));
             }
             if c < prev {
                 return Err(ctx
                     .err(
                         &p,
-                        format!("cuts[{i}] = {x} is below cuts[{}] = {prev}", i - 1),
+                        format!("cuts[{k}] = {x} is below cuts[{prev_k}] = {prev}"),
                     )
                     .with_hint("list the interval starts in increasing order"));
             }

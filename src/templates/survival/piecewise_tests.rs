@@ -301,12 +301,12 @@ fn bad_cuts_are_refused_with_the_key_and_value() {
         ),
     );
     for (cuts, needle) in [
-        ("[0, 12, 6]", "cuts[2] = 6 is below cuts[1] = 12"),
-        ("[0, -3, 6]", "cuts[1] = -3 is negative"),
-        ("[0, 6, 6, 12]", "cuts[2] = 6 repeats cuts[1]"),
+        ("[0, 12, 6]", "cuts[3] = 6 is below cuts[2] = 12"),
+        ("[0, -3, 6]", "cuts[2] = -3 is negative"),
+        ("[0, 6, 6, 12]", "cuts[3] = 6 repeats cuts[2]"),
         ("[]", "empty"),
-        ("[0, 6, inf]", "cuts[2] = inf is not finite"),
-        ("[0, 6, nan]", "cuts[2] = nan is not finite"),
+        ("[0, 6, inf]", "cuts[3] = inf is not finite"),
+        ("[0, 6, nan]", "cuts[3] = nan is not finite"),
         ("[3, 6]", "must start at 0"),
         ("[0]", "one interval"),
         ("[0, \"6\"]", "expected a number"),
