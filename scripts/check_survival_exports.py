@@ -120,6 +120,28 @@ def main(folder, spec_file, stan_file, pymc_file):
                         **{c: [0.0, 1.0, 0.0, 1.0, 0.0] for c in covs})
     lp = m5.compile_logp()(m5.initial_point())
     print(f"   pymc: built, prior sampled (20000 draws); 5 invented patients: logp at the initial point {lp:.3f}")
+    if cuts is not None:
+        # The exported log likelihood at one prior draw against the formula written
+        # here: sum_i delta_i (lp_i + ln h_j(t_i)) - exp(lp_i) H_0(t_i).
+        pt_ = {k: np.asarray(v) for k, v in m5.initial_point().items()}
+        i0 = 7
+        for p in params:
+            for key in pt_:
+                if key == p or key.startswith(p + "_"):
+                    val = np.asarray(pp.prior[p]).reshape(-1, *np.shape(pt_[key]))[i0]
+                    pt_[key] = np.log(val) if key.endswith("_log__") else val
+        loglik = m5.replace_rvs_by_values([m5.potentials[0]])[0]
+        got = float(m5.compile_fn(loglik, inputs=m5.value_vars, on_unused_input="ignore")(pt_))
+        lh = np.asarray(pp.prior["log_hazard"]).reshape(-1, len(cuts))[i0]
+        cut = np.asarray(cuts, dtype=float)
+        t = np.asarray(INVENTED["time"]); ev = np.asarray(INVENTED["event"])
+        armv = np.array([0.0, 1.0, 0.0, 1.0, 0.0])
+        lpv = sum(np.asarray(pp.prior[f"hazard_effect_{c}"]).ravel()[i0] * armv for c in covs)
+        h0 = np.array([(np.exp(lh) * (np.clip(ti, cut, np.append(cut[1:], np.inf)) - cut)).sum() for ti in t])
+        j = np.searchsorted(cut, t, side="right") - 1
+        want = float(np.sum(ev * (lpv + lh[j]) - np.exp(lpv) * h0))
+        print(f"   pymc: log likelihood of the 5 invented patients at prior draw {i0}: {got:.6f}, "
+              f"formula {want:.6f} (difference {abs(got - want):.2e})")
 
     for h, x, ours in checks:
         for name, draws in (("stan", stan_draws), ("pymc", pymc_draws)):
