@@ -36,6 +36,19 @@ def surv_piecewise(cuts, draws, x, h):
     return np.exp(-np.exp(eta) * (np.exp(draws["log_hazard"]) @ delta))
 
 
+def piecewise_loglik(cuts, lh, beta):
+    """Right-censored piecewise-exponential log likelihood of the INVENTED patients
+    (covariates 0, 1, 0, 1, 0): sum_i delta_i (lp_i + ln h_j(t_i)) - exp(lp_i) H_0(t_i)."""
+    cut = np.asarray(cuts, dtype=float)
+    t = np.asarray(INVENTED["time"])
+    ev = np.asarray(INVENTED["event"])
+    x = np.array([0.0, 1.0, 0.0, 1.0, 0.0])
+    lp = sum(b * x for b in beta.values()) if beta else np.zeros(len(t))
+    h0 = np.array([(np.exp(lh) * (np.clip(ti, cut, np.append(cut[1:], np.inf)) - cut)).sum() for ti in t])
+    j = np.searchsorted(cut, t, side="right") - 1
+    return float(np.sum(ev * (lp + lh[j]) - np.exp(lp) * h0))
+
+
 def surv(template, latency, draws, x, h, q=None, cuts=None):
     """S(h) per draw at covariate values x (dict), from parameter draws (dict of arrays)."""
     if template == "piecewise-hazard":
@@ -104,6 +117,18 @@ def main(folder, spec_file, stan_file, pymc_file):
     f5 = post5.sample(num_chains=1, num_samples=200, num_warmup=200)
     print(f"   stan: compiled, prior sampled ({len(draws[params[0]])} draws, 4 chains); "
           f"5 invented patients: lp__ mean {np.mean(f5['lp__']):.3f} (finite: {np.isfinite(f5['lp__']).all()})")
+    if cuts is not None:
+        # The log likelihood of the 5 invented patients at one prior draw: the log
+        # density with the data less the log density without (the prior terms cancel).
+        i0 = 7
+        par = {p: np.asarray(fitd[p])[..., i0] for p in params}
+        par = {p: v.item() if v.size == 1 else v.tolist() for p, v in par.items()}
+        u = post5.unconstrain_pars(par)
+        got = post5.log_prob(u) - post.log_prob(u)
+        lh = np.asarray(fitd["log_hazard"])[..., i0]
+        want = piecewise_loglik(cuts, lh, {c: par[f"hazard_effect_{c}"] for c in covs})
+        print(f"   stan: log likelihood of the 5 invented patients at prior draw {i0}: {got:.6f}, "
+              f"formula {want:.6f} (difference {abs(got - want):.2e})")
 
     # PyMC.
     import pymc as pm
@@ -133,13 +158,7 @@ def main(folder, spec_file, stan_file, pymc_file):
         loglik = m5.replace_rvs_by_values([m5.potentials[0]])[0]
         got = float(m5.compile_fn(loglik, inputs=m5.value_vars, on_unused_input="ignore")(pt_))
         lh = np.asarray(pp.prior["log_hazard"]).reshape(-1, len(cuts))[i0]
-        cut = np.asarray(cuts, dtype=float)
-        t = np.asarray(INVENTED["time"]); ev = np.asarray(INVENTED["event"])
-        armv = np.array([0.0, 1.0, 0.0, 1.0, 0.0])
-        lpv = sum(np.asarray(pp.prior[f"hazard_effect_{c}"]).ravel()[i0] * armv for c in covs)
-        h0 = np.array([(np.exp(lh) * (np.clip(ti, cut, np.append(cut[1:], np.inf)) - cut)).sum() for ti in t])
-        j = np.searchsorted(cut, t, side="right") - 1
-        want = float(np.sum(ev * (lpv + lh[j]) - np.exp(lpv) * h0))
+        want = piecewise_loglik(cuts, lh, {c: np.asarray(pp.prior[f"hazard_effect_{c}"]).ravel()[i0] for c in covs})
         print(f"   pymc: log likelihood of the 5 invented patients at prior draw {i0}: {got:.6f}, "
               f"formula {want:.6f} (difference {abs(got - want):.2e})")
 

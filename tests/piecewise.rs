@@ -85,6 +85,14 @@ fn fit_from_survival_at_horizons_meets_the_beliefs_and_finds_the_generating_prio
     let out = fit(d.path(), "pw", SPEC, &[]);
     let v = json(&out.join("fit.json"));
     assert_eq!(v["verdict"], "met_within_noise", "{}", v["verdict"]);
+    // The report draws this template's survival bands through survival_prob.
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    for p in ["control", "treated"] {
+        assert!(
+            report.contains(&format!("Prior-predictive survival curve, profile {p}")),
+            "no survival bands for {p} in the report"
+        );
+    }
     // The beliefs are the generating prior's quantiles (rounded to 4 digits):
     // the fit lands on it. Tolerance 0.02 (common practice for a recovery
     // check; at seed 11 every value is within 0.002 of the generating one).
