@@ -1,5 +1,6 @@
 //! Benchmarks of the hot path: one objective evaluation of the README example
-//! (mixture-cure, 3 beliefs, 20,000 draws) and a whole fit of each demo scenario.
+//! (mixture-cure, 3 beliefs, 20,000 draws), of the piecewise-hazard starter, and a
+//! whole fit of each demo scenario.
 //! Run: `cargo bench --bench objective`. Figures: BENCHMARKS.md.
 
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
@@ -58,5 +59,26 @@ fn whole_fits(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, objective, whole_fits);
+/// One objective evaluation of the piecewise-hazard starter (4 intervals, 4
+/// beliefs, 20,000 draws): the walk, the per-draw interval sums and the median
+/// search.
+fn piecewise(c: &mut Criterion) {
+    let text = include_str!("../model-templates/piecewise-hazard.toml");
+    let spec = parse(text, None, &Overrides::default()).expect("starter parses");
+    let obj = Objective::fitting(&spec);
+    let eta0 = obj.eta(&obj.full0);
+    let mut g = c.benchmark_group("objective");
+    g.throughput(Throughput::Elements(spec.draws as u64));
+    let mut k = 0u64;
+    g.bench_function("piecewise-hazard 4 beliefs 20k draws", |b| {
+        b.iter(|| {
+            k += 1;
+            let eta: Vec<f64> = eta0.iter().map(|e| e + 1e-3 * ((k % 7) as f64)).collect();
+            black_box(obj.cost(&eta))
+        })
+    });
+    g.finish();
+}
+
+criterion_group!(benches, objective, piecewise, whole_fits);
 criterion_main!(benches);

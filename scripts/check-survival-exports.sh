@@ -35,7 +35,8 @@ sed -e 's/latency = "weibull".*/latency = "gengamma"\ngengamma_q = -0.4/' \
     -e 's/quantity = "hazard_ratio".*/quantity = "hazard_ratio"\nhorizon = 12/' \
     model-templates/parametric-survival.toml > "$GG"
 for spec in model-templates/mixture-cure.toml model-templates/promotion-time-cure.toml \
-            model-templates/parametric-survival.toml demo-data/two-arm-hazard-ratio.toml "$GG"; do
+            model-templates/parametric-survival.toml model-templates/piecewise-hazard.toml \
+            demo-data/two-arm-hazard-ratio.toml "$GG"; do
   name=$(basename "$spec" .toml)
   "$BIN" fit "$spec" --out "$OUT/$name" --quiet
   "$BIN" export "$OUT/$name" --to stan --with-likelihood --out "$OUT/$name/model.stan" --quiet

@@ -170,12 +170,13 @@ pub fn render_complete(rec: &FitRecord, lang: Lang) -> Result<String> {
     match lang {
         Lang::Stan => stan::render_with(&rec.header, &rec.items, Some(lik(lang)?)),
         Lang::Pymc => pymc::render_with(&rec.header, &rec.items, Some(lik(lang)?)),
-        Lang::Brms => Err(unsupported(
+        // A prior brms cannot state is refused with the template's own reason first.
+        Lang::Brms => render(rec, Lang::Brms).and(Err(unsupported(
             "--with-likelihood is not available for brms: brms has no mixture-cure or \
              promotion-time family, and its weibull() family is parameterised by the mean \
              (mu = lambda * Gamma(1 + 1/shape)), not by our scale; export --to stan or --to \
              pymc for a complete model, or --to brms without --with-likelihood for the priors",
-        )),
+        ))),
         Lang::Json => Err(unsupported(
             "--with-likelihood writes model code: use --to stan or --to pymc",
         )),

@@ -260,6 +260,7 @@ pub static TEMPLATES: &[&TemplateInfo] = &[
     &survival::mixture_cure::INFO,
     &survival::promotion_time::INFO,
     &survival::parametric::INFO,
+    &survival::piecewise::INFO,
     &linear::INFO,
     &logistic::INFO,
     &poisson::INFO,
