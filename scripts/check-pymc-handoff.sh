@@ -67,8 +67,10 @@ for name in ["relapse-free-cure", "two-arm-cure", "two-arm-hazard-ratio", "wide-
     for p in rec["prior"]:
         params = dict(p["params"])
         if p.get("code"):
-            # R2D2 coefficients: the R² share has a Beta(a, b) prior.
-            targets.append((f'{p["parameter"]}_r2', stats.beta(params["a"], params["b"])))
+            # R2D2 coefficients (the template's own PyMC lines): the R² share
+            # `<name>_r2` has a Beta(a, b) prior.
+            r2 = next(v for v in rvs if v.endswith("_r2"))
+            targets.append((r2, stats.beta(params["a"], params["b"])))
         else:
             targets.append((p["parameter"], reference(p["family"], params)))
     draws = pm.draw([rvs[t] for t, _ in targets], draws=N, random_seed=20240601)

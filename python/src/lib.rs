@@ -233,10 +233,7 @@ fn to_toml(v: &Bound<'_, PyAny>, path: &str) -> PyResult<toml::Value> {
         let x: f64 = v.call_method0("__float__")?.extract()?;
         return Ok(toml::Value::Float(x));
     }
-    Err(bad(&format!(
-        "a value of type {}",
-        v.get_type().name()?.to_string()
-    )))
+    Err(bad(&format!("a value of type {}", v.get_type().name()?)))
 }
 
 fn dict_to_table(d: &Bound<'_, PyDict>, path: &str) -> PyResult<toml::Table> {
@@ -281,11 +278,7 @@ struct CoreSpec {
     draws: Option<usize>,
 }
 
-fn finish_load(
-    py: Python<'_>,
-    mut src: Source,
-    ov: Overrides,
-) -> PyResult<CoreSpec> {
+fn finish_load(py: Python<'_>, mut src: Source, ov: Overrides) -> PyResult<CoreSpec> {
     let file = src.file();
     let table = match spec::parse_table(&src.text, Some(&file)) {
         Ok(t) => t,
@@ -359,7 +352,9 @@ fn load_dict(
 ) -> PyResult<CoreSpec> {
     let table = dict_to_table(beliefs, "")?;
     let text = toml::to_string(&table).map_err(|e| {
-        PyTypeError::new_err(format!("{STRING_FILE}: the dict cannot be written as TOML: {e}"))
+        PyTypeError::new_err(format!(
+            "{STRING_FILE}: the dict cannot be written as TOML: {e}"
+        ))
     })?;
     let src = Source {
         origin: Origin::Dict,
@@ -437,7 +432,8 @@ impl CoreSpec {
             });
             serde_json::to_string(&v).map_err(|e| Error::Internal(e.to_string()))
         };
-        py.allow_threads(run).map_err(|e| to_py(py, e, Some(&self.src)))
+        py.allow_threads(run)
+            .map_err(|e| to_py(py, e, Some(&self.src)))
     }
 
     /// Fit the free hyperparameters (interpreter lock released; Ctrl-C cancels).
@@ -611,7 +607,9 @@ impl CoreFit {
                     d.set_item("note", f.note)?;
                 }
                 Item::Supplied(s) => {
-                    let lines = s.lines(Lang::Pymc, "model").map_err(|e| to_py(py, e, None))?;
+                    let lines = s
+                        .lines(Lang::Pymc, "model")
+                        .map_err(|e| to_py(py, e, None))?;
                     d.set_item("code", lines.to_vec())?;
                 }
             }
@@ -627,7 +625,10 @@ impl CoreFit {
         let run = || -> priorsmith::Result<Option<PathBuf>> {
             let stage = output::folder::Staging::begin(&folder)?;
             output::write_fit(stage.path(), &self.fit)?;
-            output::write_atomic(&stage.path().join("spec.toml"), self.spec_copy(&folder)?.as_bytes())?;
+            output::write_atomic(
+                &stage.path().join("spec.toml"),
+                self.spec_copy(&folder)?.as_bytes(),
+            )?;
             priorsmith::report::write(stage.path())?;
             stage.commit()
         };
@@ -645,9 +646,7 @@ impl CoreFit {
             None => spec::parse_table(&self.src.text, None)?,
         };
         let from = match &self.src.origin {
-            Origin::Path(p) => {
-                spec::base_dir(Some(p))
-            }
+            Origin::Path(p) => spec::base_dir(Some(p)),
             _ => spec::base_dir(None),
         };
         spec::rebase_paths(&mut table, &from, folder);
