@@ -155,12 +155,27 @@ fn to_py(py: Python<'_>, e: Error, src: Option<&Source>) -> PyErr {
                     (Some(t), Some(k)) => value_at(t, k),
                     _ => None,
                 };
-                let mut text = Error::Input {
-                    loc: loc.clone(),
-                    msg,
-                    hint: hint.clone(),
-                }
-                .to_string();
+                let mut text = match (&loc.file, &loc.key) {
+                    // Not about a file (an argument of the Python call, an export
+                    // the language cannot state): no "<input>" placeholder.
+                    (None, key) if key.as_deref().is_none_or(|k| !k.starts_with("--")) => {
+                        let at = key
+                            .as_ref()
+                            .map(|k| format!("key `{k}`: "))
+                            .unwrap_or_default();
+                        let h = hint
+                            .as_ref()
+                            .map(|h| format!("\n  hint: {h}"))
+                            .unwrap_or_default();
+                        format!("{at}{msg}{h}")
+                    }
+                    _ => Error::Input {
+                        loc: loc.clone(),
+                        msg,
+                        hint: hint.clone(),
+                    }
+                    .to_string(),
+                };
                 if let Some(v) = &value {
                     if !text.contains(v.as_str()) {
                         text.push_str(&format!("\n  value: {v}"));

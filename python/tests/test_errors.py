@@ -94,7 +94,8 @@ def test_unknown_hyperparameter_in_simulate_and_unknown_export_language():
     f = priorsmith.fit(DEMO / "relapse-free-cure.toml", draws=2000)
     with pytest.raises(BeliefFileError) as ei:
         f.export(to="stann")
-    assert ei.value.key == "to"
+    assert ei.value.key == "to" and ei.value.file is None
+    assert str(ei.value).startswith("key `to`: unknown export language") and "stan" in str(ei.value)
 
 
 def test_replicates_out_of_range():
