@@ -196,7 +196,7 @@ impl Beta {
         for _ in 0..40 {
             let (lx, l1x) = parts(y);
             let f = self.cdf(crate::numerics::logistic(y));
-            if !(f > 0.0) {
+            if f.is_nan() || f <= 0.0 {
                 y += 1.0;
                 continue;
             }
@@ -261,7 +261,8 @@ impl Beta {
             let m = lo + (j as f64 + 0.5) * TABLE_STEP;
             let guess = t.interpolate(m);
             let (exact, _) = self.logit_quantile(&t.flip, ln_b, m, Some(guess));
-            if !((guess - exact).abs() <= TABLE_TOL) {
+            let e = (guess - exact).abs();
+            if e.is_nan() || e > TABLE_TOL {
                 return None;
             }
         }

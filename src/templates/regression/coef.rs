@@ -383,6 +383,7 @@ pub fn gamma_variate(shape: f64, r: &mut rand::rngs::ChaCha8Rng) -> f64 {
 impl CoefPrior {
     /// Draw i's normals z and local variates (the λ-free factor w, or for
     /// spike-and-slab the uniform deciding inclusion).
+    #[allow(clippy::too_many_arguments)]
     pub fn base_draw(
         &self,
         d: &Design,
