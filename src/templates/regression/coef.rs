@@ -456,9 +456,7 @@ impl CoefPrior {
     pub fn local_from_uniform(&self, u: f64) -> Option<f64> {
         match self.kind {
             Kind::Laplace => Some((-2.0 * u.ln()).sqrt()),
-            Kind::Horseshoe | Kind::RegHorseshoe => {
-                Some((0.5 * std::f64::consts::PI * u).tan())
-            }
+            Kind::Horseshoe | Kind::RegHorseshoe => Some((0.5 * std::f64::consts::PI * u).tan()),
             Kind::SpikeSlab => Some(u),
             _ => None,
         }
