@@ -1,7 +1,8 @@
 //! Multilevel and covariate-specific regression priors: a whole fit at 8,192
-//! draws, the first stage of the default draws mode (precision mode raises this
-//! spec to 262,144 draws: about 42 s wall, 20 s CPU in one CLI run at load ≈ 9;
-//! see BENCHMARKS.md).
+//! draws, the first stage of the default draws mode. With the coefficients'
+//! Sobol columns (`regression::coef::SobolCols`) precision mode stops there for
+//! this spec (0.6 s in one CLI run at load ≈ 8); before them it raised the draws
+//! to 262,144 (about 42 s wall, 20 s CPU; see BENCHMARKS.md).
 //!
 //! * `fit/logistic-multilevel/50x20`: random-intercept logistic model, 50 centres
 //!   of 20 rows (n = 1,000), 20 covariates under a normal prior, one covariate

@@ -150,9 +150,15 @@ impl Regression {
             kappa: Vec::new(),
             fault: None,
         };
+        let named = needs.forms[..needs.cross.min(needs.forms.len())]
+            .iter()
+            .flatten()
+            .filter(|(_, a)| *a != 0.0)
+            .map(|(j, _)| *j);
+        let sob = coef::SobolCols::draw(c, p, named, n, plan);
         if c.cached {
             let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
-                c.base_draw(d, seed, block, i, z, w);
+                c.base_draw(d, seed, block, i, z, w, &sob);
                 for x in w.iter_mut() {
                     *x = c.cached_w(&h0, *x);
                 }
@@ -176,7 +182,7 @@ impl Regression {
             ex.z.par_chunks_mut(p)
                 .zip(ex.loc.par_chunks_mut(p))
                 .enumerate()
-                .for_each(|(i, (z, l))| c.base_draw(d, seed, block, i, z, l));
+                .for_each(|(i, (z, l))| c.base_draw(d, seed, block, i, z, l, &sob));
             // Bases on the fresh streams only judge the fitted point, and the
             // replicates of the Monte Carlo error take a gradient there (a few
             // evaluations each): the exact products are cheaper than a table.
