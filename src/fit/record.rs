@@ -187,7 +187,10 @@ pub fn validate(fit: &FitResult, file: &Path) -> Result<()> {
                     st.family
                 ),
             )
-            .with_hint(format!("known families: {}", crate::dist::family_names().join(", "))));
+            .with_hint(format!(
+                "known families: {}",
+                crate::dist::family_names().join(", ")
+            )));
         };
         if st.params.len() != family.params.len() {
             return Err(bad(
@@ -217,9 +220,7 @@ pub fn validate(fit: &FitResult, file: &Path) -> Result<()> {
                     return Err(bad(
                         file,
                         &format!("prior[{k}].params[{j}]"),
-                        format!(
-                            "{name} = {value} disagrees with hyperparameters.{hk} = {h}"
-                        ),
+                        format!("{name} = {value} disagrees with hyperparameters.{hk} = {h}"),
                     ));
                 }
             }

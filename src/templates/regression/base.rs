@@ -242,6 +242,12 @@ impl Regression {
         }
         // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
         let sim = 8 * (k + 8 + 3 * forms.max(1));
-        (n.saturating_mul(2 * per_draw + sim), what)
+        // The design itself: the centred matrix kept by the model and, while
+        // the file is read, the row-major cells it was built from.
+        let design = 16 * r.saturating_mul(p);
+        (
+            n.saturating_mul(2 * per_draw + sim).saturating_add(design),
+            what,
+        )
     }
 }
