@@ -277,6 +277,53 @@ mod tests {
         }
     }
 
+    /// The streaming guard stops at the byte cap, at a NUL byte (with its
+    /// offset and line) and at a line without end, and keeps the reason.
+    #[test]
+    fn guarded_reader_stops_with_the_reason() {
+        use std::io::Read;
+        let drain = |bytes: Vec<u8>, cap: u64| {
+            let g = Guarded::new(std::io::Cursor::new(bytes), cap);
+            let why = g.stopped();
+            let r = std::io::copy(&mut g.take(u64::MAX), &mut std::io::sink());
+            (r.is_ok(), why.get())
+        };
+        assert_eq!(drain(b"a,b\n1,2\n".to_vec(), 100), (true, None));
+        assert_eq!(drain(vec![b'1'; 101], 100), (false, Some(Stop::Total(100))));
+        assert_eq!(
+            drain(b"a,b\n1,\x002\n".to_vec(), 100),
+            (false, Some(Stop::Binary(6, 2)))
+        );
+        let long = vec![b'x'; LINE_BYTES as usize + 1];
+        assert_eq!(drain(long, u64::MAX), (false, Some(Stop::Line(1))));
+        let e = stop_error(
+            std::path::Path::new("d.csv"),
+            "design file",
+            Stop::Binary(6, 2),
+        );
+        assert!(e.to_string().starts_with("d.csv:2: "), "{e}");
+        assert!(e.to_string().contains("not a text CSV file"), "{e}");
+    }
+
+    #[test]
+    fn capped_digest_streams_and_refuses_long_files() {
+        let d = tempfile::tempdir().unwrap();
+        let p = d.path().join("x.csv");
+        std::fs::write(&p, b"abc").unwrap();
+        // SHA-256("abc"), FIPS 180-2 appendix B.1.
+        assert_eq!(
+            sha256_capped(&p, 3).unwrap(),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+        assert_eq!(sha256_capped(&p, 2), None);
+        if std::path::Path::new("/dev/zero").exists() {
+            assert_eq!(
+                sha256_capped(std::path::Path::new("/dev/zero"), 1 << 20),
+                None
+            );
+        }
+    }
+
     #[test]
     fn non_utf8_names_line_and_byte() {
         let d = tempfile::tempdir().unwrap();

@@ -12,6 +12,7 @@ use common::*;
 /// Run the binary with `args`; returns whether it succeeded, its standard
 /// error and its own peak resident size in bytes (wait4's rusage: the kernel's
 /// high-water mark of that child alone).
+#[allow(clippy::zombie_processes)] // reaped by wait4 below, which also gives its rusage
 fn run_peak(args: &[&str], dir: &std::path::Path) -> (bool, String, u64) {
     let err_path = dir.join("stderr.txt");
     let child = bin()
@@ -34,7 +35,11 @@ fn run_peak(args: &[&str], dir: &std::path::Path) -> (bool, String, u64) {
 fn measure(text: &str, from: &str, draws: usize) -> (u64, u64) {
     assert!(text.contains(from));
     let d = tempfile::tempdir().unwrap();
-    let spec = write(d.path(), "s.toml", &text.replace(from, &format!("draws = {draws}")));
+    let spec = write(
+        d.path(),
+        "s.toml",
+        &text.replace(from, &format!("draws = {draws}")),
+    );
     let s = spec.to_str().unwrap();
     let o = run(&["--threads", "1", "--max-memory", "1", "check", s]);
     let err = stderr(&o);
@@ -49,7 +54,15 @@ fn measure(text: &str, from: &str, draws: usize) -> (u64, u64) {
     assert!(ok, "{err}");
     let out = d.path().join("out");
     let (ok, err, peak) = run_peak(
-        &["-q", "--threads", "1", "fit", s, "--out", out.to_str().unwrap()],
+        &[
+            "-q",
+            "--threads",
+            "1",
+            "fit",
+            s,
+            "--out",
+            out.to_str().unwrap(),
+        ],
         d.path(),
     );
     assert!(ok, "{err}");
