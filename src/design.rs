@@ -145,6 +145,19 @@ impl Design {
                 ));
             }
         }
+        if p > 0
+            && raw_sds
+                .iter()
+                .zip(&raw_means)
+                .all(|(s, m)| *s <= 1e-12 * m.abs().max(1.0))
+        {
+            return Err(format!(
+                "every column of the design is constant (first: `{}` = {}): centred, the \
+                 design is all zero and says nothing about how outcomes vary with the \
+                 covariates",
+                names[0], raw_means[0]
+            ));
+        }
         let mut xc = DMatrix::zeros(rows, p);
         for j in 0..p {
             let scale = if standardise { 1.0 / raw_sds[j] } else { 1.0 };
@@ -405,14 +418,54 @@ pub fn read_csv_grouped(path: &Path, standardise: bool, group: Option<&str>) -> 
         key: col.map(str::to_string),
     };
     let file = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+    if file.metadata().is_ok_and(|m| m.is_dir()) {
+        return Err(Error::io(
+            path,
+            std::io::Error::other("is a folder, not a CSV file"),
+        ));
+    }
+    // Streamed through a guard: an endless device, a binary file or a line
+    // without end stops with a clear error after a bounded read.
+    let guarded = crate::limits::Guarded::new(file, crate::limits::TABLE_BYTES);
+    let stopped = guarded.stopped();
+    let what = "design file";
+    let read_err = move |line: Option<usize>, e: csv::Error, doing: &str| -> Error {
+        if let Some(s) = stopped.get() {
+            return crate::limits::stop_error(path, what, s);
+        }
+        if let csv::ErrorKind::Utf8 { pos, err } = e.kind() {
+            let line = pos.as_ref().map(|p| p.line() as usize).or(line);
+            return Error::input(
+                Location {
+                    file: Some(path.to_path_buf()),
+                    line,
+                    key: None,
+                },
+                format!(
+                    "the design file is not UTF-8 text: field {} holds bytes that are not valid \
+                     UTF-8 (is it a binary file rather than a CSV file?)",
+                    err.field() + 1
+                ),
+            )
+            .with_hint("give a CSV file saved as UTF-8 text");
+        }
+        Error::input(
+            Location {
+                file: Some(path.to_path_buf()),
+                line,
+                key: None,
+            },
+            format!("{doing}: {e}"),
+        )
+    };
     let mut rdr = csv::ReaderBuilder::new()
         .has_headers(true)
         .flexible(true)
         .trim(csv::Trim::All)
-        .from_reader(file);
+        .from_reader(guarded);
     let names: Vec<String> = rdr
         .headers()
-        .map_err(|e| Error::input(loc(Some(1), None), format!("cannot read the header: {e}")))?
+        .map_err(|e| read_err(Some(1), e, "cannot read the header"))?
         .iter()
         .map(str::to_string)
         .collect();
@@ -455,7 +508,7 @@ pub fn read_csv_grouped(path: &Path, standardise: bool, group: Option<&str>) -> 
     for rec in rdr.records() {
         let rec = rec.map_err(|e| {
             let line = e.position().map(|p| p.line() as usize);
-            Error::input(loc(line, None), format!("cannot read the design: {e}"))
+            read_err(line, e, "cannot read the design")
         })?;
         let line = rec.position().map(|p| p.line() as usize);
         rows += 1;

@@ -121,6 +121,139 @@ pub fn read_text(path: &std::path::Path, cap: u64, what: &str) -> crate::Result<
     })
 }
 
+/// Longest line of a CSV table read by streaming (bytes): a design of 1,000,000
+/// columns of 20-character numbers fits; a device without newlines stops here.
+pub const LINE_BYTES: u64 = 64_000_000;
+
+/// Why a [`Guarded`] reader stopped.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Stop {
+    /// More than the byte cap in all.
+    Total(u64),
+    /// A line longer than [`LINE_BYTES`], starting on this line.
+    Line(u64),
+    /// A NUL byte (binary data, not text) at this byte offset, on this line.
+    Binary(u64, u64),
+}
+
+/// A reader of a streamed CSV table that refuses, with an I/O error whose
+/// reason it keeps ([`Guarded::stopped`]), more than `cap` bytes in all, a
+/// line longer than [`LINE_BYTES`], or a NUL byte (a binary file is not CSV
+/// text): an endless device or a binary file ends with a clear error after a
+/// bounded read instead of growing one record without end.
+pub struct Guarded<R> {
+    inner: R,
+    cap: u64,
+    read: u64,
+    line: u64,
+    line_len: u64,
+    stopped: std::rc::Rc<std::cell::Cell<Option<Stop>>>,
+}
+
+impl<R: std::io::Read> Guarded<R> {
+    pub fn new(inner: R, cap: u64) -> Self {
+        Guarded {
+            inner,
+            cap,
+            read: 0,
+            line: 1,
+            line_len: 0,
+            stopped: Default::default(),
+        }
+    }
+
+    /// Where the reason a read was refused will be found.
+    pub fn stopped(&self) -> std::rc::Rc<std::cell::Cell<Option<Stop>>> {
+        self.stopped.clone()
+    }
+}
+
+impl<R: std::io::Read> std::io::Read for Guarded<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        if let Some(s) = self.stopped.get() {
+            return Err(std::io::Error::other(format!("{s:?}")));
+        }
+        let n = self.inner.read(buf)?;
+        for (i, b) in buf[..n].iter().enumerate() {
+            let stop = if *b == 0 {
+                Some(Stop::Binary(self.read + i as u64, self.line))
+            } else if *b == b'\n' {
+                self.line += 1;
+                self.line_len = 0;
+                None
+            } else {
+                self.line_len += 1;
+                (self.line_len > LINE_BYTES).then_some(Stop::Line(self.line))
+            };
+            if let Some(s) = stop {
+                self.stopped.set(Some(s));
+                return Err(std::io::Error::other(format!("{s:?}")));
+            }
+        }
+        self.read += n as u64;
+        if self.read > self.cap {
+            self.stopped.set(Some(Stop::Total(self.cap)));
+            return Err(std::io::Error::other("too large"));
+        }
+        Ok(n)
+    }
+}
+
+/// The error for a [`Stop`] of the table at `path` (`what` it is).
+pub fn stop_error(path: &std::path::Path, what: &str, s: Stop) -> crate::Error {
+    let loc = |line: u64| crate::error::Location {
+        file: Some(path.to_path_buf()),
+        line: Some(line as usize),
+        key: None,
+    };
+    match s {
+        Stop::Total(cap) => crate::Error::Limit(format!(
+            "{}: the {what} is larger than {} MB, the most priorsmith reads",
+            path.display(),
+            mb(cap)
+        )),
+        Stop::Line(line) => crate::Error::Limit(format!(
+            "{}:{line}: a line of the {what} is longer than {} MB, the most priorsmith reads \
+             (is it a text CSV file?)",
+            path.display(),
+            mb(LINE_BYTES)
+        )),
+        Stop::Binary(at, line) => crate::Error::input(
+            loc(line),
+            format!(
+                "the {what} is not a text CSV file: byte {at} is a NUL byte (0x00), as in \
+                 binary data"
+            ),
+        )
+        .with_hint("give a CSV file: a header row of names, then one row per line"),
+    }
+}
+
+/// SHA-256 (hex) of the file at `path`, read in pieces and at most `cap`
+/// bytes; `None` when it cannot be read or is longer (the caller's own
+/// validation then reports it). Memory stays bounded for any file or device.
+pub fn sha256_capped(path: &std::path::Path, cap: u64) -> Option<String> {
+    use sha2::Digest;
+    use std::io::Read;
+    let f = std::fs::File::open(path).ok()?;
+    let mut r = f.take(cap.saturating_add(1));
+    let mut h = sha2::Sha256::new();
+    let mut buf = vec![0u8; 1 << 16];
+    let mut total = 0u64;
+    loop {
+        let n = r.read(&mut buf).ok()?;
+        if n == 0 {
+            break;
+        }
+        total += n as u64;
+        if total > cap {
+            return None;
+        }
+        h.update(&buf[..n]);
+    }
+    Some(format!("{:x}", h.finalize()))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -141,6 +274,53 @@ mod tests {
                 read_capped(z, 1000, "belief file"),
                 Err(crate::Error::Limit(_))
             ));
+        }
+    }
+
+    /// The streaming guard stops at the byte cap, at a NUL byte (with its
+    /// offset and line) and at a line without end, and keeps the reason.
+    #[test]
+    fn guarded_reader_stops_with_the_reason() {
+        use std::io::Read;
+        let drain = |bytes: Vec<u8>, cap: u64| {
+            let g = Guarded::new(std::io::Cursor::new(bytes), cap);
+            let why = g.stopped();
+            let r = std::io::copy(&mut g.take(u64::MAX), &mut std::io::sink());
+            (r.is_ok(), why.get())
+        };
+        assert_eq!(drain(b"a,b\n1,2\n".to_vec(), 100), (true, None));
+        assert_eq!(drain(vec![b'1'; 101], 100), (false, Some(Stop::Total(100))));
+        assert_eq!(
+            drain(b"a,b\n1,\x002\n".to_vec(), 100),
+            (false, Some(Stop::Binary(6, 2)))
+        );
+        let long = vec![b'x'; LINE_BYTES as usize + 1];
+        assert_eq!(drain(long, u64::MAX), (false, Some(Stop::Line(1))));
+        let e = stop_error(
+            std::path::Path::new("d.csv"),
+            "design file",
+            Stop::Binary(6, 2),
+        );
+        assert!(e.to_string().starts_with("d.csv:2: "), "{e}");
+        assert!(e.to_string().contains("not a text CSV file"), "{e}");
+    }
+
+    #[test]
+    fn capped_digest_streams_and_refuses_long_files() {
+        let d = tempfile::tempdir().unwrap();
+        let p = d.path().join("x.csv");
+        std::fs::write(&p, b"abc").unwrap();
+        // SHA-256("abc"), FIPS 180-2 appendix B.1.
+        assert_eq!(
+            sha256_capped(&p, 3).unwrap(),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+        assert_eq!(sha256_capped(&p, 2), None);
+        if std::path::Path::new("/dev/zero").exists() {
+            assert_eq!(
+                sha256_capped(std::path::Path::new("/dev/zero"), 1 << 20),
+                None
+            );
         }
     }
 

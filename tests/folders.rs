@@ -151,3 +151,92 @@ fn a_second_writer_is_refused_and_a_file_is_not_a_folder() {
     assert_eq!(o.status.code(), Some(4));
     assert!(stderr(&o).contains("leads to no folder"), "{}", stderr(&o));
 }
+
+/// Every file under `dir` with its bytes.
+fn contents(dir: &Path) -> std::collections::BTreeMap<String, Vec<u8>> {
+    snapshot(dir)
+        .0
+        .into_iter()
+        .map(|n| {
+            let b = std::fs::read(dir.join(&n)).unwrap();
+            (n, b)
+        })
+        .collect()
+}
+
+#[test]
+fn a_report_killed_at_any_write_leaves_the_old_set_or_the_new_one() {
+    let d = tempfile::tempdir().unwrap();
+    let a = write(d.path(), "a.toml", &spec_with_seed(1));
+    let out = d.path().join("out");
+    assert!(fit(&a, &out, None).status.success());
+    // The new set: what a complete `report` leaves.
+    let o = run(&["-q", "report", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let new_set = contents(&out);
+    // A recognisable old set: an old report and a plot the new one does not write.
+    let make_old = || {
+        std::fs::write(out.join("report.html"), "old report").unwrap();
+        std::fs::write(out.join("plots").join("stale.svg"), "<svg/>").unwrap();
+        contents(&out)
+    };
+    let old_set = make_old();
+    // The fit kept no previous set, and a report must not make one.
+    assert!(!d.path().join(".out.previous").exists());
+    let mut killed = 0;
+    for k in 1..400 {
+        let o = bin()
+            .args(["-q", "report"])
+            .arg(&out)
+            .env("PRIORSMITH_TEST_KILL_AT_WRITE", k.to_string())
+            .output()
+            .unwrap();
+        let now = contents(&out);
+        assert!(
+            now == old_set || now == new_set,
+            "report killed at write {k}: the folder holds a mix: {:?}",
+            now.keys().collect::<Vec<_>>()
+        );
+        if o.status.success() {
+            assert!(now == new_set, "a complete report leaves the new set");
+            break;
+        }
+        killed += 1;
+        make_old();
+    }
+    assert!(killed >= 5, "only {killed} write steps were interrupted");
+    // After the complete run nothing is left beside the folder but its lock.
+    let beside: Vec<String> = std::fs::read_dir(d.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.starts_with(".out"))
+        .collect();
+    assert_eq!(beside, [".out.lock"]);
+}
+
+#[test]
+fn a_report_keeps_the_previous_fit_and_refuses_a_second_writer() {
+    use std::os::unix::io::AsRawFd;
+    let d = tempfile::tempdir().unwrap();
+    let (a, b) = (
+        write(d.path(), "a.toml", &spec_with_seed(1)),
+        write(d.path(), "b.toml", &spec_with_seed(2)),
+    );
+    let out = d.path().join("out");
+    assert!(fit(&a, &out, None).status.success());
+    assert!(fit(&b, &out, None).status.success());
+    let kept = contents(&d.path().join(".out.previous"));
+    let o = run(&["-q", "report", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(contents(&d.path().join(".out.previous")), kept);
+    let lock = std::fs::File::open(d.path().join(".out.lock")).unwrap();
+    assert_eq!(
+        unsafe { libc::flock(lock.as_raw_fd(), libc::LOCK_EX | libc::LOCK_NB) },
+        0
+    );
+    let before = contents(&out);
+    let o = run(&["-q", "report", out.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(4), "{}", stderr(&o));
+    assert!(stderr(&o).contains("another priorsmith process is writing"));
+    assert_eq!(contents(&out), before);
+}

@@ -285,6 +285,29 @@ pub fn read(path: &Path) -> Result<Table> {
             table_err(path, line, format!("data row {}: {e}", k + 1))
         })?;
         let line = rec.position().map_or(k as u64 + 2, |p| p.line());
+        // A quoted cell may span lines; read as TOML its later lines would be
+        // other keys, silently dropped: a cell is one value.
+        if let Some((i, v)) = rec
+            .iter()
+            .enumerate()
+            .find(|(_, v)| v.contains(['\n', '\r']))
+        {
+            let col = columns.get(i).cloned().unwrap_or_default();
+            let first = v.lines().next().unwrap_or("");
+            return Err(Error::input(
+                Location {
+                    file: Some(path.to_path_buf()),
+                    line: Some(line as usize),
+                    key: Some(col.clone()),
+                },
+                format!(
+                    "data row {}, column `{col}`: the cell holds a line break (it starts \
+                     \"{first}\"); a cell is one value on one line",
+                    k + 1
+                ),
+            )
+            .with_hint("put each change in its own column, e.g. fit.draws"));
+        }
         let cells = rec
             .iter()
             .enumerate()

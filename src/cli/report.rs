@@ -5,7 +5,7 @@ use anyhow::Result;
 use std::path::Path;
 
 pub fn run(dir: &Path, quiet: bool) -> Result<()> {
-    let files = priorsmith::report::write(dir)?;
+    let files = priorsmith::report::write_folder(dir)?;
     if !quiet {
         println!(
             "wrote {} and {} plot(s) in {}",

@@ -39,6 +39,13 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
                     "quantiles": q,
                 })
             }
+            Item::Supplied(s) if s.code.is_empty() => {
+                return Err(super::unsupported(format!(
+                    "prior statement for `{}` ({}) carries no code and is not a family the \
+                     JSON export can write",
+                    s.parameter, s.about
+                )))
+            }
             Item::Supplied(s) => json!({
                 "parameter": s.parameter,
                 "about": s.about,

@@ -185,19 +185,21 @@ pub fn render_complete(rec: &FitRecord, lang: Lang) -> Result<String> {
 
 /// Read `dir/fit.json` and render its prior in `lang`.
 pub fn export_dir(dir: &Path, lang: Lang) -> Result<String> {
-    let rec = record::read(&dir.join("fit.json"))?;
-    render(&rec, lang)
+    export_dir_with(dir, lang, false)
 }
 
 /// Read `dir/fit.json` and render it in `lang`, with the template's likelihood
 /// when `likelihood` is set ([`render_complete`]).
 pub fn export_dir_with(dir: &Path, lang: Lang, likelihood: bool) -> Result<String> {
-    let rec = record::read(&dir.join("fit.json"))?;
+    let file = dir.join("fit.json");
+    let rec = record::read(&file)?;
+    // An export the language cannot express names the fit.json it came from.
     if likelihood {
         render_complete(&rec, lang)
     } else {
         render(&rec, lang)
     }
+    .map_err(|e| e.in_file(&file))
 }
 
 pub use crate::numerics::format::code as num;

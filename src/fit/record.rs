@@ -88,10 +88,147 @@ pub fn parse(text: &str, file: &Path) -> Result<FitResult> {
             ))
         }
     }
-    serde_path_to_error::deserialize(v).map_err(|e| {
+    let fit: FitResult = serde_path_to_error::deserialize(v).map_err(|e| {
         let key = e.path().to_string();
         bad(file, &key, e.into_inner().to_string())
-    })
+    })?;
+    validate(&fit, file)?;
+    Ok(fit)
+}
+
+/// Ranges and cross-references a hand-edited record could break although every
+/// value has the right type: the template is one this priorsmith knows; the
+/// draw count is at least 1; every hyperparameter is finite, listed in `order`,
+/// and a free one lies within its bounds; every prior statement names a family
+/// of the registry (with valid parameters that agree with the hyperparameters
+/// of the same name), a template's structured prior (`coefficients/…`) or
+/// template-supplied code. Errors name the file, the key and the value.
+pub fn validate(fit: &FitResult, file: &Path) -> Result<()> {
+    if crate::templates::find(&fit.template).is_none() {
+        return Err(bad(
+            file,
+            "template",
+            format!(
+                "`{}` is not a template of this priorsmith (known: {})",
+                fit.template,
+                crate::templates::names().join(", ")
+            ),
+        ));
+    }
+    if fit.draws == 0 {
+        return Err(bad(file, "draws", "draws = 0: a fit has at least one draw"));
+    }
+    for (k, v) in &fit.hyperparameters {
+        if !v.is_finite() {
+            return Err(bad(
+                file,
+                &format!("hyperparameters.{k}"),
+                format!("{v} is not a finite number"),
+            ));
+        }
+        if !fit.order.contains(k) {
+            return Err(bad(
+                file,
+                &format!("hyperparameters.{k}"),
+                format!("`{k}` is not listed in `order`"),
+            ));
+        }
+    }
+    for (i, k) in fit.order.iter().enumerate() {
+        if !fit.hyperparameters.contains_key(k) {
+            return Err(bad(
+                file,
+                &format!("order[{i}]"),
+                format!("`{k}` has no value in `hyperparameters`"),
+            ));
+        }
+    }
+    for (i, k) in fit.free.iter().enumerate() {
+        let v = fit.hyperparameters.get(k).copied();
+        let Some(v) = v else {
+            return Err(bad(
+                file,
+                &format!("free[{i}]"),
+                format!("`{k}` has no value in `hyperparameters`"),
+            ));
+        };
+        if let Some(&(lo, hi)) = fit.bounds.get(k) {
+            let slack = 1e-9 * (hi - lo).abs().max(1.0);
+            if lo.is_nan() || hi.is_nan() || lo > hi || v < lo - slack || v > hi + slack {
+                return Err(bad(
+                    file,
+                    &format!("hyperparameters.{k}"),
+                    format!("{v} lies outside its bounds [{lo}, {hi}]"),
+                ));
+            }
+        }
+    }
+    for (k, st) in fit.prior.iter().enumerate() {
+        let key = |s: &str| format!("prior[{k}].{s}");
+        if st.code.is_some() || st.family.starts_with("coefficients/") {
+            continue;
+        }
+        if st.family.is_empty() {
+            return Err(bad(
+                file,
+                &key("family"),
+                format!(
+                    "the prior statement for `{}` has neither a family nor template-supplied code",
+                    st.parameter
+                ),
+            ));
+        }
+        let Some(family) = crate::dist::family(&st.family) else {
+            return Err(bad(
+                file,
+                &key("family"),
+                format!(
+                    "`{}` is not a distribution family of this priorsmith",
+                    st.family
+                ),
+            )
+            .with_hint(format!(
+                "known families: {}",
+                crate::dist::family_names().join(", ")
+            )));
+        };
+        if st.params.len() != family.params.len() {
+            return Err(bad(
+                file,
+                &key("params"),
+                format!(
+                    "{} takes {} parameters ({}), found {}",
+                    family.name,
+                    family.params.len(),
+                    family.params.join(", "),
+                    st.params.len()
+                ),
+            ));
+        }
+        let mut values = Vec::new();
+        for (j, ((name, value), want)) in st.params.iter().zip(family.params).enumerate() {
+            if name != want {
+                return Err(bad(
+                    file,
+                    &format!("prior[{k}].params[{j}]"),
+                    format!("{} expects `{want}` here, found `{name}`", family.name),
+                ));
+            }
+            let hk = format!("{}.{name}", st.parameter);
+            if let Some(h) = fit.hyperparameters.get(&hk) {
+                if (h - value).abs() > 1e-9 * h.abs().max(value.abs()).max(1e-300) {
+                    return Err(bad(
+                        file,
+                        &format!("prior[{k}].params[{j}]"),
+                        format!("{name} = {value} disagrees with hyperparameters.{hk} = {h}"),
+                    ));
+                }
+            }
+            values.push(*value);
+        }
+        (family.build)(&values).map_err(|e| bad(file, &key("params"), e.to_string()))?;
+    }
+    Ok(())
 }
 
 #[cfg(test)]

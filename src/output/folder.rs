@@ -26,6 +26,18 @@
 //!    loses it: rename it back to recover it.
 //!
 //! Dropping a [`Staging`] without [`Staging::commit`] removes the staging folder.
+//!
+//! `report` rewrites files of an existing folder (report.html, plots/) rather
+//! than making a new result: [`Staging::begin_rewrite`] stages in
+//! `.<name>.redo-<pid>`, the caller copies the files it keeps (hard links where
+//! the file system allows: priorsmith never writes a file in place) and writes
+//! the new ones, and [`Staging::commit`] exchanges the folders and then deletes
+//! the old set instead of keeping it, so the previous *fit* kept as
+//! `.<name>.previous` survives a report. Recovery removes `redo` folders left
+//! by an interruption (a marked one was never swapped in; an unmarked one is
+//! the old set exchanged out, or, after an interruption between the two renames
+//! of the fallback, one of two whole sets: it is put back when the folder is
+//! missing).
 
 use crate::error::{Error, Result};
 use std::fs::{self, File};
@@ -41,6 +53,8 @@ pub struct Staging {
     staging: PathBuf,
     previous: PathBuf,
     committed: bool,
+    /// `report`'s mode: the old set is deleted after the swap, not kept.
+    rewrite: bool,
     _lock: File,
 }
 
@@ -70,6 +84,25 @@ impl Staging {
     /// staging folder. `target` may exist (a folder: it will be replaced) or
     /// not; anything else there (a file, a dangling link) is refused.
     pub fn begin(target: &Path) -> Result<Staging> {
+        Self::begin_as(target, false)
+    }
+
+    /// As [`Staging::begin`] for a folder whose files are being rewritten
+    /// (`report`): `target` must be a folder; the old set is not kept.
+    pub fn begin_rewrite(target: &Path) -> Result<Staging> {
+        if !target.is_dir() {
+            return Err(Error::io(
+                target,
+                std::io::Error::new(
+                    std::io::ErrorKind::NotFound,
+                    "no such folder: give the output folder of `priorsmith fit`",
+                ),
+            ));
+        }
+        Self::begin_as(target, true)
+    }
+
+    fn begin_as(target: &Path, rewrite: bool) -> Result<Staging> {
         if let Ok(m) = fs::symlink_metadata(target) {
             let is_dir = m.is_dir() || (m.file_type().is_symlink() && target.is_dir());
             if !is_dir {
@@ -110,7 +143,8 @@ impl Staging {
         }
         let previous = previous_of(target);
         recover(target, &previous)?;
-        let staging = sibling(target, &format!("new-{}", std::process::id()));
+        let kind = if rewrite { "redo" } else { "new" };
+        let staging = sibling(target, &format!("{kind}-{}", std::process::id()));
         fs::create_dir(&staging).map_err(|e| Error::io(&staging, e))?;
         let mark = staging.join(MARK);
         fs::write(&mark, b"").map_err(|e| Error::io(&mark, e))?;
@@ -119,6 +153,7 @@ impl Staging {
             staging,
             previous,
             committed: false,
+            rewrite,
             _lock: lock,
         })
     }
@@ -140,7 +175,9 @@ impl Staging {
         fs::remove_file(&mark).map_err(|e| Error::io(&mark, e))?;
         sync_dir(&self.staging);
         let had_old = self.target.is_dir();
-        let result = if had_old {
+        let result = if had_old && self.rewrite {
+            self.swap_discarding()
+        } else if had_old {
             self.swap_in()
         } else {
             fs::rename(&self.staging, &self.target).map_err(|e| Error::io(&self.target, e))
@@ -148,7 +185,24 @@ impl Staging {
         result?;
         self.committed = true;
         sync_dir(&parent_of(&self.target));
-        Ok(had_old.then(|| self.previous.clone()))
+        Ok((had_old && !self.rewrite).then(|| self.previous.clone()))
+    }
+
+    /// Swap the staged set in and delete the old one (`report`).
+    fn swap_discarding(&self) -> Result<()> {
+        let t = &self.target;
+        super::fault_point();
+        if exchange(&self.staging, t).is_ok() {
+            super::fault_point();
+            // The staging path now holds the old set.
+            return remove_all(&self.staging);
+        }
+        let old = sibling(t, &format!("redo-old-{}", std::process::id()));
+        fs::rename(t, &old).map_err(|e| Error::io(t, e))?;
+        super::fault_point();
+        fs::rename(&self.staging, t).map_err(|e| Error::io(t, e))?;
+        super::fault_point();
+        remove_all(&old)
     }
 
     fn swap_in(&self) -> Result<()> {
@@ -200,8 +254,52 @@ fn recover(target: &Path, previous: &Path) -> Result<()> {
             }
         }
     }
+    // `report`'s staging folders: a marked one was never swapped in; an
+    // unmarked one is an old set (or, when the folder is missing, a whole set
+    // to put back).
+    let redo = format!(".{name}.redo-");
+    if let Ok(entries) = fs::read_dir(&parent) {
+        let mut found: Vec<PathBuf> = entries
+            .flatten()
+            .filter(|e| e.file_name().to_string_lossy().starts_with(&redo))
+            .map(|e| e.path())
+            .collect();
+        found.sort();
+        for p in found {
+            if !p.join(MARK).exists() && !target.exists() {
+                fs::rename(&p, target).map_err(|e| Error::io(&p, e))?;
+            } else {
+                remove_all(&p)?;
+            }
+        }
+    }
     if !target.exists() && previous.is_dir() {
         fs::rename(previous, target).map_err(|e| Error::io(target, e))?;
+    }
+    Ok(())
+}
+
+/// Put every entry of folder `from` into folder `to` except those named in
+/// `skip` (top level only): files as hard links where possible, else copies;
+/// sub-folders recursively. Used by `report` to carry the fit's own files into
+/// its staging folder.
+pub fn carry_over(from: &Path, to: &Path, skip: &[&str]) -> Result<()> {
+    for e in fs::read_dir(from).map_err(|e| Error::io(from, e))? {
+        let e = e.map_err(|e| Error::io(from, e))?;
+        let name = e.file_name();
+        let n = name.to_string_lossy();
+        if skip.iter().any(|s| *s == n) || n == MARK {
+            continue;
+        }
+        let (src, dst) = (e.path(), to.join(&name));
+        let ft = e.file_type().map_err(|e| Error::io(&src, e))?;
+        super::fault_point();
+        if ft.is_dir() {
+            fs::create_dir(&dst).map_err(|e| Error::io(&dst, e))?;
+            carry_over(&src, &dst, &[])?;
+        } else if fs::hard_link(&src, &dst).is_err() {
+            fs::copy(&src, &dst).map_err(|e| Error::io(&src, e))?;
+        }
     }
     Ok(())
 }

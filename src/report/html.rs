@@ -403,7 +403,7 @@ fn predictive_section(
     html.push_str(&regression_section(dir, rec, svgs));
     let n = bs.len().min(PAIR_BELIEFS);
     if n >= 2 {
-        let cols = read_draws(&dir.join("draws.csv"), bs.len())?;
+        let cols = read_draws(&dir.join("draws.csv"), &rec.fit)?;
         let _ = writeln!(html, "<h3>Implied quantities jointly</h3>\n<p class=\"help\">Each plot shows the same prior draws of two implied quantities (from <code>draws.csv</code>). The fit matches each quantity's distribution on its own, not their joint behaviour: check that what these plots imply together is plausible.{}</p>",
             if bs.len() > n { format!(" The first {n} beliefs are paired.") } else { String::new() });
         html.push_str("<div class=\"figs\">\n");

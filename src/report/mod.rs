@@ -36,7 +36,28 @@ use crate::error::Result;
 use crate::output;
 use std::path::{Path, PathBuf};
 
-/// Render and write `dir/report.html` and `dir/plots/*.svg`; returns the paths.
+/// `priorsmith report DIR`: rebuild DIR with a new report.html and plots/ and
+/// swap it in as a whole ([`output::folder`]): the fit's own files are carried
+/// over unchanged, the old report and plots are not, and an interruption leaves
+/// the whole old set. Returns the paths of the new files as they are in DIR.
+pub fn write_folder(dir: &Path) -> Result<Vec<PathBuf>> {
+    let stage = output::folder::Staging::begin_rewrite(dir)?;
+    // Read and render from DIR itself (the lock is held, so it cannot change),
+    // so that errors name DIR's files; write into the staging folder.
+    let files = render(dir)?;
+    output::folder::carry_over(dir, stage.path(), &["report.html", "plots"])?;
+    output::ensure_dir(&stage.path().join("plots"))?;
+    let staged: Vec<(PathBuf, Vec<u8>)> = files
+        .iter()
+        .map(|(rel, bytes)| (stage.path().join(rel), bytes.clone()))
+        .collect();
+    output::write_all_atomic(&staged)?;
+    stage.commit()?;
+    Ok(files.into_iter().map(|(rel, _)| dir.join(rel)).collect())
+}
+
+/// Render and write `dir/report.html` and `dir/plots/*.svg` in place (into a
+/// staging folder being built); returns the paths.
 pub fn write(dir: &Path) -> Result<Vec<PathBuf>> {
     // Render everything before writing anything.
     let files = render(dir)?;

@@ -57,7 +57,7 @@ pub(super) fn as_value<T: serde::Serialize>(x: &T) -> Value {
 /// The beliefs of a fit record with the draws of draws.csv attached; `file`
 /// (the fit.json) names the record in errors.
 pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<BeliefView>> {
-    let cols = read_draws(draws_csv, fit.beliefs.len())?;
+    let cols = read_draws(draws_csv, fit)?;
     let mut out = Vec::new();
     for (k, (b, mut draws)) in fit.beliefs.iter().zip(cols).enumerate() {
         let c = &b.believed_curve;
@@ -85,51 +85,116 @@ pub fn beliefs(file: &Path, fit: &FitResult, draws_csv: &Path) -> Result<Vec<Bel
     Ok(out)
 }
 
-/// Columns 2.. of draws.csv (column 1 is the draw number), `n` of them.
-pub fn read_draws(path: &Path, n: usize) -> Result<Vec<Vec<f64>>> {
+/// Columns 2.. of draws.csv (column 1 is the draw number), one per belief of
+/// the record `fit`, checked against it: the header is `draw` and the beliefs'
+/// labels in order, the rows are numbered 1, 2, … and there are exactly
+/// `fit.draws` of them (a truncated file is refused), every value is a number
+/// (±inf allowed: a quantity such as a median survival time can be infinite;
+/// NaN is not). Errors name the file, the line, the column and the value.
+pub fn read_draws(path: &Path, fit: &FitResult) -> Result<Vec<Vec<f64>>> {
+    let n = fit.beliefs.len();
     let text = crate::limits::read_text(path, crate::limits::TABLE_BYTES, "draws table")?;
-    let bad = |line: usize, msg: String| {
+    let bad = |line: usize, key: Option<String>, msg: String| {
         Error::input(
             crate::error::Location {
                 file: Some(path.to_path_buf()),
                 line: Some(line),
-                key: None,
+                key,
             },
             msg,
         )
     };
-    let mut rd = csv::Reader::from_reader(text.as_bytes());
-    let header = rd.headers().map_err(|e| bad(1, e.to_string()))?.clone();
-    if header.len() != n + 1 {
+    let mut rd = csv::ReaderBuilder::new()
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let header = rd
+        .headers()
+        .map_err(|e| bad(1, None, e.to_string()))?
+        .clone();
+    let want: Vec<&str> = std::iter::once("draw")
+        .chain(fit.beliefs.iter().map(|b| b.label.as_str()))
+        .collect();
+    if header.len() != want.len() {
         return Err(bad(
             1,
+            None,
             format!(
                 "expected {} columns (draw + one per belief in fit.json), found {}",
-                n + 1,
+                want.len(),
                 header.len()
             ),
         ));
     }
+    for (j, (h, w)) in header.iter().zip(&want).enumerate() {
+        if h != *w {
+            return Err(bad(
+                1,
+                None,
+                format!(
+                    "column {} is `{h}`, but fit.json's belief {} is `{w}`: draws.csv is not \
+                     this fit's",
+                    j + 1,
+                    j
+                ),
+            ));
+        }
+    }
     let mut cols = vec![Vec::new(); n];
+    let mut rows = 0usize;
     for (i, rec) in rd.records().enumerate() {
         let line = i + 2;
-        let rec = rec.map_err(|e| bad(line, e.to_string()))?;
+        let rec = rec.map_err(|e| bad(line, None, e.to_string()))?;
+        if rec.len() != want.len() {
+            return Err(bad(
+                line,
+                None,
+                format!("{} fields, the header has {}", rec.len(), want.len()),
+            ));
+        }
+        rows += 1;
+        if rows > fit.draws {
+            return Err(bad(
+                line,
+                None,
+                format!("more rows than the {} draws fit.json records", fit.draws),
+            ));
+        }
+        let d = rec.get(0).unwrap_or_default();
+        if d.trim().parse::<usize>().ok() != Some(rows) {
+            return Err(bad(
+                line,
+                Some("draw".into()),
+                format!("`{d}` where draw number {rows} was expected"),
+            ));
+        }
         for (j, col) in cols.iter_mut().enumerate() {
             let s = rec.get(j + 1).unwrap_or_default();
             let v: f64 = s.trim().parse().map_err(|_| {
                 bad(
                     line,
-                    format!("column `{}`: `{s}` is not a number", &header[j + 1]),
+                    Some(want[j + 1].to_string()),
+                    format!("`{s}` is not a number"),
                 )
             })?;
             if v.is_nan() {
-                return Err(bad(line, format!("column `{}`: NaN", &header[j + 1])));
+                return Err(bad(
+                    line,
+                    Some(want[j + 1].to_string()),
+                    format!("`{s}`: NaN is not a draw"),
+                ));
             }
             col.push(v);
         }
     }
-    if cols.first().is_some_and(Vec::is_empty) {
-        return Err(bad(2, "no draws".into()));
+    if rows != fit.draws {
+        return Err(bad(
+            rows + 2,
+            None,
+            format!(
+                "{rows} draws, but fit.json records {}: the file is truncated or not this fit's",
+                fit.draws
+            ),
+        ));
     }
     Ok(cols)
 }

@@ -462,11 +462,11 @@ pub fn digest(table: &toml::Table, base_dir: &Path) -> String {
     let mut t = table.clone();
     for_each_path(&mut t, &mut |v| {
         if let toml::Value::String(p) = v {
-            if let Ok(bytes) = std::fs::read(base_dir.join(&*p)) {
-                *v = toml::Value::String(format!(
-                    "data file sha256 {:x}",
-                    sha2::Sha256::digest(&bytes)
-                ));
+            // Streamed and capped: a device named as a data file costs no memory.
+            if let Some(h) =
+                crate::limits::sha256_capped(&base_dir.join(&*p), crate::limits::TABLE_BYTES)
+            {
+                *v = toml::Value::String(format!("data file sha256 {h}"));
             }
         }
     });

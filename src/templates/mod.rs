@@ -255,6 +255,25 @@ pub trait Model: Send + Sync {
     }
 }
 
+/// Bytes a fit holds at its peak when one set of base draws (with one
+/// simulation's buffers) costs `per_draw` bytes a draw, plus `once` bytes held
+/// once (a table built on the fitting draws, the design). A fit holds, at the
+/// Monte Carlo error step, the full fitting set (n draws), the coarse set of
+/// the global search (`fit::optimise::coarse_draws`: at most
+/// next_power_of_two(max(n/5, 2000)), never above n) and one replicate set per
+/// worker thread (at most 8 replicates, in parallel); afterwards the fitting
+/// and the fresh sets (2n). The larger of the two, plus 15 % for allocator
+/// overhead and transient buffers not itemised (the measured gap was 3–7 %:
+/// tests/memory_estimate.rs).
+pub fn fit_peak_bytes(n: usize, per_draw: u64, once: u64) -> u64 {
+    let n = n as u64;
+    let coarse = (n / 5).max(2000).next_power_of_two().min(n);
+    let threads = (rayon::current_num_threads() as u64).clamp(1, 8);
+    let sets = (n + coarse + threads * n).max(2 * n);
+    let raw = sets.saturating_mul(per_draw).saturating_add(once);
+    raw.saturating_add(raw / 100 * 15)
+}
+
 /// All templates. Adding a template adds one line here.
 pub static TEMPLATES: &[&TemplateInfo] = &[
     &survival::mixture_cure::INFO,

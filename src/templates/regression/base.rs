@@ -207,9 +207,10 @@ impl Regression {
         }
     }
 
-    /// Bytes of the base draws ([`Regression::draw`], above) for n draws, twice
-    /// (the fit and the fresh-draw judgement hold one set each), plus one
-    /// simulation's per-draw vectors. Per draw: the prior columns and three coefficient
+    /// Bytes of the base draws ([`Regression::draw`], above) for n draws, for
+    /// every set a fit holds at once ([`crate::templates::fit_peak_bytes`]),
+    /// plus one simulation's per-draw vectors per set, the regularised
+    /// horseshoe's table and the design. Per draw: the prior columns and three coefficient
     /// streams (8 B each); cached kinds: q, v and one value per registered profile
     /// form (8 B each), n s_j² w_j² for effective_nonzero (p × 4 B, f32) and X_cβ
     /// for row-level quantities (rows × 8 B); recomputed kinds: the normals and
@@ -248,6 +249,24 @@ impl Regression {
         }
         // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
         let sim = 8 * (k + 8 + 3 * forms.max(1));
-        (n.saturating_mul(2 * per_draw + sim), what)
+        // The design itself: the centred matrix kept by the model and, while
+        // the file is read, the row-major cells it was built from.
+        let design = 16 * r.saturating_mul(p);
+        // The regularised horseshoe's table on the fitting draws (log Q and
+        // log V at NODES nodes, plus the slab and ratio vectors and one
+        // products pass while it is built).
+        let table = if self.coef.kind == Kind::RegHorseshoe && !self.coef.cached {
+            n.saturating_mul(16 * super::table::NODES as u64 + 48)
+        } else {
+            0
+        };
+        (
+            crate::templates::fit_peak_bytes(
+                n as usize,
+                per_draw + sim,
+                design.saturating_add(table),
+            ),
+            what,
+        )
     }
 }

@@ -114,7 +114,13 @@ pub fn build_with(
     quantities: &'static [RegDef],
     multilevel: bool,
 ) -> Result<Box<dyn Model>> {
-    Ok(Box::new(make(ctx, info, link, quantities, multilevel)?))
+    let model = make(ctx, info, link, quantities, multilevel)?;
+    // Every [profile.NAME] table, used by a belief or not, names design columns
+    // only: a misspelt column in an unused profile is refused, not ignored.
+    for name in ctx.raw.profile.keys() {
+        model.profile(ctx, &[key("profile"), key(name)], name)?;
+    }
+    Ok(Box::new(model))
 }
 
 /// The model [`build_with`] boxes.

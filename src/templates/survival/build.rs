@@ -104,6 +104,28 @@ pub(crate) fn build(
             ))
         }
     };
+    for (i, c) in covariates.iter().enumerate() {
+        let mut p = mp("covariates").to_vec();
+        p.push(Seg::Index(i));
+        if c.trim().is_empty() {
+            return Err(ctx
+                .err(&p, format!("covariate {} has an empty name \"{c}\"", i + 1))
+                .with_hint("name each covariate, e.g. covariates = [\"arm\"]"));
+        }
+        if covariates[..i].contains(c) {
+            return Err(ctx
+                .err(
+                    &p,
+                    format!("covariate `{c}` is listed twice (its effect would count twice)"),
+                )
+                .with_hint("list each covariate once"));
+        }
+    }
+    // Every [profile.NAME] table, used by a belief or not, names declared
+    // covariates only.
+    for name in ctx.raw.profile.keys() {
+        ctx.profile(&[key("profile"), key(name)], name, &covariates)?;
+    }
     let mut priors = PriorSet::default();
     let real = crate::dist::names_where(|f| f.real_valued());
     let (cure_param, cure_effect) = match kind {

@@ -383,6 +383,21 @@ impl Model for Survival {
         self.info.name
     }
 
+    /// Per draw and set: the prior columns (8 B each), one simulation's
+    /// parameter draws (the same again), the per-profile cure probabilities and
+    /// log scales of the thread's cache (16 B a profile, at most one per
+    /// belief plus the reference; counted as 16 profiles), outputs and sort
+    /// buffers (8 words); for every set a fit holds at once
+    /// ([`crate::templates::fit_peak_bytes`]).
+    fn working_bytes(&self, n: usize) -> (u64, String) {
+        let k = self.priors.priors.len() as u64;
+        let per_draw = 8 * (2 * k + 8) + 16 * 16;
+        (
+            crate::templates::fit_peak_bytes(n, per_draw, 0),
+            format!("{n} draws × {k} priors"),
+        )
+    }
+
     fn hypers(&self) -> &[Hyper] {
         &self.priors.hypers
     }
