@@ -403,11 +403,18 @@ impl Model for Piecewise {
         Some(self.code())
     }
 
+    /// Per draw and set: the prior columns and one simulation's parameter
+    /// draws (8 B each, twice), the walk columns and the draw-major hazards
+    /// (2·J values), outputs and sort buffers (8 words), and the per-profile
+    /// cache (16 B a profile, counted as 16 profiles); for every set a fit holds
+    /// at once ([`crate::templates::fit_peak_bytes`]).
     fn working_bytes(&self, n: usize) -> (u64, String) {
-        // Walk columns and the draw-major hazards: 2·J values per draw.
+        let k = self.priors.priors.len() as u64;
+        let j = self.intervals() as u64;
+        let per_draw = 8 * (2 * k + 2 * j + 8) + 16 * 16;
         (
-            (16 * self.intervals() * n) as u64,
-            format!("{} intervals × draws", self.intervals()),
+            crate::templates::fit_peak_bytes(n, per_draw, 0),
+            format!("{n} draws × {j} intervals × {k} priors"),
         )
     }
 }
