@@ -7,8 +7,10 @@
 #      own draws (scripts/check_survival_exports.py);
 #   3. when R with brms is installed (Debian: apt-get install r-cran-brms), run
 #      brms::validate_prior and make_stancode on the brms export of a
-#      mixture-cure and a promotion-time fit with family = weibull() (the
-#      `shape` clash).
+#      mixture-cure and a promotion-time fit with the documented formula and
+#      custom family (docs/brms/cure-families.R); with BRMS_SAMPLE=1 (needs
+#      rstan and Debian's r-cran-bh) also sample the prior in brms and print
+#      the implied S(36).
 # Usage: scripts/check-survival-exports.sh [--install]   (--install: create the venv)
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -49,22 +51,31 @@ for spec in model-templates/mixture-cure.toml model-templates/promotion-time-cur
 done
 if command -v Rscript >/dev/null && Rscript -e 'library(brms)' >/dev/null 2>&1; then
   for name in mixture-cure promotion-time-cure; do
-    echo "== brms validate_prior: $name"
-    Rscript - "$OUT/$name/priors.R" <<'REOF'
+    kind=mixture; [ "$name" = promotion-time-cure ] && kind=promotion
+    echo "== brms: $name with docs/brms/cure-families.R"
+    Rscript - "$ROOT/docs/brms/cure-families.R" "$OUT/$name/priors.R" "$kind" "${BRMS_SAMPLE:-0}" <<'REOF'
 suppressMessages(library(brms))
 args <- commandArgs(trailingOnly = TRUE)
-source(args[1])
-d <- data.frame(time = c(3, 12.5, 20, 36, 48), event = c(1, 1, 0, 1, 0))
-np <- unique(priors$nlpar)
-# The documented formula: every prior's parameter an intercept-only non-linear
-# parameter; the response part is a placeholder using all of them.
-f <- bf(as.formula(paste("time | cens(1 - event) ~", paste(np, collapse = " + "))),
-        nl = TRUE)
-for (p in np) f <- f + lf(as.formula(paste(p, "~ 1")))
-v <- validate_prior(priors, f, data = d, family = weibull())
-cat("validate_prior: ok,", nrow(v), "rows; nlpars", paste(np, collapse = ", "), "\n")
-code <- make_stancode(f, data = d, family = weibull(), prior = priors)
+source(args[1]); source(args[2]); kind <- args[3]
+d <- data.frame(time = c(3, 12.5, 20, 36, 48), event = c(1L, 1L, 0L, 1L, 0L))
+# The documented formula and custom family (docs/survival.md, docs/brms/cure-families.R).
+f <- if (kind == "mixture") cure_formula_mixture else cure_formula_promotion
+fam <- if (kind == "mixture") cure_family_mixture else cure_family_promotion
+v <- validate_prior(priors, f, data = d, family = fam, stanvars = cure_stanvars)
+cat("validate_prior: ok,", nrow(v), "rows; nlpars", paste(unique(v$nlpar[v$nlpar != ""]), collapse = ", "), "\n")
+code <- make_stancode(f, data = d, family = fam, prior = priors, stanvars = cure_stanvars)
 cat("make_stancode: ok,", length(strsplit(code, "\n")[[1]]), "lines\n")
+if (args[4] == "1") {
+  # Sample the prior (needs rstan with a C++ toolchain) and report S(36).
+  fit <- brm(f, data = d, family = fam, stanvars = cure_stanvars, prior = priors,
+             sample_prior = "only", chains = 2, iter = 6000, warmup = 1000, seed = 1,
+             refresh = 0, silent = 2)
+  dr <- as_draws_df(fit)
+  a <- dr[[grep("^b_(cureLogit|logTheta)_Intercept$", names(dr))]]
+  su <- exp(-(36 / exp(dr$b_logScale_Intercept))^dr$b_nlShape_Intercept)
+  s <- if (kind == "mixture") plogis(a) + (1 - plogis(a)) * su else exp(-exp(a) * (1 - su))
+  cat("brms prior S(36) 10/50/90 %:", format(quantile(s, c(.1, .5, .9)), digits = 3), "\n")
+}
 REOF
   done
 else

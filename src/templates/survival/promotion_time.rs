@@ -67,7 +67,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     ],
     starter: include_str!("../../../model-templates/promotion-time-cure.toml"),
     build,
-    brms: &super::BRMS,
+    brms: &super::BRMS_CURE,
 };
 
 /// The quantity table (the catalogue lists it in this order).
