@@ -250,7 +250,7 @@ pub fn from_ctx(ctx: &Ctx) -> Result<Design> {
             }
             let name = ctx.string(&sub("file"), f)?;
             let path = ctx.resolve(name);
-            read_csv_grouped(&path, standardise, group)
+            read_csv_budget(&path, standardise, group, ctx.max_memory_mb)
         }
         (None, Some(c)) => {
             if group.is_some() {
@@ -412,6 +412,31 @@ pub fn read_csv(path: &Path, standardise: bool) -> Result<Design> {
 /// Read a CSV design whose column `group` (when given) holds each row's cluster
 /// label (any text) rather than a covariate.
 pub fn read_csv_grouped(path: &Path, standardise: bool, group: Option<&str>) -> Result<Design> {
+    read_csv_budget(path, standardise, group, None)
+}
+
+/// Bytes the design holds per cell while it is read and prepared: the value
+/// (8 B), its standardised copy (8 B) and the column-major copy the templates
+/// build (8 B).
+pub const BYTES_PER_CELL: u64 = 24;
+
+/// Cells a design may have under a budget of `mb` MB (`None` = the default
+/// budget): the budget's bytes over [`BYTES_PER_CELL`], never above
+/// [`MAX_CELLS`].
+pub fn max_cells(mb: Option<u64>) -> usize {
+    let by_budget = crate::limits::bytes(crate::limits::budget_mb(mb)) / BYTES_PER_CELL;
+    (by_budget.min(MAX_CELLS as u64)) as usize
+}
+
+/// [`read_csv_grouped`] counting the cells, as they are read, against the
+/// memory budget `mb` ([`max_cells`]).
+pub fn read_csv_budget(
+    path: &Path,
+    standardise: bool,
+    group: Option<&str>,
+    mb: Option<u64>,
+) -> Result<Design> {
+    let cell_cap = max_cells(mb);
     let loc = |line: Option<usize>, col: Option<&str>| Location {
         file: Some(path.to_path_buf()),
         line,
@@ -512,10 +537,13 @@ pub fn read_csv_grouped(path: &Path, standardise: bool, group: Option<&str>) -> 
         })?;
         let line = rec.position().map(|p| p.line() as usize);
         rows += 1;
-        if rows.saturating_mul(p) > MAX_CELLS {
+        if rows.saturating_mul(p) > cell_cap {
             return Err(Error::Limit(format!(
-                "{}: design exceeds {MAX_CELLS} cells",
-                path.display()
+                "{}: the design exceeds {cell_cap} cells at row {rows} ({p} columns; \
+                 {BYTES_PER_CELL} bytes a cell against the memory limit of {} MB); \
+                 raise it deliberately with --max-memory MB, or use fewer rows",
+                path.display(),
+                crate::limits::budget_mb(mb)
             )));
         }
         for (j, name) in names.iter().enumerate() {

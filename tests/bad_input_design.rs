@@ -328,3 +328,52 @@ fn regression_memory_cap_names_draws_columns_and_megabytes() {
     let r = run(&["--max-memory", "20000", "check", spec.to_str().unwrap()]);
     assert!(r.status.success(), "{}", stderr(&r));
 }
+
+#[test]
+fn design_cells_are_counted_against_the_memory_limit_while_reading() {
+    // 1,000 rows × 50 columns = 50,000 cells; at 24 bytes a cell (value,
+    // standardised copy, column-major copy: design::BYTES_PER_CELL) a 1 MB budget
+    // holds 41,666 cells, so reading stops at row 834 (834 × 50 > 41,666).
+    let d = tempfile::tempdir().unwrap();
+    let spec = write(d.path(), "beliefs.toml", &spec_with_csv(true));
+    let mut csv = (0..50)
+        .map(|j| format!("x{j}"))
+        .collect::<Vec<_>>()
+        .join(",");
+    csv.push('\n');
+    for i in 0..1000 {
+        let row: Vec<String> = (0..50)
+            .map(|j| format!("{}", (i * 7 + j * 3) % 11))
+            .collect();
+        csv.push_str(&row.join(","));
+        csv.push('\n');
+    }
+    write(d.path(), "x.csv", &csv);
+    let r = run(&["--max-memory", "1", "check", spec.to_str().unwrap()]);
+    let err = stderr(&r);
+    assert_eq!(r.status.code(), Some(5), "{err}");
+    for needle in [
+        "x.csv",
+        "41666 cells",
+        "row 834",
+        "50 columns",
+        "1 MB",
+        "--max-memory",
+    ] {
+        assert!(err.contains(needle), "missing `{needle}`: {err}");
+    }
+    let out = d.path().join("out");
+    let r = run(&[
+        "--max-memory",
+        "1",
+        "fit",
+        spec.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(r.status.code(), Some(5), "{}", stderr(&r));
+    assert!(!out.exists());
+    // The default budget reads it.
+    let r = run(&["check", spec.to_str().unwrap()]);
+    assert!(r.status.success(), "{}", stderr(&r));
+}

@@ -32,6 +32,9 @@ pub struct Ctx<'a> {
     pub map: &'a SourceMap,
     pub raw: &'a RawSpec,
     pub base_dir: PathBuf,
+    /// The memory budget (`--max-memory`, MB; `None` = the default), which the
+    /// readers of data files named by the spec count their cells against.
+    pub max_memory_mb: Option<u64>,
     used_priors: RefCell<BTreeSet<String>>,
 }
 
@@ -58,6 +61,7 @@ impl<'a> Ctx<'a> {
                 .and_then(Path::parent)
                 .map(Path::to_path_buf)
                 .unwrap_or_else(|| PathBuf::from(".")),
+            max_memory_mb: None,
             used_priors: RefCell::new(BTreeSet::new()),
         }
     }

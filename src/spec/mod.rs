@@ -591,7 +591,8 @@ pub fn from_table(
                 }
             })?;
     let map = SourceMap::new(text);
-    let ctx = Ctx::new(file, &map, &raw);
+    let mut ctx = Ctx::new(file, &map, &raw);
+    ctx.max_memory_mb = ov.max_memory_mb;
     let digest = digest(&table, &ctx.base_dir);
 
     let Simulation {
