@@ -69,8 +69,66 @@ pub struct SurvivalBands {
 /// Probabilities of the pointwise bands: 95 %, 80 %, 50 % intervals and the median.
 pub const BAND_PROBS: [f64; 7] = [0.025, 0.1, 0.25, 0.5, 0.75, 0.9, 0.975];
 
-fn str_of(v: Option<&toml::Value>) -> Option<String> {
+pub(super) fn str_of(v: Option<&toml::Value>) -> Option<String> {
     v.and_then(|x| x.as_str()).map(str::to_string)
+}
+
+/// The [`BAND_PROBS`] quantiles of one column of draws (NaN draws left out;
+/// NaN when none is left).
+pub(super) fn band_quantiles(c: &[f64]) -> Vec<f64> {
+    let mut s: Vec<f64> = c.iter().copied().filter(|v| !v.is_nan()).collect();
+    s.sort_by(f64::total_cmp);
+    BAND_PROBS
+        .iter()
+        .map(|p| {
+            if s.is_empty() {
+                f64::NAN
+            } else {
+                crate::fit::verdict::empirical_quantile(&s, *p)
+            }
+        })
+        .collect()
+}
+
+/// Re-simulate a fit: the folder's spec.toml (`table`, read from `path`) with
+/// its beliefs replaced by `synth` (one per quantity to draw, their
+/// distributions placeholders), at [`CURVE_DRAWS`] draws from the record's
+/// seed and the fitted hyperparameters (fixed ones at their stated value).
+/// One column of draws per entry of `synth`, in order.
+pub(super) fn resimulate(
+    mut table: toml::Table,
+    synth: Vec<toml::Value>,
+    path: &Path,
+    rec: &Record,
+) -> Result<Vec<Vec<f64>>> {
+    table.insert("belief".into(), toml::Value::Array(synth));
+    let mut sim = toml::Table::new();
+    sim.insert("draws".into(), (CURVE_DRAWS as i64).into());
+    sim.insert("seed".into(), (rec.header.seed as i64).into());
+    table.insert("simulation".into(), toml::Value::Table(sim));
+    let synth_text = toml::to_string(&table).unwrap_or_default();
+    let spec = crate::spec::from_table(
+        table,
+        &synth_text,
+        Some(path),
+        &crate::spec::Overrides::default(),
+    )?;
+    let h: Vec<f64> = spec
+        .hypers()
+        .iter()
+        .map(|hy| {
+            rec.fit
+                .hyperparameters
+                .get(&hy.name)
+                .copied()
+                .unwrap_or_else(|| hy.default_value())
+        })
+        .collect();
+    let base = spec.model.draw_base(CURVE_DRAWS, &spec.plan());
+    let reqs: Vec<&crate::templates::Request> = spec.beliefs.iter().map(|b| &b.request).collect();
+    let mut out = vec![Vec::new(); reqs.len()];
+    spec.model.simulate(&h, &base, &reqs, &mut out)?;
+    Ok(out)
 }
 
 fn num_of(v: Option<&toml::Value>) -> Option<f64> {
@@ -93,7 +151,7 @@ pub fn survival_bands(dir: &Path, rec: &Record) -> Result<Option<Vec<SurvivalBan
         return Ok(None);
     }
     let text = crate::limits::read_text(&path, crate::limits::TEXT_BYTES, "belief file")?;
-    let mut table = crate::spec::parse_table(&text, Some(&path))?;
+    let table = crate::spec::parse_table(&text, Some(&path))?;
     let beliefs: Vec<toml::Table> = table
         .get("belief")
         .and_then(|b| b.as_array())
@@ -205,47 +263,15 @@ pub fn survival_bands(dir: &Path, rec: &Record) -> Result<Option<Vec<SurvivalBan
             synth.push(toml::Value::Table(b));
         }
     }
-    table.insert("belief".into(), toml::Value::Array(synth));
-    let mut sim = toml::Table::new();
-    sim.insert("draws".into(), (CURVE_DRAWS as i64).into());
-    sim.insert("seed".into(), (rec.header.seed as i64).into());
-    table.insert("simulation".into(), toml::Value::Table(sim));
-    let synth_text = toml::to_string(&table).unwrap_or_default();
-    let spec = crate::spec::from_table(
-        table,
-        &synth_text,
-        Some(&path),
-        &crate::spec::Overrides::default(),
-    )?;
-    // The fitted hyperparameters (fixed ones at their stated value).
-    let h: Vec<f64> = spec
-        .hypers()
-        .iter()
-        .map(|hy| {
-            fit.hyperparameters
-                .get(&hy.name)
-                .copied()
-                .unwrap_or_else(|| hy.default_value())
-        })
-        .collect();
-    let base = spec.model.draw_base(CURVE_DRAWS, &spec.plan());
-    let reqs: Vec<&crate::templates::Request> = spec.beliefs.iter().map(|b| &b.request).collect();
-    let mut out = vec![Vec::new(); reqs.len()];
-    spec.model.simulate(&h, &base, &reqs, &mut out)?;
+    let out = resimulate(table, synth, &path, rec)?;
     let g = times.len() - 1;
     let mut result = Vec::new();
     for (pi, p) in profiles.iter().enumerate() {
         let cols = &out[pi * g..(pi + 1) * g];
         let mut bands = vec![vec![1.0]; BAND_PROBS.len()];
         for c in cols {
-            let mut s: Vec<f64> = c.iter().copied().filter(|v| !v.is_nan()).collect();
-            s.sort_by(f64::total_cmp);
-            for (j, pr) in BAND_PROBS.iter().enumerate() {
-                bands[j].push(if s.is_empty() {
-                    f64::NAN
-                } else {
-                    crate::fit::verdict::empirical_quantile(&s, *pr)
-                });
+            for (band, q) in bands.iter_mut().zip(band_quantiles(c)) {
+                band.push(q);
             }
         }
         // Sample curves: evenly spaced draws (the base draws are already random).

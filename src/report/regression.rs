@@ -28,7 +28,7 @@
 //! `Model::simulate` runs once at the fitted hyperparameters. Deterministic:
 //! same folder, same picture.
 
-use super::predictive::{BAND_PROBS, CURVE_DRAWS};
+use super::predictive::{band_quantiles, resimulate, str_of};
 use crate::error::Result;
 use crate::export::record::FitRecord as Record;
 use std::path::Path;
@@ -73,9 +73,6 @@ pub struct RegressionPicture {
     pub design_rows: usize,
 }
 
-fn str_of(v: Option<&toml::Value>) -> Option<String> {
-    v.and_then(|x| x.as_str()).map(str::to_string)
-}
 
 /// A belief's believed 10 / 50 / 90 % quantiles from the record (NaN where the
 /// record has no such probability).
@@ -233,47 +230,9 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
         b.insert("distribution".into(), placeholder(q));
         synth.push(toml::Value::Table(b));
     }
-    table.insert("belief".into(), toml::Value::Array(synth));
-    let mut sim = toml::Table::new();
-    sim.insert("draws".into(), (CURVE_DRAWS as i64).into());
-    sim.insert("seed".into(), (rec.header.seed as i64).into());
-    table.insert("simulation".into(), toml::Value::Table(sim));
-    let synth_text = toml::to_string(&table).unwrap_or_default();
-    let spec = crate::spec::from_table(
-        table,
-        &synth_text,
-        Some(&path),
-        &crate::spec::Overrides::default(),
-    )?;
+    let out = resimulate(table, synth, &path, rec)?;
     let fit = &rec.fit;
-    let h: Vec<f64> = spec
-        .hypers()
-        .iter()
-        .map(|hy| {
-            fit.hyperparameters
-                .get(&hy.name)
-                .copied()
-                .unwrap_or_else(|| hy.default_value())
-        })
-        .collect();
-    let base = spec.model.draw_base(CURVE_DRAWS, &spec.plan());
-    let reqs: Vec<&crate::templates::Request> = spec.beliefs.iter().map(|b| &b.request).collect();
-    let mut out = vec![Vec::new(); reqs.len()];
-    spec.model.simulate(&h, &base, &reqs, &mut out)?;
-    let quantiles = |c: &[f64]| -> Vec<f64> {
-        let mut s: Vec<f64> = c.iter().copied().filter(|v| !v.is_nan()).collect();
-        s.sort_by(f64::total_cmp);
-        BAND_PROBS
-            .iter()
-            .map(|p| {
-                if s.is_empty() {
-                    f64::NAN
-                } else {
-                    crate::fit::verdict::empirical_quantile(&s, *p)
-                }
-            })
-            .collect()
-    };
+    let quantiles = band_quantiles;
     // The record's beliefs about the drawn quantities.
     let belief_of = |q: &str, profile: &str| -> Option<(usize, [f64; 3])> {
         beliefs
