@@ -17,6 +17,15 @@
 //!   (0 for a constant column, whose coefficient is then 0, as in the simulator)
 //!   and ρ the reference residual variance: σ² (linear), 1/(p̄(1 − p̄)) with
 //!   p̄ = logistic(intercept) (logistic), e^(−intercept)/exposure (Poisson).
+//! * r2d2 with groups of covariates ([`super::groups`]): R² ~ Beta(a, b),
+//!   group shares φ ~ Dirichlet(A_1, …, A_G), within group g ψ ~ Dirichlet(c, …, c)
+//!   over its p_g columns (no ψ for a one-column group), β_j = z_j √(ρ R²/(1 − R²)
+//!   φ_g ψ_j) / s_j; the per-column share φ_g ψ_j is `beta_share`, assembled in
+//!   design order from runs of consecutive columns of one group (Stan slice
+//!   assignments, PyMC `pm.math.concatenate`). brms refuses it: its `R2D2()` has
+//!   one flat Dirichlet over all components (each coefficient one), equal to ours
+//!   only when every A_g = p_g·c, and one `R2D2()` per group would give each
+//!   group an R² of its own, not a share of one joint R².
 //! * spike-and-slab(π, s) (Mitchell & Beauchamp 1988, JASA 83): β_j = δ_j s z_j,
 //!   δ_j ~ Bernoulli(π): PyMC only (Stan cannot sample discrete parameters, brms
 //!   neither); the others refuse with a reason.
