@@ -736,7 +736,11 @@ fn simulate(prog: &Program, standardise: bool, seed: u64) -> [Vec<f64>; 3] {
                     // One concentration for all, or one each.
                     let x: Vec<f64> = (0..v.size)
                         .map(|k| {
-                            let c = if v.args.len() == v.size { v.args[k] } else { v.args[0] };
+                            let c = if v.args.len() == v.size {
+                                v.args[k]
+                            } else {
+                                v.args[0]
+                            };
                             let g = (dist::family("gamma").unwrap().build)(&[c, 1.0]).unwrap();
                             g.quantile(u())
                         })
@@ -1068,7 +1072,10 @@ fn grouped_r2d2_round_trips_in_stan_and_pymc_matches_golden_files_and_brms_refus
             assert!(close(*x, *y), "{lang}: weight {x} vs fit.json {y}");
         }
         let r2 = get("beta_r2");
-        assert!(close(r2.args[0], hyper("coefficients.a")) && close(r2.args[1], hyper("coefficients.b")));
+        assert!(
+            close(r2.args[0], hyper("coefficients.a"))
+                && close(r2.args[1], hyper("coefficients.b"))
+        );
         let psi = get("beta_psi_g1");
         assert_eq!(psi.size, 2, "{lang}: clinical has two columns");
         assert!(close(psi.args[0], hyper("coefficients.concentration")));
@@ -1084,7 +1091,12 @@ fn grouped_r2d2_round_trips_in_stan_and_pymc_matches_golden_files_and_brms_refus
             std::fs::write(&golden, body(&code)).unwrap();
         }
         let want = std::fs::read_to_string(&golden).unwrap_or_default();
-        assert_eq!(body(&code), want, "{lang}: differs from {}", golden.display());
+        assert_eq!(
+            body(&code),
+            want,
+            "{lang}: differs from {}",
+            golden.display()
+        );
     }
     let e = export(dir.path(), "brms").unwrap_err();
     assert!(

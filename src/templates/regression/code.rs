@@ -569,7 +569,11 @@ fn grouped_r2d2(
         .enumerate()
         .map(|(k, n)| {
             let m = gr.cols[k].len();
-            format!("{} {n} ({m} column{})", k + 1, if m == 1 { "" } else { "s" })
+            format!(
+                "{} {n} ({m} column{})",
+                k + 1,
+                if m == 1 { "" } else { "s" }
+            )
         })
         .collect();
     let legend = legend.join(", ");
@@ -584,7 +588,9 @@ fn grouped_r2d2(
     let mut stan_t = Vec::new();
     stan_p.push(format!("vector[{p}] beta_z;"));
     stan_p.push("real<lower=0, upper=1> beta_r2;  // R²".into());
-    stan_p.push(format!("simplex[{g}] beta_phi;  // group shares φ_g: {legend}"));
+    stan_p.push(format!(
+        "simplex[{g}] beta_phi;  // group shares φ_g: {legend}"
+    ));
     stan_m.push("beta_z ~ std_normal();".into());
     stan_m.push(format!("beta_r2 ~ beta({a}, {b});"));
     stan_m.push(format!(
