@@ -81,7 +81,8 @@ group = "omics"
 distribution = { family = "beta", alpha = 0.8, beta = 4 }
 EOF
 (cd "$WORK" && "$BIN" fit s.toml -o out -q && "$BIN" export out --to pymc --out model.py -q && "$BIN" export out --to stan --out model.stan -q)
-"$PY" - "$WORK" <<'PYEOF'
+# In the temporary folder: httpstan builds the model under ./build.
+(cd "$WORK" && "$PY" - "$WORK") <<'PYEOF'
 import csv, math, sys
 import numpy as np
 import pymc as pm
