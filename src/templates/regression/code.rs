@@ -17,6 +17,15 @@
 //!   (0 for a constant column, whose coefficient is then 0, as in the simulator)
 //!   and ρ the reference residual variance: σ² (linear), 1/(p̄(1 − p̄)) with
 //!   p̄ = logistic(intercept) (logistic), e^(−intercept)/exposure (Poisson).
+//! * r2d2 with groups of covariates ([`super::groups`]): R² ~ Beta(a, b),
+//!   group shares φ ~ Dirichlet(A_1, …, A_G), within group g ψ ~ Dirichlet(c, …, c)
+//!   over its p_g columns (no ψ for a one-column group), β_j = z_j √(ρ R²/(1 − R²)
+//!   φ_g ψ_j) / s_j; the per-column share φ_g ψ_j is `beta_share`, assembled in
+//!   design order from runs of consecutive columns of one group (Stan slice
+//!   assignments, PyMC `pm.math.concatenate`). brms refuses it: its `R2D2()` has
+//!   one flat Dirichlet over all components (each coefficient one), equal to ours
+//!   only when every A_g = p_g·c, and one `R2D2()` per group would give each
+//!   group an R² of its own, not a share of one joint R².
 //! * spike-and-slab(π, s) (Mitchell & Beauchamp 1988, JASA 83): β_j = δ_j s z_j,
 //!   δ_j ~ Bernoulli(π): PyMC only (Stan cannot sample discrete parameters, brms
 //!   neither); the others refuse with a reason.
@@ -257,22 +266,7 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
     );
     let mut code = BTreeMap::new();
     if let Some(gr) = &c.groups {
-        // Not yet written as code: refused with the reason, never approximately.
-        let why = format!(
-            "r2d2 with {} groups of covariates (a Dirichlet over the groups' shares, then one \
-             within each group) is not yet exported as code",
-            gr.count()
-        );
-        refuse(&mut code, "stan", why.clone());
-        refuse(&mut code, "pymc", why);
-        refuse(
-            &mut code,
-            "brms",
-            "brms's R2D2() puts a single Dirichlet over all its components; the two-level split \
-             over groups and then within each group has no brms form (it is brms's flat one only \
-             when every group's weight equals its column count times the concentration)"
-                .into(),
-        );
+        grouped_r2d2(&mut code, c, gr, h, d, link, exposure, &about);
         return code;
     }
     let stan_decl = format!("vector[{p}] beta;  // {about}");
@@ -395,29 +389,8 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
         }
         Kind::R2d2 => {
             let (a, b, conc) = (num(x(0)), num(x(1)), num(c.shape));
-            let inv_sd: Vec<String> = shared
-                .iter()
-                .map(|j| d.var[*j])
-                .map(|v| {
-                    if v > 0.0 {
-                        num(1.0 / v.sqrt())
-                    } else {
-                        "0".into()
-                    }
-                })
-                .collect();
-            let inv_sd = inv_sd.join(", ");
-            let (rho_stan, rho_py) = match link {
-                Link::Identity => ("square(sigma)".to_string(), "sigma**2".to_string()),
-                Link::Logit => (
-                    "1 / (inv_logit(intercept) * inv_logit(-intercept))".to_string(),
-                    "1 / (pm.math.sigmoid(intercept) * pm.math.sigmoid(-intercept))".to_string(),
-                ),
-                Link::Log => (
-                    format!("exp(-intercept) / {}", num(exposure)),
-                    format!("pm.math.exp(-intercept) / {}", num(exposure)),
-                ),
-            };
+            let inv_sd = inv_sds(d, &shared);
+            let (rho_stan, rho_py) = reference_variance(link, exposure);
             stan_p.push(format!("vector[{p}] beta_z;"));
             stan_p.push("real<lower=0, upper=1> beta_r2;  // R²".into());
             stan_p.push(format!("simplex[{p}] beta_phi;  // variance shares"));
@@ -518,4 +491,201 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
         Err(why) => refuse(&mut code, "brms", why),
     }
     code
+}
+
+/// 1 / design sd of each of `cols` (0 for a constant column), comma-separated.
+fn inv_sds(d: &Design, cols: &[usize]) -> String {
+    let v: Vec<String> = cols
+        .iter()
+        .map(|j| d.var[*j])
+        .map(|v| {
+            if v > 0.0 {
+                num(1.0 / v.sqrt())
+            } else {
+                "0".into()
+            }
+        })
+        .collect();
+    v.join(", ")
+}
+
+/// R2D2's reference residual variance ρ as a Stan and as a PyMC expression.
+fn reference_variance(link: Link, exposure: f64) -> (String, String) {
+    match link {
+        Link::Identity => ("square(sigma)".to_string(), "sigma**2".to_string()),
+        Link::Logit => (
+            "1 / (inv_logit(intercept) * inv_logit(-intercept))".to_string(),
+            "1 / (pm.math.sigmoid(intercept) * pm.math.sigmoid(-intercept))".to_string(),
+        ),
+        Link::Log => (
+            format!("exp(-intercept) / {}", num(exposure)),
+            format!("pm.math.exp(-intercept) / {}", num(exposure)),
+        ),
+    }
+}
+
+/// Runs of consecutive design columns in one group: (first column, last
+/// column, group, position of the first column within its group), 0-based.
+fn group_runs(gr: &super::groups::Grouping) -> Vec<(usize, usize, usize, usize)> {
+    let mut runs: Vec<(usize, usize, usize, usize)> = Vec::new();
+    let mut seen = vec![0usize; gr.count()];
+    for (j, g) in gr.of.iter().enumerate() {
+        match runs.last_mut() {
+            Some(r) if r.2 == *g && r.1 + 1 == j => r.1 = j,
+            _ => runs.push((j, j, *g, seen[*g])),
+        }
+        seen[*g] += 1;
+    }
+    runs
+}
+
+/// R2D2 with groups of covariates ([`super::groups`]), exactly as simulated:
+/// R² ~ Beta(a, b), W = R²/(1 − R²), group shares φ ~ Dirichlet(A_1, …, A_G),
+/// within group g the split ψ_g ~ Dirichlet(c, …, c) over its p_g columns (none
+/// for a one-column group, whose split is 1), and β_j = z_j √(ρ W φ_g ψ_j) / s_j,
+/// z_j ~ N(0, 1). The per-column share φ_g ψ_j (`beta_share`) is assembled in
+/// design order from runs of consecutive columns of one group. brms is refused.
+#[allow(clippy::too_many_arguments)]
+fn grouped_r2d2(
+    code: &mut Code,
+    c: &CoefPrior,
+    gr: &super::groups::Grouping,
+    h: &[f64],
+    d: &Design,
+    link: Link,
+    exposure: f64,
+    about: &str,
+) {
+    let p = d.cols();
+    let g = gr.count();
+    let (a, b, conc) = (num(h[c.idx[0]]), num(h[c.idx[1]]), num(c.shape));
+    let weights: Vec<String> = gr.idx.iter().map(|i| num(h[*i])).collect();
+    let all: Vec<usize> = (0..p).collect();
+    let inv_sd = inv_sds(d, &all);
+    let (rho_stan, rho_py) = reference_variance(link, exposure);
+    let legend: Vec<String> = gr
+        .names
+        .iter()
+        .enumerate()
+        .map(|(k, n)| {
+            let m = gr.cols[k].len();
+            format!(
+                "{} {n} ({m} column{})",
+                k + 1,
+                if m == 1 { "" } else { "s" }
+            )
+        })
+        .collect();
+    let legend = legend.join(", ");
+    let psi = |k: usize| format!("beta_psi_g{}", k + 1);
+    let param = [
+        "// grouped R2D2 (normal kernel): R² ~ Beta(a, b), W = R²/(1 − R²), group shares".to_string(),
+        "// φ ~ Dirichlet(A_1, …, A_G), within group g ψ ~ Dirichlet(c, …, c) over its columns,".to_string(),
+        "// β_j = z_j √(ρ W φ_g ψ_j) / s_j with ρ the reference residual variance, s_j the design sd".to_string(),
+    ];
+    let mut stan_p: Vec<String> = param.to_vec();
+    let mut stan_m = Vec::new();
+    let mut stan_t = Vec::new();
+    stan_p.push(format!("vector[{p}] beta_z;"));
+    stan_p.push("real<lower=0, upper=1> beta_r2;  // R²".into());
+    stan_p.push(format!(
+        "simplex[{g}] beta_phi;  // group shares φ_g: {legend}"
+    ));
+    stan_m.push("beta_z ~ std_normal();".into());
+    stan_m.push(format!("beta_r2 ~ beta({a}, {b});"));
+    stan_m.push(format!(
+        "beta_phi ~ dirichlet([{}]');  // group weights A_g",
+        weights.join(", ")
+    ));
+    let mut py: Vec<String> = param.iter().map(|l| l.replacen("//", "#", 1)).collect();
+    py.push(format!("# beta: {about}"));
+    py.push(format!(
+        "beta_z = pm.Normal(\"beta_z\", mu=0, sigma=1, shape={p})"
+    ));
+    py.push(format!(
+        "beta_r2 = pm.Beta(\"beta_r2\", alpha={a}, beta={b})"
+    ));
+    py.push(format!(
+        "beta_phi = pm.Dirichlet(\"beta_phi\", a=[{}])  # group shares φ_g: {legend}",
+        weights.join(", ")
+    ));
+    for (k, cols) in gr.cols.iter().enumerate() {
+        let pg = cols.len();
+        if pg < 2 {
+            continue;
+        }
+        let n = &gr.names[k];
+        stan_p.push(format!(
+            "simplex[{pg}] {};  // split within group {n}",
+            psi(k)
+        ));
+        stan_m.push(format!("{} ~ dirichlet(rep_vector({conc}, {pg}));", psi(k)));
+        py.push(format!(
+            "{0} = pm.Dirichlet(\"{0}\", a=[{conc}] * {pg})  # split within group {n}",
+            psi(k)
+        ));
+    }
+    stan_t.push(format!(
+        "vector[{p}] beta_share;  // φ_g ψ_j of each column, design order"
+    ));
+    stan_t.push(format!("vector[{p}] beta;  // {about}"));
+    let mut pieces = Vec::new();
+    for (first, last, k, pos) in group_runs(gr) {
+        let len = last - first + 1;
+        let (stan_rhs, py_rhs) = if gr.cols[k].len() < 2 {
+            (
+                format!("beta_phi[{0}:{0}]", k + 1),
+                format!("beta_phi[{}:{}]", k, k + 1),
+            )
+        } else {
+            (
+                format!(
+                    "beta_phi[{}] * {}[{}:{}]",
+                    k + 1,
+                    psi(k),
+                    pos + 1,
+                    pos + len
+                ),
+                format!("beta_phi[{k}] * {}[{pos}:{}]", psi(k), pos + len),
+            )
+        };
+        stan_t.push(format!(
+            "beta_share[{}:{}] = {stan_rhs};  // group {}",
+            first + 1,
+            last + 1,
+            gr.names[k]
+        ));
+        pieces.push(py_rhs);
+    }
+    stan_t.push(format!(
+        "// reference residual variance {rho_stan}; the last factor is 1 / design sd of each column"
+    ));
+    stan_t.push(format!(
+        "beta = beta_z .* sqrt({rho_stan} * beta_r2 / (1 - beta_r2) * beta_share) .* [{inv_sd}]';"
+    ));
+    py.push(format!(
+        "beta_share = pm.Deterministic(\"beta_share\", pm.math.concatenate([{}]))  # φ_g ψ_j of each column, design order",
+        pieces.join(", ")
+    ));
+    py.push(format!(
+        "# reference residual variance {rho_py}; the last factor is 1 / design sd of each column"
+    ));
+    py.push(format!(
+        "beta = pm.Deterministic(\"beta\", beta_z * pm.math.sqrt({rho_py} * beta_r2 / (1 - beta_r2) * beta_share) * [{inv_sd}])"
+    ));
+    section(code, "stan", "parameters", stan_p);
+    section(code, "stan", "transformed_parameters", stan_t);
+    section(code, "stan", "model", stan_m);
+    section(code, "pymc", "model", py);
+    refuse(
+        code,
+        "brms",
+        "brms's R2D2() puts one flat Dirichlet over all its components (each coefficient of \
+         class \"b\" is one), with no level for groups of coefficients; one R2D2() term per \
+         group would give each group an R² of its own, not a share of one joint R². The \
+         grouped prior equals the flat one only when every group's weight A_g equals its \
+         column count times the concentration (then fit without groups, or use the Stan or \
+         PyMC export)"
+            .into(),
+    );
 }
