@@ -292,3 +292,34 @@ fn half_concentration_route_keeps_the_dirichlet_law() {
         }
     }
 }
+
+#[test]
+fn marginal_beliefs_skip_the_coefficient_draws_exactly() {
+    // With only r2_marginal and r2_share beliefs the base draws hold no
+    // coefficient variates (Σ_{j∈g} s_j²w_j² = 1 per group and draw); the draws
+    // of r2_marginal and of the shares equal, draw by draw, those of the full
+    // route, forced here by the extra belief on r2 (design quadratic form).
+    let short_text = GROUPED.replace(
+        "[[belief]]\nquantity = \"r2\"\ndistribution = { family = \"beta\", alpha = 2, beta = 5 }\n",
+        "",
+    );
+    assert_ne!(short_text, GROUPED);
+    let (full, short) = (spec(GROUPED), spec(&short_text));
+    let n = 5_000;
+    let a = draws(&full, &h0(&full), n);
+    let b = draws(&short, &h0(&short), n);
+    // Full: share a, share c, r2_marginal, r2, share b; short: without r2.
+    for (k, l) in [(0, 0), (1, 1), (2, 2), (4, 3)] {
+        for i in 0..n {
+            let (x, y) = (a[k][i], b[l][i]);
+            assert!((x - y).abs() <= 1e-12 * x.abs().max(1e-12), "belief {k}, draw {i}: {x} vs {y}");
+        }
+    }
+    // The short route holds no coefficient products beyond v.
+    let base = short
+        .model
+        .draw_base(64, &rng::Plan::fit(short.seed, rng::Points::Independent));
+    let ex = base::RegBase::of(&base).unwrap();
+    let prod = ex.cached.as_ref().unwrap();
+    assert!(prod.v.iter().all(|v| *v == 1.0) && prod.forms.is_empty());
+}
