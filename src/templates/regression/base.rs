@@ -226,8 +226,7 @@ impl Regression {
     /// as when it is not asked for; else `None`.
     fn unit_signal(&self, n: usize) -> Option<Products> {
         let (c, needs, d) = (&self.coef, &self.needs, &self.design);
-        if c.kind != Kind::R2d2 || needs.q || needs.rows || needs.eff || !needs.forms.is_empty()
-        {
+        if c.kind != Kind::R2d2 || needs.q || needs.rows || needs.eff || !needs.forms.is_empty() {
             return None;
         }
         let of = |j: usize| c.groups.as_ref().map_or(0, |g| g.of[j]);
@@ -237,7 +236,7 @@ impl Regression {
             if c.skip.get(j).copied().unwrap_or(false) {
                 continue;
             }
-            if !(d.var[j] > 0.0) {
+            if d.var[j].is_nan() || d.var[j] <= 0.0 {
                 return None;
             }
             seen[of(j)] = true;

@@ -260,7 +260,7 @@ fn half_concentration_route_keeps_the_dirichlet_law() {
         let sob = super::coef::SobolCols::draw(&m.coef, p, std::iter::empty(), n, &plan);
         assert_eq!(sob.u.len(), p.min(coef::SOBOL_COLUMNS));
         let (mut z, mut loc) = (vec![0.0; p], vec![0.0; p]);
-        let mut new = vec![Vec::with_capacity(n); 2];
+        let mut new: Vec<Vec<f64>> = (0..2).map(|_| Vec::with_capacity(n)).collect();
         for i in 0..n {
             m.coef
                 .base_draw(d, plan.seed, plan.block, i, &mut z, &mut loc, &sob);
@@ -272,9 +272,7 @@ fn half_concentration_route_keeps_the_dirichlet_law() {
         for (k, (j, ng)) in checks.iter().enumerate() {
             let old: Vec<f64> = (0..n)
                 .map(|_| {
-                    let g: Vec<f64> = (0..*ng)
-                        .map(|_| coef::gamma_variate(0.5, &mut r))
-                        .collect();
+                    let g: Vec<f64> = (0..*ng).map(|_| coef::gamma_variate(0.5, &mut r)).collect();
                     g[0] / g.iter().sum::<f64>()
                 })
                 .collect();
@@ -284,11 +282,17 @@ fn half_concentration_route_keeps_the_dirichlet_law() {
             let b = 0.5 * (*ng as f64 - 1.0);
             let law = crate::dist::beta::Beta::new(0.5, b).unwrap();
             let (dd, floor) = cvm_vs(Arc::new(law), new[k].clone());
-            assert!(dd < CVM_999_OVER_MEAN * floor, "{what}: CvM {dd} vs {floor}");
+            assert!(
+                dd < CVM_999_OVER_MEAN * floor,
+                "{what}: CvM {dd} vs {floor}"
+            );
             // The check can fail: the same draws against a neighbouring law.
             let law = crate::dist::beta::Beta::new(0.5, 0.85 * b).unwrap();
             let (dd, floor) = cvm_vs(Arc::new(law), new[k].clone());
-            assert!(dd > CVM_999_OVER_MEAN * floor, "{what}: wrong law accepted, CvM {dd}");
+            assert!(
+                dd > CVM_999_OVER_MEAN * floor,
+                "{what}: wrong law accepted, CvM {dd}"
+            );
         }
     }
 }
@@ -312,7 +316,10 @@ fn marginal_beliefs_skip_the_coefficient_draws_exactly() {
     for (k, l) in [(0, 0), (1, 1), (2, 2), (4, 3)] {
         for i in 0..n {
             let (x, y) = (a[k][i], b[l][i]);
-            assert!((x - y).abs() <= 1e-12 * x.abs().max(1e-12), "belief {k}, draw {i}: {x} vs {y}");
+            assert!(
+                (x - y).abs() <= 1e-12 * x.abs().max(1e-12),
+                "belief {k}, draw {i}: {x} vs {y}"
+            );
         }
     }
     // The short route holds no coefficient products beyond v.
