@@ -12,7 +12,8 @@
 //!   columns), the weight of one group varied: cached per-group products; the
 //!   two Beta quantiles per draw (R² and the group share) come from a checked
 //!   table per evaluation (`dist::beta::QuantileTable`): 5.61 ms before it.
-//! * `fit/...`: a whole fit (set-up, global stage, local searches, fresh judgement).
+//! * `fit/...`: a whole fit (set-up, global stage, local searches, fresh judgement);
+//!   `fit/r2d2-groups/5000` the grouped R2D2 fit at 4,000 draws (slow: run alone).
 //!
 //! Run a subset: `cargo bench --bench regression -- eval` (keep runs under a minute).
 
@@ -152,6 +153,12 @@ fn bench(c: &mut Criterion) {
             b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
         });
     }
+    // Grouped R2D2, p = 5,000, a whole fit at 4,000 draws (≈ 15 s CPU per
+    // iteration: run it alone, `cargo bench --bench regression -- fit/r2d2`).
+    let s = spec_beliefs(5000, &grouped(5000), GROUPED_BELIEFS);
+    g.bench_function("r2d2-groups/5000", |b| {
+        b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
+    });
     g.finish();
 }
 

@@ -155,6 +155,16 @@ impl Regression {
             .flatten()
             .filter(|(_, a)| *a != 0.0)
             .map(|(j, _)| *j);
+        if let Some(prod) = self.unit_signal(n) {
+            // Nothing but Σ_j s_j²w_j² per group is read, and that is 1 for every
+            // draw: no coefficient variate needs drawing.
+            ex.cached = Some(prod);
+            return BaseDraws {
+                n,
+                cols,
+                extra: Some(Box::new(ex)),
+            };
+        }
         let sob = coef::SobolCols::draw(c, p, named, n, plan);
         if c.cached {
             let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
@@ -205,6 +215,40 @@ impl Regression {
             cols,
             extra: Some(Box::new(ex)),
         }
+    }
+
+    /// R2D2 when the beliefs read neither the design quadratic form, nor rows,
+    /// linear forms or shrinkage terms (say `r2_marginal` and `r2_share` only):
+    /// the per-draw signal variance of each group at unit multiplier,
+    /// Σ_{j∈g} s_j²w_j² = Σ_{j∈g} γ_j/S_g, is exactly 1 when every column of the
+    /// group that takes part has s_j² > 0, so the base draws need no coefficient
+    /// variates. Then the products: G values of v per draw (all 1), q left at 0
+    /// as when it is not asked for; else `None`.
+    fn unit_signal(&self, n: usize) -> Option<Products> {
+        let (c, needs, d) = (&self.coef, &self.needs, &self.design);
+        if c.kind != Kind::R2d2 || needs.q || needs.rows || needs.eff || !needs.forms.is_empty() {
+            return None;
+        }
+        let of = |j: usize| c.groups.as_ref().map_or(0, |g| g.of[j]);
+        let ng = c.groups.as_ref().map_or(1, |g| g.count());
+        let mut seen = vec![false; ng];
+        for j in 0..d.cols() {
+            if c.skip.get(j).copied().unwrap_or(false) {
+                continue;
+            }
+            if d.var[j].is_nan() || d.var[j] <= 0.0 {
+                return None;
+            }
+            seen[of(j)] = true;
+        }
+        if seen.iter().any(|s| !s) {
+            return None;
+        }
+        Some(Products {
+            q: vec![0.0; n * ng * ng],
+            v: vec![1.0; n * ng],
+            ..Default::default()
+        })
     }
 
     /// Bytes of the base draws ([`Regression::draw`], above) for n draws, for

@@ -311,7 +311,8 @@ pub struct SobolCols {
     /// Normals of each chosen column (per draw).
     pub z: Vec<Vec<f64>>,
     /// Uniforms of each chosen column's local variate (per draw; empty for the
-    /// kinds whose local variate is not one uniform's transform).
+    /// kinds whose local variate is not one uniform's transform). For R2D2 with
+    /// concentration ½, the uniform of the column's Dirichlet gamma Z²/2.
     pub u: Vec<Vec<f64>>,
 }
 
@@ -342,7 +343,7 @@ impl SobolCols {
         let z = (0..cols.len())
             .map(|k| plan.normals(COEF_SOBOL_STREAM + k as u64, n))
             .collect();
-        let u = if prior.local_from_uniform(0.5).is_some() {
+        let u = if prior.local_from_uniform(0.5).is_some() || prior.r2d2_half() {
             (0..cols.len())
                 .map(|k| plan.uniforms(COEF_SOBOL_STREAM + (SOBOL_COLUMNS + k) as u64, n))
                 .collect()
@@ -417,8 +418,30 @@ impl CoefPrior {
                 // own columns ([`super::groups`]); without, one sum.
                 let of = self.groups.as_ref().map(|g| g.of.as_slice());
                 let mut s = vec![0.0; self.groups.as_ref().map_or(1, |g| g.count())];
-                for (j, x) in loc.iter_mut().enumerate() {
-                    *x = gamma_variate(self.shape, &mut r);
+                // Concentration ½ (the common choice): Gamma(½, 1) = Z²/2 exactly
+                // (χ²₁/2; Johnson, Kotz & Balakrishnan 1994, Continuous Univariate
+                // Distributions 1, ch. 17–18): one normal per column instead of the
+                // boosted Marsaglia–Tsang step (two normals' worth of uniforms and
+                // a power), about a third of the cost of drawing a wide design.
+                let half = self.r2d2_half();
+                for x in loc.iter_mut() {
+                    *x = if half {
+                        let z = crate::numerics::norm_quantile(rng::open01(&mut r));
+                        0.5 * z * z
+                    } else {
+                        gamma_variate(self.shape, &mut r)
+                    };
+                }
+                // Then Z²/2 is one uniform's transform: the Sobol columns take
+                // theirs from their scrambled-Sobol uniforms (below for the
+                // other kinds), before the group sums.
+                for (k, j) in sob.cols.iter().enumerate() {
+                    if let Some(u) = sob.u.get(k) {
+                        let z = crate::numerics::norm_quantile(u[i]);
+                        loc[*j] = 0.5 * z * z;
+                    }
+                }
+                for (j, x) in loc.iter().enumerate() {
                     if !self.skip.get(j).copied().unwrap_or(false) {
                         s[of.map_or(0, |o| o[j])] += *x;
                     }
@@ -448,6 +471,12 @@ impl CoefPrior {
                 };
             }
         }
+    }
+
+    /// R2D2 with concentration ½: its Dirichlet's gamma variates are Z²/2, one
+    /// uniform's transform each (Sobol columns take theirs from [`SobolCols`]).
+    pub fn r2d2_half(&self) -> bool {
+        self.kind == Kind::R2d2 && self.shape == 0.5
     }
 
     /// The local variate from one uniform, for the kinds that draw it so:

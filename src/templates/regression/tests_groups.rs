@@ -211,3 +211,122 @@ fn bad_groups_are_named() {
         assert!(msg.contains(want), "{want}: {msg}");
     }
 }
+
+#[test]
+fn half_concentration_route_keeps_the_dirichlet_law() {
+    // With concentration ½ the base draws take Gamma(½, 1) as Z²/2 (χ²₁/2)
+    // instead of the boosted Marsaglia–Tsang sampler, Z from a scrambled-Sobol
+    // uniform on the Sobol columns (every column of a 30-column design; the
+    // first 64 of a 100-column one) and from the per-draw stream on the others.
+    // A column's weight within its group, γ_j/S_g = w_j² s_j², is
+    // Beta(½, ½(n_g − 1)) by the aggregation property (references above).
+    // One-sample CvM against that law, with a neighbouring law rejected, and a
+    // two-sample Kolmogorov–Smirnov test against the old route (our own
+    // gamma_variate on a separate stream) at the 0.1 % critical value
+    // 1.949·√(2/n) (Smirnov's asymptotic law; common practice).
+    let ks = |mut a: Vec<f64>, mut b: Vec<f64>| -> f64 {
+        a.sort_by(f64::total_cmp);
+        b.sort_by(f64::total_cmp);
+        let (mut i, mut j, mut dmax) = (0, 0, 0.0f64);
+        while i < a.len() && j < b.len() {
+            if a[i] <= b[j] {
+                i += 1;
+            } else {
+                j += 1;
+            }
+            dmax = dmax.max((i as f64 / a.len() as f64 - j as f64 / b.len() as f64).abs());
+        }
+        dmax
+    };
+    let n = 20_000;
+    let crit = 1.949 * (2.0 / n as f64).sqrt();
+    // (columns, column checked, its group's size).
+    for (cols, checks) in [(30, [(0, 5), (9, 22)]), (100, [(0, 5), (80, 92)])] {
+        let text = GROUPED.replace("columns = 30", &format!("columns = {cols}"));
+        let raw: crate::input::raw::RawSpec = toml::from_str(&text).unwrap();
+        let map = crate::input::SourceMap::new(&text);
+        let ctx = crate::input::Ctx::new(None, &map, &raw);
+        let m = make(
+            &ctx,
+            &crate::templates::linear::INFO,
+            Link::Identity,
+            &[],
+            false,
+        )
+        .unwrap();
+        let d = &m.design;
+        let p = d.cols();
+        let plan = rng::Plan::fit(5, rng::Points::Independent);
+        let sob = super::coef::SobolCols::draw(&m.coef, p, std::iter::empty(), n, &plan);
+        assert_eq!(sob.u.len(), p.min(coef::SOBOL_COLUMNS));
+        let (mut z, mut loc) = (vec![0.0; p], vec![0.0; p]);
+        let mut new: Vec<Vec<f64>> = (0..2).map(|_| Vec::with_capacity(n)).collect();
+        for i in 0..n {
+            m.coef
+                .base_draw(d, plan.seed, plan.block, i, &mut z, &mut loc, &sob);
+            for (k, (j, _)) in checks.iter().enumerate() {
+                new[k].push(loc[*j] * loc[*j] * d.var[*j]);
+            }
+        }
+        let mut r = rng::stream(17, cols as u64);
+        for (k, (j, ng)) in checks.iter().enumerate() {
+            let old: Vec<f64> = (0..n)
+                .map(|_| {
+                    let g: Vec<f64> = (0..*ng).map(|_| coef::gamma_variate(0.5, &mut r)).collect();
+                    g[0] / g.iter().sum::<f64>()
+                })
+                .collect();
+            let what = format!("{cols} columns, column {j}");
+            let ks_d = ks(new[k].clone(), old);
+            assert!(ks_d < crit, "{what}: KS {ks_d} vs {crit}");
+            let b = 0.5 * (*ng as f64 - 1.0);
+            let law = crate::dist::beta::Beta::new(0.5, b).unwrap();
+            let (dd, floor) = cvm_vs(Arc::new(law), new[k].clone());
+            assert!(
+                dd < CVM_999_OVER_MEAN * floor,
+                "{what}: CvM {dd} vs {floor}"
+            );
+            // The check can fail: the same draws against a neighbouring law.
+            let law = crate::dist::beta::Beta::new(0.5, 0.85 * b).unwrap();
+            let (dd, floor) = cvm_vs(Arc::new(law), new[k].clone());
+            assert!(
+                dd > CVM_999_OVER_MEAN * floor,
+                "{what}: wrong law accepted, CvM {dd}"
+            );
+        }
+    }
+}
+
+#[test]
+fn marginal_beliefs_skip_the_coefficient_draws_exactly() {
+    // With only r2_marginal and r2_share beliefs the base draws hold no
+    // coefficient variates (Σ_{j∈g} s_j²w_j² = 1 per group and draw); the draws
+    // of r2_marginal and of the shares equal, draw by draw, those of the full
+    // route, forced here by the extra belief on r2 (design quadratic form).
+    let short_text = GROUPED.replace(
+        "[[belief]]\nquantity = \"r2\"\ndistribution = { family = \"beta\", alpha = 2, beta = 5 }\n",
+        "",
+    );
+    assert_ne!(short_text, GROUPED);
+    let (full, short) = (spec(GROUPED), spec(&short_text));
+    let n = 5_000;
+    let a = draws(&full, &h0(&full), n);
+    let b = draws(&short, &h0(&short), n);
+    // Full: share a, share c, r2_marginal, r2, share b; short: without r2.
+    for (k, l) in [(0, 0), (1, 1), (2, 2), (4, 3)] {
+        for i in 0..n {
+            let (x, y) = (a[k][i], b[l][i]);
+            assert!(
+                (x - y).abs() <= 1e-12 * x.abs().max(1e-12),
+                "belief {k}, draw {i}: {x} vs {y}"
+            );
+        }
+    }
+    // The short route holds no coefficient products beyond v.
+    let base = short
+        .model
+        .draw_base(64, &rng::Plan::fit(short.seed, rng::Points::Independent));
+    let ex = base::RegBase::of(&base).unwrap();
+    let prod = ex.cached.as_ref().unwrap();
+    assert!(prod.v.iter().all(|v| *v == 1.0) && prod.forms.is_empty());
+}
