@@ -73,7 +73,6 @@ pub struct RegressionPicture {
     pub design_rows: usize,
 }
 
-
 /// A belief's believed 10 / 50 / 90 % quantiles from the record (NaN where the
 /// record has no such probability).
 fn believed3(r: &crate::fit::BeliefReport) -> [f64; 3] {
