@@ -25,6 +25,6 @@ model {
   sigma ~ normal(0, 0.8);
   beta_z ~ std_normal();
   beta_r2 ~ beta(2, 3);
-  beta_phi ~ dirichlet([3.04277, 1.2, 0.835693]');  // group weights A_g
+  beta_phi ~ dirichlet([3.03867, 1.2, 0.835151]');  // group weights A_g
   beta_psi_g1 ~ dirichlet(rep_vector(0.5, 2));
 }
