@@ -16,7 +16,7 @@ use clap::{Parser, Subcommand};
 use priorsmith::error::Error;
 use priorsmith::fit::verdict::fmt_num;
 use priorsmith::spec::{self, Overrides, Spec};
-use priorsmith::{demo, fit, output, simulate, templates};
+use priorsmith::{demo, fit, output, simulate};
 use std::path::{Path, PathBuf};
 
 mod batch;
@@ -25,6 +25,7 @@ mod export;
 mod history;
 mod progress;
 mod report;
+mod starters;
 mod sweep;
 
 /// A command-line argument or value the command cannot use (exit 2).
@@ -361,12 +362,12 @@ pub fn run(cli: Cli) -> Result<()> {
         } => cmd_fit(&spec, &out, replicates, quiet, require_met),
         Command::Simulate { spec, set, json } => cmd_simulate(&spec, &set, json),
         Command::Check { spec } => cmd_check(&spec, quiet, &mem_only),
-        Command::Templates { name } => cmd_templates(name.as_deref()),
+        Command::Templates { name } => starters::cmd_templates(name.as_deref()),
         Command::New {
             template,
             out,
             force,
-        } => cmd_new(&template, out.as_deref(), force, quiet),
+        } => starters::cmd_new(&template, out.as_deref(), force, quiet),
         Command::Demo { out } => cmd_demo(&out, quiet, require_met, &mem_only),
         Command::Export {
             dir,
@@ -650,71 +651,6 @@ fn cmd_simulate(a: &SpecArgs, set: &[String], json: bool) -> Result<()> {
         for (at, m) in q.atom_masses {
             println!("    atom at {}: implied {:.2} %", fmt_num(at), 100.0 * m);
         }
-    }
-    Ok(())
-}
-
-fn cmd_templates(name: Option<&str>) -> Result<()> {
-    match name {
-        None => {
-            for t in templates::TEMPLATES {
-                println!("{:<16} {}", t.name, t.about);
-            }
-            println!("\n`priorsmith templates NAME` for parameters and quantities; `priorsmith new NAME` for a starter file.");
-            println!("Families: {}", priorsmith::dist::family_names().join(", "));
-        }
-        Some(n) => {
-            let t = templates::find(n).ok_or_else(|| unknown_template(n))?;
-            println!("{} — {}\n\n[model] keys:", t.name, t.about);
-            for (k, v) in t.options {
-                println!("  {k:<12} {v}");
-            }
-            println!("\nparameters ([prior.<name>] tables):");
-            for (k, v) in t.parameters {
-                println!("  {k:<20} {v}");
-            }
-            println!("\nquantities ([[belief]] quantity = …):");
-            for q in t.quantities {
-                println!("  {:<16} {} [{}]", q.name, q.about, q.needs);
-            }
-        }
-    }
-    Ok(())
-}
-
-/// A template name given on the command line that no template has (exit 2).
-fn unknown_template(name: &str) -> anyhow::Error {
-    usage(format!(
-        "unknown template \"{name}\"\n  hint: {}",
-        priorsmith::error::choice_hint(name, &templates::names())
-    ))
-}
-
-fn cmd_new(template: &str, out: Option<&Path>, force: bool, quiet: bool) -> Result<()> {
-    let t = templates::find(template).ok_or_else(|| unknown_template(template))?;
-    let default = PathBuf::from(format!("{}.toml", t.name));
-    let path = out.unwrap_or(&default);
-    if path == Path::new("-") {
-        print!("{}", t.starter);
-        return Ok(());
-    }
-    if path.exists() && !force {
-        return Err(Error::io(
-            path,
-            std::io::Error::new(
-                std::io::ErrorKind::AlreadyExists,
-                "file exists (use --force to overwrite)",
-            ),
-        )
-        .into());
-    }
-    output::write_atomic(path, t.starter.as_bytes())?;
-    if !quiet {
-        println!(
-            "wrote {} — edit the beliefs, then `priorsmith fit {}`",
-            path.display(),
-            path.display()
-        );
     }
     Ok(())
 }

@@ -2,6 +2,7 @@
 
 use super::assets::{CSS, JS};
 use super::plots::*;
+use super::plots_regression::{interval_plot, rows_plot};
 use super::svg::{self, esc};
 use super::view::*;
 use crate::error::Result;

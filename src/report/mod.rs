@@ -24,6 +24,7 @@ mod assets;
 pub mod experts;
 mod html;
 mod plots;
+mod plots_regression;
 pub mod predictive;
 pub mod regression;
 mod view;

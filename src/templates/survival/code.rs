@@ -1,5 +1,6 @@
 //! The likelihood of a survival template as export code, in our exact
-//! parameterisation, for `export --with-likelihood` (Stan and PyMC).
+//! parameterisation, for `export --with-likelihood` (Stan and PyMC), and how
+//! brms states the survival templates' priors ([`BRMS`], [`BRMS_CURE`]).
 //!
 //! Data (documented names): `N` patients, `time` (follow-up, > 0, in the
 //! template's time unit), `event` (1 = event, 0 = right-censored), and one
@@ -342,3 +343,37 @@ impl Survival {
         code
     }
 }
+
+/// How brms states the survival templates' priors: every parameter a
+/// non-linear parameter, `shape` written `nlShape` (brms keeps `shape` for its
+/// own families; `export::brms`).
+pub static BRMS: crate::templates::BrmsLayout = crate::templates::BrmsLayout {
+    usage: &[
+        "Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula, e.g.",
+        "bf(time | cens(1 - event) ~ <the likelihood in these parameters>, logScale ~ 1,",
+        "   nlShape ~ 1, nl = TRUE) with your own custom_family, since brms parameterises its",
+        "families otherwise (`export --to stan --with-likelihood` writes the complete model).",
+        "Parameters named like a brms distributional parameter get the prefix nl (shape → nlShape).",
+        "Pass `prior = priors` to brm().",
+    ],
+    classes: &[],
+    coef_prefix: None,
+};
+
+/// [`BRMS`] for the two cure templates, pointing to the custom families that
+/// state their likelihood with a Weibull latency (`docs/brms/cure-families.R`,
+/// checked by `scripts/check-survival-exports.sh`).
+pub static BRMS_CURE: crate::templates::BrmsLayout = crate::templates::BrmsLayout {
+    usage: &[
+        "Each parameter is a non-linear parameter (class \"b\") of an intercept-only formula.",
+        "brms has no cure family: docs/brms/cure-families.R in priorsmith's repository gives",
+        "custom families for a Weibull latency, used as bf(time | vint(event) ~ cureLogit,",
+        "   nlf(lscale ~ logScale), nlf(kshape ~ nlShape), cureLogit ~ 1, logScale ~ 1,",
+        "   nlShape ~ 1, nl = TRUE) (logTheta for the promotion-time cure). For other latencies",
+        "write your own, or use `export --to stan --with-likelihood` for the complete model.",
+        "Parameters named like a brms distributional parameter get the prefix nl (shape → nlShape).",
+        "Pass `prior = priors` to brm().",
+    ],
+    classes: &[],
+    coef_prefix: None,
+};
