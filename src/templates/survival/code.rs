@@ -116,17 +116,7 @@ impl Survival {
                 if self.shape.is_some() { " / shape" } else { "" }
             ),
             "Stan's and brms's built-in survival families are parameterised otherwise: keep these expressions.".into(),
-            format!(
-                "Data: N patients, time = follow-up in {unit} (> 0), event = 1 (event) or 0 (right-censored){}.",
-                if self.covariates.is_empty() {
-                    String::new()
-                } else {
-                    format!(
-                        ", {} coded as in the belief file's profiles (reference profile = 0)",
-                        self.covariates.join(", ")
-                    )
-                }
-            ),
+            data_about(unit, &self.covariates),
         ];
         let name = |i: usize| self.priors.priors[i].param.clone();
         if let Some(eta) = self.cure_expr(|c| c.to_string(), &name) {
@@ -185,20 +175,7 @@ impl Survival {
         funcs.extend(dens.lines().map(|l| format!("  {}", l.trim_start())));
         funcs.push("}".into());
         stan.insert("functions".into(), funcs);
-        let mut data = vec![
-            "int<lower=0> N;  // patients".to_string(),
-            format!(
-                "vector<lower=0>[N] time;  // follow-up, in {}",
-                self.time_unit
-            ),
-            "array[N] int<lower=0, upper=1> event;  // 1 = event, 0 = right-censored".into(),
-        ];
-        for c in &self.covariates {
-            data.push(format!(
-                "vector[N] {c};  // covariate {c}, coded as in the profiles"
-            ));
-        }
-        stan.insert("data".into(), data);
+        stan.insert("data".into(), stan_data(&self.time_unit, &self.covariates));
         let x = |c: &str| format!("{c}[n]");
         let mut model = vec![
             "// likelihood: right-censored survival".to_string(),
@@ -255,9 +232,7 @@ impl Survival {
         // PyMC.
         let mut py: BTreeMap<String, Vec<String>> = BTreeMap::new();
         py.insert("about".into(), self.about_lines());
-        let mut args = vec!["time".to_string(), "event".into()];
-        args.extend(self.covariates.iter().cloned());
-        py.insert("args".into(), args);
+        py.insert("args".into(), pymc_args(&self.covariates));
         let x = |c: &str| c.to_string();
         let mut m = vec![
             "# likelihood: right-censored survival".to_string(),
@@ -377,3 +352,41 @@ pub static BRMS_CURE: crate::templates::BrmsLayout = crate::templates::BrmsLayou
     classes: &[],
     coef_prefix: None,
 };
+
+/// The data line of a survival likelihood's description: the documented data
+/// names, shared by every survival template's export.
+pub(super) fn data_about(unit: &str, covariates: &[String]) -> String {
+    format!(
+        "Data: N patients, time = follow-up in {unit} (> 0), event = 1 (event) or 0 (right-censored){}.",
+        if covariates.is_empty() {
+            String::new()
+        } else {
+            format!(
+                ", {} coded as in the belief file's profiles (reference profile = 0)",
+                covariates.join(", ")
+            )
+        }
+    )
+}
+
+/// The Stan `data` block of a survival likelihood (the documented names).
+pub(super) fn stan_data(time_unit: &str, covariates: &[String]) -> Vec<String> {
+    let mut data = vec![
+        "int<lower=0> N;  // patients".to_string(),
+        format!("vector<lower=0>[N] time;  // follow-up, in {time_unit}"),
+        "array[N] int<lower=0, upper=1> event;  // 1 = event, 0 = right-censored".into(),
+    ];
+    for c in covariates {
+        data.push(format!(
+            "vector[N] {c};  // covariate {c}, coded as in the profiles"
+        ));
+    }
+    data
+}
+
+/// The PyMC likelihood function's arguments: time, event, then the covariates.
+pub(super) fn pymc_args(covariates: &[String]) -> Vec<String> {
+    let mut args = vec!["time".to_string(), "event".into()];
+    args.extend(covariates.iter().cloned());
+    args
+}

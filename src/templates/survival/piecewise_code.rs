@@ -126,17 +126,7 @@ impl Piecewise {
             ),
             "log_hazard[1] = log_hazard_1, log_hazard[j+1] = log_hazard[j] + hazard_walk_sd * log_hazard_z[j] (random walk).".into(),
             format!("S(t) = exp(-exp(lp) * sum_j h_j * (time spent in interval j before t)), lp = {lp}."),
-            format!(
-                "Data: N patients, time = follow-up in {unit} (> 0), event = 1 (event) or 0 (right-censored){}.",
-                if self.covariates.is_empty() {
-                    String::new()
-                } else {
-                    format!(
-                        ", {} coded as in the belief file's profiles (reference profile = 0)",
-                        self.covariates.join(", ")
-                    )
-                }
-            ),
+            crate::templates::survival::code::data_about(unit, &self.covariates),
         ]
     }
 
@@ -184,20 +174,10 @@ impl Piecewise {
             .map(String::from)
             .to_vec(),
         );
-        let mut data = vec![
-            "int<lower=0> N;  // patients".to_string(),
-            format!(
-                "vector<lower=0>[N] time;  // follow-up, in {}",
-                self.time_unit
-            ),
-            "array[N] int<lower=0, upper=1> event;  // 1 = event, 0 = right-censored".into(),
-        ];
-        for c in &self.covariates {
-            data.push(format!(
-                "vector[N] {c};  // covariate {c}, coded as in the profiles"
-            ));
-        }
-        stan.insert("data".into(), data);
+        stan.insert(
+            "data".into(),
+            crate::templates::survival::code::stan_data(&self.time_unit, &self.covariates),
+        );
         let model = vec![
             "// likelihood: right-censored piecewise exponential".to_string(),
             "{".into(),
@@ -236,9 +216,10 @@ impl Piecewise {
         // PyMC.
         let mut py: BTreeMap<String, Vec<String>> = BTreeMap::new();
         py.insert("about".into(), self.about_lines());
-        let mut args = vec!["time".to_string(), "event".into()];
-        args.extend(self.covariates.iter().cloned());
-        py.insert("args".into(), args);
+        py.insert(
+            "args".into(),
+            crate::templates::survival::code::pymc_args(&self.covariates),
+        );
         let m = vec![
             "# likelihood: right-censored piecewise exponential".to_string(),
             format!(
