@@ -118,17 +118,9 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 13] =
             "hazard ratio among the uncured, H_u,a(h)/H_u,b(h); constant for weibull/exponential",
             "profiles = [a, b], horizon (optional for weibull/exponential)",
         ),
-        SurvivalDifference.def(
-            "survival_difference",
-            "survival_prob at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstDifference.def(
-            "rmst_difference",
-            "rmst at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstRatio.def("rmst_ratio", "rmst at a / at b", "profiles = [a, b], horizon"),
+        super::SURVIVAL_DIFFERENCE,
+        super::RMST_DIFFERENCE,
+        super::RMST_RATIO,
         MedianRatio.def(
             "median_ratio",
             "median_uncured at a / at b (time ratio among the uncured)",

@@ -127,6 +127,24 @@ impl SurvQuantity {
     }
 }
 
+/// The two-arm table entries every survival template states alike.
+pub(crate) const SURVIVAL_DIFFERENCE: QuantityDef<SurvQuantity> = SurvQuantity::SurvivalDifference
+    .def(
+        "survival_difference",
+        "survival_prob at a minus at b",
+        "profiles = [a, b], horizon",
+    );
+pub(crate) const RMST_DIFFERENCE: QuantityDef<SurvQuantity> = SurvQuantity::RmstDifference.def(
+    "rmst_difference",
+    "rmst at a minus at b",
+    "profiles = [a, b], horizon",
+);
+pub(crate) const RMST_RATIO: QuantityDef<SurvQuantity> = SurvQuantity::RmstRatio.def(
+    "rmst_ratio",
+    "rmst at a / at b",
+    "profiles = [a, b], horizon",
+);
+
 impl SurvQuantity {
     /// The table entry of quantity `self`: where it is evaluated, whether it
     /// takes a horizon, its support (shared by the three templates' tables).

@@ -78,21 +78,9 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 9] = {
             "hazard ratio a vs b; for lognormal/loglogistic H_a(h)/H_b(h), H = −ln S",
             "profiles = [a, b], horizon (optional for weibull/exponential)",
         ),
-        SurvivalDifference.def(
-            "survival_difference",
-            "survival_prob at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstDifference.def(
-            "rmst_difference",
-            "rmst at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstRatio.def(
-            "rmst_ratio",
-            "rmst at a / at b",
-            "profiles = [a, b], horizon",
-        ),
+        super::SURVIVAL_DIFFERENCE,
+        super::RMST_DIFFERENCE,
+        super::RMST_RATIO,
         MedianRatio.def("median_ratio", "median at a / at b", "profiles = [a, b]"),
     ]
 };

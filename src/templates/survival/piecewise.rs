@@ -107,21 +107,9 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 9] = {
             "hazard ratio a vs b, exp((x_a − x_b)'β), the same in every interval",
             "profiles = [a, b], horizon (optional)",
         ),
-        SurvivalDifference.def(
-            "survival_difference",
-            "survival_prob at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstDifference.def(
-            "rmst_difference",
-            "rmst at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstRatio.def(
-            "rmst_ratio",
-            "rmst at a / at b",
-            "profiles = [a, b], horizon",
-        ),
+        super::SURVIVAL_DIFFERENCE,
+        super::RMST_DIFFERENCE,
+        super::RMST_RATIO,
         MedianRatio.def("median_ratio", "median at a / at b", "profiles = [a, b]"),
     ]
 };

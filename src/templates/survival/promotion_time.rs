@@ -106,17 +106,9 @@ static QUANTITIES: [QuantityDef<SurvQuantity>; 12] = {
             "population hazard ratio a vs b, H_a(h)/H_b(h) = θ_a F_a(h)/(θ_b F_b(h)); θ_a/θ_b when F is shared",
             "profiles = [a, b], horizon (optional when only θ differs)",
         ),
-        SurvivalDifference.def(
-            "survival_difference",
-            "survival_prob at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstDifference.def(
-            "rmst_difference",
-            "rmst at a minus at b",
-            "profiles = [a, b], horizon",
-        ),
-        RmstRatio.def("rmst_ratio", "rmst at a / at b", "profiles = [a, b], horizon"),
+        super::SURVIVAL_DIFFERENCE,
+        super::RMST_DIFFERENCE,
+        super::RMST_RATIO,
         MedianRatio.def(
             "median_ratio",
             "median_uncured at a / at b",
