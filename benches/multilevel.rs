@@ -17,51 +17,14 @@ use priorsmith::spec::{parse, Overrides, Spec};
 use std::time::Duration;
 
 fn spec() -> Spec {
-    let text = r#"
-title = "bench: 50 centres, 20 covariates (invented)"
-[model]
-template = "logistic-multilevel"
-[design]
-columns = 20
-rows = 1000
-clusters = 50
-correlation = "exchangeable"
-rho = 0.2
-seed = 3
-standardise = true
-[simulation]
-draws = 8192
-seed = 1
-[prior.intercept]
-family = "normal"
-mean = { fit = [-4.0, 1.0] }
-sd = { fit = [0.1, 2.0] }
-[prior.cluster_sd]
-family = "half-normal"
-scale = { fit = [0.05, 3.0] }
-[prior.x1]
-family = "normal"
-mean = { fit = [-1.0, 1.0] }
-sd = { fit = [0.01, 1.0] }
-[prior.coefficients]
-family = "normal"
-scale = { fit = [0.001, 1.0] }
-[[belief]]
-quantity = "event_prob"
-quantiles = { "0.1" = 0.052, "0.5" = 0.1, "0.9" = 0.183 }
-[[belief]]
-quantity = "median_odds_ratio"
-quantiles = { "0.05" = 1.04, "0.25" = 1.2, "0.5" = 1.47, "0.75" = 1.93, "0.95" = 3.07 }
-[[belief]]
-quantity = "odds_ratio"
-contrast = "x1"
-distribution = { family = "lognormal", meanlog = 0.2231, sdlog = 0.15 }
-[[belief]]
-quantity = "odds_ratio"
-contrast = "x2"
-quantiles = { "0.1" = 0.84, "0.5" = 1.0, "0.9" = 1.19 }
-"#;
-    parse(text, None, &Overrides::default()).expect("bench spec")
+    // The scenario `tests/regression_priors.rs` fits in precision mode, here at
+    // the 8,192 draws where precision mode stops.
+    let text = include_str!("../tests/fixtures/multilevel-50x20.toml");
+    let ov = Overrides {
+        draws: Some(8192),
+        ..Overrides::default()
+    };
+    parse(text, None, &ov).expect("bench spec")
 }
 
 fn bench(c: &mut Criterion) {
