@@ -13,7 +13,10 @@
 //!   two Beta quantiles per draw (R² and the group share) come from a checked
 //!   table per evaluation (`dist::beta::QuantileTable`): 5.61 ms before it.
 //! * `fit/...`: a whole fit (set-up, global stage, local searches, fresh judgement);
-//!   `fit/r2d2-groups/5000` the grouped R2D2 fit at 4,000 draws (slow: run alone).
+//!   `fit/r2d2-groups/5000` the grouped R2D2 fit at 4,000 draws (slow: run alone);
+//!   `fit/r2d2-groups-precision/5000` the same prior in the default draws mode
+//!   (precision mode, no `draws` given), with beliefs on R2D2's own total R²
+//!   (`r2_marginal`, exactly Beta(a, b)) and on one group's share.
 //!
 //! Run a subset: `cargo bench --bench regression -- eval` (keep runs under a minute).
 
@@ -32,8 +35,15 @@ fn spec(p: usize, coef: &str) -> Spec {
     )
 }
 
-/// The bench design's linear template with `coef` and the given beliefs.
+/// The bench design's linear template with `coef` and the given beliefs, at
+/// 4,000 draws.
 fn spec_beliefs(p: usize, coef: &str, beliefs: &str) -> Spec {
+    spec_text(p, coef, beliefs, "draws = 4000")
+}
+
+/// The same with `draws` the `[simulation]` line setting the draws (empty: the
+/// default draws mode).
+fn spec_text(p: usize, coef: &str, beliefs: &str, draws: &str) -> Spec {
     let text = format!(
         r#"
 title = "bench"
@@ -46,7 +56,7 @@ correlation = "ar1"
 rho = 0.3
 standardise = true
 [simulation]
-draws = 4000
+{draws}
 seed = 1
 [prior.intercept]
 family = "normal"
@@ -77,6 +87,18 @@ fn grouped(_p: usize) -> String {
 const GROUPED_BELIEFS: &str = r#"
 [[belief]]
 quantity = "r2"
+distribution = { family = "beta", alpha = 3, beta = 9 }
+[[belief]]
+quantity = "r2_share"
+group = "clinical"
+distribution = { family = "beta", alpha = 6, beta = 4 }
+"#;
+
+/// Beliefs on the R2D2 prior's own R² (total `r2_marginal`, W/(1 + W)) and on
+/// the clinical group's share: what the default draws mode fits quickly.
+const GROUPED_MARGINAL_BELIEFS: &str = r#"
+[[belief]]
+quantity = "r2_marginal"
 distribution = { family = "beta", alpha = 3, beta = 9 }
 [[belief]]
 quantity = "r2_share"
@@ -157,6 +179,12 @@ fn bench(c: &mut Criterion) {
     // iteration: run it alone, `cargo bench --bench regression -- fit/r2d2`).
     let s = spec_beliefs(5000, &grouped(5000), GROUPED_BELIEFS);
     g.bench_function("r2d2-groups/5000", |b| {
+        b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
+    });
+    // The default draws mode: precision mode raises the draws until every
+    // determined hyperparameter's Monte Carlo error is within its target.
+    let s = spec_text(5000, &grouped(5000), GROUPED_MARGINAL_BELIEFS, "");
+    g.bench_function("r2d2-groups-precision/5000", |b| {
         b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
     });
     g.finish();
