@@ -6,7 +6,7 @@
 //! [`super::regression::multilevel`].
 
 use super::quantity::catalogue;
-use super::regression::multilevel::{q_spread, Q_ICC, Q_R2_COND, Q_R2_FIXED};
+use super::regression::multilevel::{q_slope_spread, q_spread, Q_ICC, Q_R2_COND, Q_R2_FIXED};
 use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
@@ -14,7 +14,7 @@ use crate::error::Result;
 use crate::input::Ctx;
 
 /// The quantity table (the catalogue lists it in this order).
-static QUANTITIES: [RegDef; 7] = [
+static QUANTITIES: [RegDef; 8] = [
     Q_ICC,
     q_spread(
         "5–95 % range of cluster means at a profile, 2·1.645·σ_u",
@@ -22,6 +22,7 @@ static QUANTITIES: [RegDef; 7] = [
     ),
     Q_R2_FIXED,
     Q_R2_COND,
+    q_slope_spread("5–95 % range over clusters of the mean difference for a contrast with a random slope, 2·1.645·|δ|σ_v"),
     q_mean(Support::Real),
     Q_SIGNAL,
     Q_EFF,
@@ -34,6 +35,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
         ("intercept", "mean response at the design mean in a typical cluster (u = 0)"),
         ("sigma", "residual sd within clusters (inverse-gamma: a prior on the variance σ²)"),
         ("cluster_sd", "sd σ_u of the random intercepts (any family on (0, ∞): half-normal, half-student-t, half-cauchy, exponential, …)"),
+        ("cluster_slope_sd.NAME", "sd σ_v of a random slope of design column NAME, one table per slope (optional; any family on (0, ∞))"),
         ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
         ("NAME", "a design column: a prior of its own for its coefficient, per unit as given (or [prior.LABEL] with covariates = [...])"),
     ],

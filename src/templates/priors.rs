@@ -58,6 +58,25 @@ impl PriorSet {
     ) -> Result<usize> {
         let t = ctx.prior_table(table, example)?;
         let path = [key("prior"), key(table)];
+        self.add_from(ctx, &path, table, t, param, allowed, example, extra)
+    }
+
+    /// Read the table `t` at `path` (named `[prior.<label>]` in messages) as the
+    /// prior of parameter `param` (hyperparameters `<label>.<name>` when `label`
+    /// differs from the table name of [`PriorSet::add_keyed`], e.g. a nested
+    /// `[prior.cluster_slope_sd.age]`).
+    #[allow(clippy::too_many_arguments)]
+    pub fn add_from(
+        &mut self,
+        ctx: &Ctx,
+        path: &[Seg],
+        table: &str,
+        t: &toml::Table,
+        param: &str,
+        allowed: &[&str],
+        example: &str,
+        extra: &[&str],
+    ) -> Result<usize> {
         let fam_v = t.get("family").ok_or_else(|| {
             ctx.err(&path, format!("[prior.{table}] needs `family`"))
                 .with_hint(format!("e.g. {example}"))
@@ -104,7 +123,7 @@ impl PriorSet {
                         family.params.join(", ")
                     ))
             })?;
-            values.push((pp, ctx.hyper_value(&path_with(&path, p), v)?));
+            values.push((pp, ctx.hyper_value(&path_with(path, p), v)?));
         }
         // Check that every free hyperparameter's bounds stay inside the family's domain.
         let rep: Vec<f64> = values
