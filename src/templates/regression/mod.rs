@@ -58,6 +58,8 @@ mod tests;
 mod tests_groups;
 #[cfg(test)]
 mod tests_multilevel;
+#[cfg(test)]
+mod tests_slopes;
 
 use super::{
     BaseDraws, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request, TemplateInfo,
