@@ -256,7 +256,7 @@ pub fn cluster_slopes(
     let (mut par, mut tr, mut model, mut py) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
     let names: Vec<&str> = slopes.iter().map(|s| s.name.as_str()).collect();
     let mut brms = vec![format!(
-        "# random slopes: write the group term as (1 + {} || {g}) (uncorrelated intercept and slopes) in place of (1 | {g})",
+        "# random slopes: write the group term as (1 + {} || {g}) (uncorrelated intercept and slopes) in place of (1 | {g}); each slope sd is per unit of its covariate as given in the design file",
         names.join(" + ")
     )];
     let mut brms_ok = true;
