@@ -27,6 +27,29 @@
 //!
 //! The quantities at a profile (`mean_response`, `event_prob`, `rate`) are those
 //! of a typical cluster (u = 0).
+//!
+//! Random slopes (optional, [`parse_slopes`]): `[prior.cluster_slope_sd.NAME]`
+//! gives design column NAME the coefficient β_k + v_kj in cluster j, v_kj ~
+//! N(0, σ_{v,k}²) independent of u_j and of the other slopes (uncorrelated, as
+//! brms's `(1 + x || g)`), σ_{v,k} per unit of the covariate as given in the
+//! design file. With covariates centred at the design mean the random part at a
+//! row x has variance σ_r²(x) = σ_u² + Σ_k σ_{v,k}²(x_k − x̄_k)², and over the
+//! design rows its mean is σ_r² = σ_u² + Σ_k σ_{v,k}² var(x_k) (1/n variance;
+//! Johnson 2014, Methods Ecol. Evol. 5, 944–946, "Extension of Nakagawa &
+//! Schielzeth's R²GLMM to random slopes models"). Then:
+//! * `r2_fixed` = σ_f²/(σ_f² + σ_r² + σ_d²) and `r2_conditional` =
+//!   (σ_f² + σ_r²)/(σ_f² + σ_r² + σ_d²) (σ_u² replaced by the mean σ_r²);
+//! * `icc`, the median ratio and σ_d² (Poisson λ) are those of the reference
+//!   profile x = x̄, where the slope part vanishes (σ_u alone);
+//! * `cluster_spread` at a profile x uses the sd σ_r(x) there;
+//! * `slope_spread` for `contrast = "NAME:δ"`: the 5–95 % range over clusters of
+//!   the contrast's effect, whose log (or, linear, itself) is δβ_k + δv_kj with sd
+//!   |δ|σ_{v,k}: exp(δβ + z|δ|σ_v) − exp(δβ − z|δ|σ_v) (odds or rate ratio) or
+//!   2z|δ|σ_v (mean difference), z = Φ⁻¹(0.95).
+//!
+//! The slopes need no draws of their own beyond σ_{v,k} (every quantity above
+//! reads only the variances): σ_{v,k} takes base stream [`SLOPE_STREAM`] + k, so
+//! a model without slopes draws exactly as before.
 
 use super::quantity::{RegDef, RegQuantity, AT_PROFILE, FOR_CONTRAST};
 use super::Link;
