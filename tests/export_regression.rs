@@ -848,14 +848,21 @@ fn random_part(prog: &Program, env: &BTreeMap<String, Vec<f64>>) -> f64 {
         r += sv[0] * sv[0] * var;
         if let Some(v) = env.get(&format!("v_{name}")) {
             let z = &env[&format!("v_z_{name}")];
-            let zd = prog.vars.iter().find(|x| x.name == format!("v_z_{name}")).unwrap();
+            let zd = prog
+                .vars
+                .iter()
+                .find(|x| x.name == format!("v_z_{name}"))
+                .unwrap();
             assert!(
                 zd.dist == "std_normal" || (zd.dist == "normal" && zd.args == [0.0, 1.0]),
                 "v_z_{name}: {}",
                 zd.dist
             );
             for (a, b) in v.iter().zip(z) {
-                assert!((a - sv[0] * b).abs() <= 1e-12 * a.abs().max(1e-300), "v_{name}");
+                assert!(
+                    (a - sv[0] * b).abs() <= 1e-12 * a.abs().max(1e-300),
+                    "v_{name}"
+                );
             }
         }
     }
@@ -1201,7 +1208,12 @@ fn random_slopes_round_trip_in_every_language_and_match_golden_files() {
             std::fs::write(&golden, body(&code)).unwrap();
         }
         let want = std::fs::read_to_string(&golden).unwrap_or_default();
-        assert_eq!(body(&code), want, "{lang}: differs from {}", golden.display());
+        assert_eq!(
+            body(&code),
+            want,
+            "{lang}: differs from {}",
+            golden.display()
+        );
     }
 }
 
@@ -1211,7 +1223,11 @@ fn a_slip_in_the_slope_variance_fails_the_round_trip() {
     // would): the conditional R² no longer matches priorsmith's draws.
     let (dir, ours) = fit(&slopes_spec());
     let code = export(dir.path(), "stan").unwrap();
-    let slipped = code.replacen("slope_sd_x2 ~ normal(0, 0.25);", "slope_sd_x2 ~ normal(0, 0.5);", 1);
+    let slipped = code.replacen(
+        "slope_sd_x2 ~ normal(0, 0.25);",
+        "slope_sd_x2 ~ normal(0, 0.5);",
+        1,
+    );
     assert_ne!(code, slipped, "the slip must change the code");
     let sims = simulate(&parse_stan(&slipped), true, 13);
     let e = compare(&sims, &ours, "slipped slope").unwrap_err();

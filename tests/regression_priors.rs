@@ -412,17 +412,27 @@ fn a_slope_spread_belief_recovers_the_slope_sd_scale() {
         .unwrap();
     let se = s / (2.0_f64 * 8000.0).sqrt();
     eprintln!("fitted slope sd scale {v} (target {s}, SE {se})");
-    assert!((v - s).abs() < 4.0 * se, "fitted {v} vs {s} (4 SE {})", 4.0 * se);
+    assert!(
+        (v - s).abs() < 4.0 * se,
+        "fitted {v} vs {s} (4 SE {})",
+        4.0 * se
+    );
     // The exports state the slope: Stan non-centred, brms with its group.
     let out = dir.path().join("s");
-    let st = text(&run(&["export", "--to", "stan", out.to_str().unwrap()], dir.path()));
+    let st = text(&run(
+        &["export", "--to", "stan", out.to_str().unwrap()],
+        dir.path(),
+    ));
     assert!(
         st.contains("vector[30] v_z_x1;")
             && st.contains("vector[30] v_x1 = slope_sd_x1 * v_z_x1;")
             && st.contains("slope_sd_x1 ~ normal(0, "),
         "{st}"
     );
-    let br = text(&run(&["export", "--to", "brms", out.to_str().unwrap()], dir.path()));
+    let br = text(&run(
+        &["export", "--to", "brms", out.to_str().unwrap()],
+        dir.path(),
+    ));
     assert!(
         br.contains("class = \"sd\", group = \"cluster\", coef = \"x1\")")
             && br.contains("(1 + x1 || cluster)"),

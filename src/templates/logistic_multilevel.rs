@@ -7,7 +7,9 @@
 
 use super::logistic::{Q_EVENT_PROB, Q_ODDS_RATIO};
 use super::quantity::catalogue;
-use super::regression::multilevel::{q_slope_spread, q_spread, Q_ICC, Q_MOR, Q_R2_COND, Q_R2_FIXED};
+use super::regression::multilevel::{
+    q_slope_spread, q_spread, Q_ICC, Q_MOR, Q_R2_COND, Q_R2_FIXED,
+};
 use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
@@ -24,7 +26,9 @@ static QUANTITIES: [RegDef; 11] = [
     ),
     Q_R2_FIXED,
     Q_R2_COND,
-    q_slope_spread("5–95 % range over clusters of the odds ratio for a contrast with a random slope"),
+    q_slope_spread(
+        "5–95 % range over clusters of the odds ratio for a contrast with a random slope",
+    ),
     Q_EVENT_PROB,
     Q_ODDS_RATIO,
     q_mean(Support::Unit),

@@ -7,7 +7,9 @@
 
 use super::poisson::{Q_RATE, Q_RATE_RATIO};
 use super::quantity::catalogue;
-use super::regression::multilevel::{q_slope_spread, q_spread, Q_ICC, Q_MRR, Q_R2_COND, Q_R2_FIXED};
+use super::regression::multilevel::{
+    q_slope_spread, q_spread, Q_ICC, Q_MRR, Q_R2_COND, Q_R2_FIXED,
+};
 use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
@@ -24,7 +26,9 @@ static QUANTITIES: [RegDef; 11] = [
     ),
     Q_R2_FIXED,
     Q_R2_COND,
-    q_slope_spread("5–95 % range over clusters of the rate ratio for a contrast with a random slope"),
+    q_slope_spread(
+        "5–95 % range over clusters of the rate ratio for a contrast with a random slope",
+    ),
     Q_RATE,
     Q_RATE_RATIO,
     q_mean(Support::Positive),

@@ -78,7 +78,7 @@ impl PriorSet {
         extra: &[&str],
     ) -> Result<usize> {
         let fam_v = t.get("family").ok_or_else(|| {
-            ctx.err(&path, format!("[prior.{table}] needs `family`"))
+            ctx.err(path, format!("[prior.{table}] needs `family`"))
                 .with_hint(format!("e.g. {example}"))
         })?;
         let mut fp = path.to_vec();
@@ -110,14 +110,14 @@ impl PriorSet {
         let mut keys = vec!["family"];
         keys.extend_from_slice(family.params);
         keys.extend_from_slice(extra);
-        ctx.check_keys(&path, t, &keys)?;
+        ctx.check_keys(path, t, &keys)?;
         let mut idx = Vec::new();
         let mut values = Vec::new();
         for p in family.params {
             let mut pp = path.to_vec();
             pp.push(key(p));
             let v = t.get(*p).ok_or_else(|| {
-                ctx.err(&path, format!("[prior.{table}] ({name}) needs `{p}`"))
+                ctx.err(path, format!("[prior.{table}] ({name}) needs `{p}`"))
                     .with_hint(format!(
                         "{name} takes {}; each is a number or {{ fit = [lower, upper] }}",
                         family.params.join(", ")

@@ -263,7 +263,9 @@ pub fn cluster_slopes(
     for sl in slopes {
         let n = &sl.name;
         let m = num(d.raw_means[sl.col]);
-        par.push(format!("vector[{j}] v_z_{n};  // standardised random slopes of {n}, one per {g}"));
+        par.push(format!(
+            "vector[{j}] v_z_{n};  // standardised random slopes of {n}, one per {g}"
+        ));
         tr.push(format!(
             "vector[{j}] v_{n} = slope_sd_{n} * v_z_{n};  // random slopes of {n} ~ N(0, slope_sd_{n}²) per unit as given; add v_{n}[{g}[i]] * ({n}[i] - {m}) to row i's linear predictor"
         ));

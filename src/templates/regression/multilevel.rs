@@ -151,8 +151,11 @@ pub fn parse_slopes(
             )
         })?;
         let sub = v.as_table().ok_or_else(|| {
-            ctx.err(&p, format!("`{name}` must be a table (the prior of its slope sd)"))
-                .with_hint(format!("[prior.{SLOPE_TABLE}.{name}]\n  {SLOPE_EXAMPLE}"))
+            ctx.err(
+                &p,
+                format!("`{name}` must be a table (the prior of its slope sd)"),
+            )
+            .with_hint(format!("[prior.{SLOPE_TABLE}.{name}]\n  {SLOPE_EXAMPLE}"))
         })?;
         let label = format!("{SLOPE_TABLE}.{name}");
         let k = priors.add_from(ctx, &p, &label, sub, &label, &positive, SLOPE_EXAMPLE, &[])?;

@@ -412,7 +412,11 @@ impl Eval<'_> {
                 .model
                 .slopes
                 .iter()
-                .map(|sl| form.iter().find(|(j, _)| *j == sl.col).map_or(0.0, |(_, a)| *a))
+                .map(|sl| {
+                    form.iter()
+                        .find(|(j, _)| *j == sl.col)
+                        .map_or(0.0, |(_, a)| *a)
+                })
                 .collect(),
             None => vec![0.0; self.sv2.len()],
         };

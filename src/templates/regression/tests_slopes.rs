@@ -4,6 +4,8 @@
 //! random-effect variance in r2_fixed / r2_conditional, the 5–95 % ranges over
 //! clusters per draw, and the base streams of the templates without slopes.
 
+#![allow(clippy::needless_range_loop)] // draws are compared index by index with the base columns
+
 use super::tests::{draws, h0, spec};
 use super::*;
 use crate::numerics::logistic;
@@ -101,8 +103,16 @@ fn r2_fixed_and_conditional_use_johnsons_mean_random_variance() {
     // σ_d²: σ² = 1.3² (linear), π²/3 (logistic, latent scale; Nakagawa &
     // Schielzeth 2013, Methods Ecol. Evol. 4, eq. 26–27).
     for (template, sigma, d) in [
-        ("linear-multilevel", format!("[prior.sigma]\n{}", point(1.3)), 1.69),
-        ("logistic-multilevel", String::new(), std::f64::consts::PI.powi(2) / 3.0),
+        (
+            "linear-multilevel",
+            format!("[prior.sigma]\n{}", point(1.3)),
+            1.69,
+        ),
+        (
+            "logistic-multilevel",
+            String::new(),
+            std::f64::consts::PI.powi(2) / 3.0,
+        ),
     ] {
         let s = spec(&slopes_spec(template, &f, &sigma, beliefs));
         let x = draws(&s, &h0(&s), 500);
@@ -112,13 +122,28 @@ fn r2_fixed_and_conditional_use_johnsons_mean_random_variance() {
             let f2 = x[2][i] * x[2][i];
             let fixed = f2 / (f2 + random + d);
             let cond = (f2 + random) / (f2 + random + d);
-            assert!((x[0][i] - fixed).abs() < 1e-7, "{template} draw {i}: {} vs {fixed}", x[0][i]);
-            assert!((x[1][i] - cond).abs() < 1e-7, "{template} draw {i}: {} vs {cond}", x[1][i]);
+            assert!(
+                (x[0][i] - fixed).abs() < 1e-7,
+                "{template} draw {i}: {} vs {fixed}",
+                x[0][i]
+            );
+            assert!(
+                (x[1][i] - cond).abs() < 1e-7,
+                "{template} draw {i}: {} vs {cond}",
+                x[1][i]
+            );
             // The ICC is the reference profile's: the slopes do not enter.
             let icc = su * su / (su * su + d);
-            assert!((x[3][i] - icc).abs() < 1e-7, "{template} draw {i}: icc {}", x[3][i]);
+            assert!(
+                (x[3][i] - icc).abs() < 1e-7,
+                "{template} draw {i}: icc {}",
+                x[3][i]
+            );
         }
-        assert!(s.beliefs[3].request.label.contains("at the reference profile"));
+        assert!(s.beliefs[3]
+            .request
+            .label
+            .contains("at the reference profile"));
     }
 }
 
@@ -148,12 +173,18 @@ fn cluster_spread_at_a_profile_includes_the_slope_variance_there() {
         let p = x[2][i];
         let eta = (p / (1.0 - p)).ln();
         let want = logistic(eta + Z95 * sd_old) - logistic(eta - Z95 * sd_old);
-        assert!((x[0][i] - want).abs() < 1e-7, "draw {i}: {} vs {want}", x[0][i]);
+        assert!(
+            (x[0][i] - want).abs() < 1e-7,
+            "draw {i}: {} vs {want}",
+            x[0][i]
+        );
         // At the reference profile the slope part vanishes: sd = σ_u.
         assert!(x[1][i] > 0.0);
     }
     // The reference spread with σ_u alone (η = α there).
-    let base = s.model.draw_base(400, &rng::Plan::fit(s.seed, rng::Points::Independent));
+    let base = s
+        .model
+        .draw_base(400, &rng::Plan::fit(s.seed, rng::Points::Independent));
     for i in 0..400 {
         let a = -0.8 + 0.4 * base.cols[0][i];
         let want = logistic(a + Z95 * 0.5) - logistic(a - Z95 * 0.5);
@@ -171,7 +202,11 @@ fn slope_spread_is_the_range_of_the_cluster_ratios_per_draw() {
     // range over clusters of the odds ratio for 10 years is
     // exp(10β + z·10σ_v) − exp(10β − z·10σ_v); the mean-difference version of
     // the linear template is 2·z·10σ_v.
-    for template in ["logistic-multilevel", "poisson-multilevel", "linear-multilevel"] {
+    for template in [
+        "logistic-multilevel",
+        "poisson-multilevel",
+        "linear-multilevel",
+    ] {
         let text = slopes_spec(
             template,
             &f,
@@ -190,8 +225,15 @@ fn slope_spread_is_the_range_of_the_cluster_ratios_per_draw() {
         let s = spec(&text);
         let n = 2000;
         let x = draws(&s, &h0(&s), n).remove(0);
-        let base = s.model.draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
-        let names: Vec<String> = s.model.priors(&h0(&s)).into_iter().map(|p| p.parameter).collect();
+        let base = s
+            .model
+            .draw_base(n, &rng::Plan::fit(s.seed, rng::Points::Independent));
+        let names: Vec<String> = s
+            .model
+            .priors(&h0(&s))
+            .into_iter()
+            .map(|p| p.parameter)
+            .collect();
         let bi = names.iter().position(|p| p == "b_age").unwrap();
         let vi = names.iter().position(|p| p == "slope_sd_age").unwrap();
         let hn = crate::dist::build("half-normal", &[0.02]).unwrap().unwrap();
@@ -205,7 +247,11 @@ fn slope_spread_is_the_range_of_the_cluster_ratios_per_draw() {
             } else {
                 (10.0 * b + h).exp() - (10.0 * b - h).exp()
             };
-            assert!((x[i] - want).abs() <= 1e-12 * want.max(1e-12) + 1e-15, "{template} draw {i}: {} vs {want}", x[i]);
+            assert!(
+                (x[i] - want).abs() <= 1e-12 * want.max(1e-12) + 1e-15,
+                "{template} draw {i}: {} vs {want}",
+                x[i]
+            );
         }
     }
 }
@@ -223,7 +269,10 @@ fn slopes_take_fresh_streams_and_leave_the_other_base_columns_unchanged() {
     let end = text.find("[prior.coefficients]").unwrap();
     let without = spec(&format!("{}{}", &text[..cut], &text[end..]));
     let plan = rng::Plan::fit(with.seed, rng::Points::Independent);
-    let (a, b) = (with.model.draw_base(300, &plan), without.model.draw_base(300, &plan));
+    let (a, b) = (
+        with.model.draw_base(300, &plan),
+        without.model.draw_base(300, &plan),
+    );
     // intercept, cluster_sd, b_age, then the global streams: the same columns.
     assert_eq!(a.cols[..3], b.cols[..3]);
     assert_eq!(a.cols[5..8], b.cols[3..6]);
