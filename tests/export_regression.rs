@@ -1233,3 +1233,22 @@ fn a_slip_in_the_slope_variance_fails_the_round_trip() {
     let e = compare(&sims, &ours, "slipped slope").unwrap_err();
     assert!(e.contains("r2"), "{e}");
 }
+
+#[test]
+fn a_slope_sd_brms_cannot_state_on_class_sd_is_refused_with_the_reason() {
+    // A log-logistic slope sd is written on the log scale (a helper variable):
+    // brms's class "sd" takes no such prior, so the brms export refuses it,
+    // while Stan still writes it.
+    let text = slopes_spec().replace(
+        "[prior.cluster_slope_sd.x2]\nfamily = \"half-normal\"\nscale = 0.25",
+        "[prior.cluster_slope_sd.x2]\nfamily = \"loglogistic\"\nshape = 3.0\nscale = 0.2",
+    );
+    let (dir, _) = fit(&text);
+    let e = export(dir.path(), "brms").unwrap_err();
+    assert!(
+        e.contains("cluster_slopes") && e.contains("no direct brms form on class \"sd\""),
+        "{e}"
+    );
+    let st = export(dir.path(), "stan").unwrap();
+    assert!(st.contains("v_x2 = slope_sd_x2 * v_z_x2"), "{st}");
+}

@@ -2,6 +2,8 @@
 //! (`[design]` `group` column or `clusters = J`), a prior on σ_u (`[prior.cluster_sd]`)
 //! fitted from beliefs about the intraclass correlation, the spread of
 //! cluster-level means and the marginal and conditional R², and a shrinkage prior on β.
+//! Optional random slopes, uncorrelated with the intercepts: `[prior.cluster_slope_sd.NAME]`
+//! per covariate, fitted from `slope_spread` beliefs.
 //! Machinery, formulas and references: [`super::regression`] and
 //! [`super::regression::multilevel`].
 
@@ -17,7 +19,7 @@ use crate::input::Ctx;
 static QUANTITIES: [RegDef; 8] = [
     Q_ICC,
     q_spread(
-        "5–95 % range of cluster means at a profile, 2·1.645·σ_u",
+        "5–95 % range of cluster means at a profile, 2·1.645·σ_u (with slopes: the random-part sd at the profile)",
         Support::Positive,
     ),
     Q_R2_FIXED,

@@ -2,6 +2,8 @@
 //! (`[design]` `group` column or `clusters = J`), a prior on σ_u (`[prior.cluster_sd]`)
 //! fitted from beliefs about the intraclass correlation, the median rate ratio, the spread of
 //! cluster-level rates and the marginal and conditional R², and a shrinkage prior on β.
+//! Optional random slopes, uncorrelated with the intercepts: `[prior.cluster_slope_sd.NAME]`
+//! per covariate, fitted from `slope_spread` beliefs.
 //! Machinery, formulas and references: [`super::regression`] and
 //! [`super::regression::multilevel`].
 
