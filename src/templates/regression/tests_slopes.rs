@@ -113,10 +113,22 @@ fn r2_fixed_and_conditional_use_johnsons_mean_random_variance() {
             String::new(),
             std::f64::consts::PI.powi(2) / 3.0,
         ),
+        // Poisson: ln(1 + 1/λ), λ = e^(α + σ_u²/2) at the reference profile
+        // (Nakagawa, Johnson & Schielzeth 2017, J. R. Soc. Interface 14), per draw.
+        ("poisson-multilevel", String::new(), f64::NAN),
     ] {
         let s = spec(&slopes_spec(template, &f, &sigma, beliefs));
         let x = draws(&s, &h0(&s), 500);
+        let base = s
+            .model
+            .draw_base(500, &rng::Plan::fit(s.seed, rng::Points::Independent));
         for i in 0..500 {
+            let alpha = -0.8 + 0.4 * base.cols[0][i];
+            let d = if d.is_nan() {
+                (1.0 + 1.0 / (alpha + 0.5 * su * su).exp()).ln()
+            } else {
+                d
+            };
             // σ_f²: the design variance of the fixed part (signal_sd², checked
             // against the explicit linear predictor in tests_multilevel).
             let f2 = x[2][i] * x[2][i];
