@@ -10,16 +10,21 @@
 //!   ratio, the ICC and that covariate's odds ratio (invented scenario).
 //!   Aim: ≤ 2 s.
 //!
+//! * `fit/logistic-multilevel-slope/50x20`: the same with a random slope of x1
+//!   (`[prior.cluster_slope_sd.x1]`, scale fitted) and a `slope_spread` belief
+//!   on it (invented); the slope adds O(draws) per evaluation.
+//!
 //! Run: `cargo bench --bench multilevel` (about a minute).
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use priorsmith::spec::{parse, Overrides, Spec};
 use std::time::Duration;
 
-fn spec() -> Spec {
+const FIXTURE: &str = include_str!("../tests/fixtures/multilevel-50x20.toml");
+
+fn spec(text: &str) -> Spec {
     // The scenario `tests/regression_priors.rs` fits in precision mode, here at
     // the 8,192 draws where precision mode stops.
-    let text = include_str!("../tests/fixtures/multilevel-50x20.toml");
     let ov = Overrides {
         draws: Some(8192),
         ..Overrides::default()
@@ -27,11 +32,23 @@ fn spec() -> Spec {
     parse(text, None, &ov).expect("bench spec")
 }
 
+/// The fixture with a random slope of x1 and a belief on its spread.
+fn with_slope() -> String {
+    FIXTURE.replace(
+        "[prior.coefficients]",
+        "[prior.cluster_slope_sd.x1]\nfamily = \"half-normal\"\nscale = { fit = [0.005, 2.0] }\n[prior.coefficients]",
+    ) + "[[belief]]\nquantity = \"slope_spread\"\ncontrast = \"x1\"\nquantiles = { \"0.1\" = 0.08, \"0.5\" = 0.4, \"0.9\" = 1.0 }\n"
+}
+
 fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("fit");
     g.sample_size(10).measurement_time(Duration::from_secs(15));
-    let s = spec();
+    let s = spec(FIXTURE);
     g.bench_function("logistic-multilevel/50x20", |b| {
+        b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
+    });
+    let s = spec(&with_slope());
+    g.bench_function("logistic-multilevel-slope/50x20", |b| {
         b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
     });
     g.finish();

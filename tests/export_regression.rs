@@ -687,8 +687,13 @@ fn parse_brms(code: &str) -> Program {
                 .iter()
                 .find_map(|a| a.strip_prefix("coef = "))
                 .map(|c| format!("b_{}", c.trim_matches('"')));
+            let slope = coef.as_ref().map(|c| c.replacen("b_", "slope_sd_", 1));
             let (name, size, lo) = match (class.as_str(), &coef) {
                 ("b", Some(c)) => (c.as_str(), 1, None),
+                // Random-effect sds: the class-level one is the intercept's (the
+                // coef-level one overrides it for a slope).
+                ("sd", Some(_)) => (slope.as_deref().unwrap(), 1, Some(0.0)),
+                ("sd", None) => ("cluster_sd", 1, Some(0.0)),
                 ("Intercept", _) => ("intercept", 1, None),
                 ("sigma", _) => ("sigma", 1, Some(0.0)),
                 ("b", None) => ("beta", P, None),
@@ -814,9 +819,59 @@ fn simulate(prog: &Program, standardise: bool, seed: u64) -> [Vec<f64>; 3] {
             .sum::<f64>()
             / ROWS as f64;
         out[1].push(v.sqrt());
-        out[2].push(v / (v + sigma * sigma));
+        // Random intercepts and slopes (multilevel): the conditional R² of
+        // Nakagawa & Schielzeth (2013) with Johnson's (2014) mean random-effect
+        // variance σ_u² + Σ_k σ_{v,k}² var(x_k), x_k in the design's raw units.
+        let random = random_part(prog, &env);
+        out[2].push((v + random) / (v + random + sigma * sigma));
     }
     out
+}
+
+/// σ_u² + Σ_k σ_{v,k}²·var(x_k) from the code's draws (0 without clusters). Where
+/// the code states the cluster effects (Stan, PyMC), they must be the
+/// non-centred u = cluster_sd·u_z and v_k = slope_sd_k·v_z_k with standard-normal
+/// u_z, v_z_k; brms states them in its formula term.
+fn random_part(prog: &Program, env: &BTreeMap<String, Vec<f64>>) -> f64 {
+    let Some(su) = env.get("cluster_sd") else {
+        return 0.0;
+    };
+    let d = design();
+    let n = ROWS as f64;
+    let mut r = su[0] * su[0];
+    for (k, name) in ["x1", "x2", "x3", "x4"].iter().enumerate() {
+        let Some(sv) = env.get(&format!("slope_sd_{name}")) else {
+            continue;
+        };
+        let m = d.iter().map(|row| row[k]).sum::<f64>() / n;
+        let var = d.iter().map(|row| (row[k] - m).powi(2)).sum::<f64>() / n;
+        r += sv[0] * sv[0] * var;
+        if let Some(v) = env.get(&format!("v_{name}")) {
+            let z = &env[&format!("v_z_{name}")];
+            let zd = prog
+                .vars
+                .iter()
+                .find(|x| x.name == format!("v_z_{name}"))
+                .unwrap();
+            assert!(
+                zd.dist == "std_normal" || (zd.dist == "normal" && zd.args == [0.0, 1.0]),
+                "v_z_{name}: {}",
+                zd.dist
+            );
+            for (a, b) in v.iter().zip(z) {
+                assert!(
+                    (a - sv[0] * b).abs() <= 1e-12 * a.abs().max(1e-300),
+                    "v_{name}"
+                );
+            }
+        }
+    }
+    if let Some(u) = env.get("u") {
+        for (a, b) in u.iter().zip(&env["u_z"]) {
+            assert!((a - su[0] * b).abs() <= 1e-12 * a.abs().max(1e-300), "u");
+        }
+    }
+    r
 }
 
 /// The 1/n sd of design column x1.
@@ -1116,4 +1171,84 @@ fn a_slip_in_the_group_split_fails_the_round_trip() {
     let bad = code.replace(good, "beta_share[1:1] = beta_phi[3:3];");
     let sims = simulate(&parse_stan(&bad), false, 12);
     assert!(compare(&sims, &ours, "slip").is_err());
+}
+
+/// A random slope of x2 (per unit as given) beside the random intercepts of
+/// 8 clusters, on a standardised design: the conditional R² carries σ_v².
+fn slopes_spec() -> String {
+    spec(
+        HN_SIGMA,
+        "family = \"normal\"\nscale = { fit = [0.01, 3.0] }\n[prior.cluster_sd]\nfamily = \"half-normal\"\nscale = 0.5\n[prior.cluster_slope_sd.x2]\nfamily = \"half-normal\"\nscale = 0.25",
+        true,
+    )
+    .replace("template = \"linear\"", "template = \"linear-multilevel\"")
+    .replace("standardise = true", "standardise = true\nclusters = 8")
+    .replace("quantity = \"r2\"", "quantity = \"r2_conditional\"")
+}
+
+#[test]
+fn random_slopes_round_trip_in_every_language_and_match_golden_files() {
+    // The slope sd's prior and the non-centred slopes as Stan and PyMC state
+    // them, brms's class "sd" priors by group and coefficient, simulated here
+    // against priorsmith's draws of r2_conditional (and the two fixed-part
+    // quantities); the code is pinned by golden files (PRIORSMITH_BLESS=1
+    // rewrites them; reviewed by hand, and the brms one validated with R 4 /
+    // brms 2.18 validate_prior and make_stancode on y ~ x1 + x2 + x3 + x4 +
+    // (1 + x2 || cluster)).
+    let text = slopes_spec();
+    round_trip("random slopes", &text, true, &["stan", "pymc", "brms"], 12);
+    let (dir, _) = fit(&text);
+    let bless = std::env::var_os("PRIORSMITH_BLESS").is_some();
+    for (lang, ext) in [("stan", "stan"), ("pymc", "py"), ("brms", "R")] {
+        let code = export(dir.path(), lang).unwrap();
+        let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("tests/golden/regression")
+            .join(format!("multilevel-slopes.{ext}"));
+        if bless {
+            std::fs::write(&golden, body(&code)).unwrap();
+        }
+        let want = std::fs::read_to_string(&golden).unwrap_or_default();
+        assert_eq!(
+            body(&code),
+            want,
+            "{lang}: differs from {}",
+            golden.display()
+        );
+    }
+}
+
+#[test]
+fn a_slip_in_the_slope_variance_fails_the_round_trip() {
+    // The slope sd written 2× too large in the Stan code (as a variance slip
+    // would): the conditional R² no longer matches priorsmith's draws.
+    let (dir, ours) = fit(&slopes_spec());
+    let code = export(dir.path(), "stan").unwrap();
+    let slipped = code.replacen(
+        "slope_sd_x2 ~ normal(0, 0.25);",
+        "slope_sd_x2 ~ normal(0, 0.5);",
+        1,
+    );
+    assert_ne!(code, slipped, "the slip must change the code");
+    let sims = simulate(&parse_stan(&slipped), true, 13);
+    let e = compare(&sims, &ours, "slipped slope").unwrap_err();
+    assert!(e.contains("r2"), "{e}");
+}
+
+#[test]
+fn a_slope_sd_brms_cannot_state_on_class_sd_is_refused_with_the_reason() {
+    // A log-logistic slope sd is written on the log scale (a helper variable):
+    // brms's class "sd" takes no such prior, so the brms export refuses it,
+    // while Stan still writes it.
+    let text = slopes_spec().replace(
+        "[prior.cluster_slope_sd.x2]\nfamily = \"half-normal\"\nscale = 0.25",
+        "[prior.cluster_slope_sd.x2]\nfamily = \"loglogistic\"\nshape = 3.0\nscale = 0.2",
+    );
+    let (dir, _) = fit(&text);
+    let e = export(dir.path(), "brms").unwrap_err();
+    assert!(
+        e.contains("cluster_slopes") && e.contains("no direct brms form on class \"sd\""),
+        "{e}"
+    );
+    let st = export(dir.path(), "stan").unwrap();
+    assert!(st.contains("v_x2 = slope_sd_x2 * v_z_x2"), "{st}");
 }

@@ -339,3 +339,157 @@ fn precision_mode_stops_early_when_a_contrast_fixes_the_shared_scale() {
 }
 
 const ML_PRECISION: &str = include_str!("fixtures/multilevel-50x20.toml");
+
+/// A logistic random-intercept model on 6 covariates in 30 centres with a random
+/// slope of x1 (invented scenario), for the bad-input and recovery tests.
+const SLOPES: &str = r#"
+title = "random slope (test)"
+[model]
+template = "logistic-multilevel"
+[design]
+columns = 6
+rows = 600
+clusters = 30
+seed = 3
+standardise = true
+[simulation]
+draws = 8000
+seed = 5
+[prior.intercept]
+family = "normal"
+mean = -1.5
+sd = 0.3
+[prior.cluster_sd]
+family = "half-normal"
+scale = 0.5
+[prior.cluster_slope_sd.x1]
+family = "half-normal"
+scale = { fit = [0.005, 2.0] }
+[prior.x1]
+family = "normal"
+mean = 0.2
+sd = 1e-9
+[prior.coefficients]
+family = "normal"
+scale = 0.3
+"#;
+
+#[test]
+fn a_slope_spread_belief_recovers_the_slope_sd_scale() {
+    // σ_v ~ half-normal(s*) with s* = 0.15 and b_x1 fixed at 0.2: the range over
+    // centres of the odds ratio per unit of x1, exp(b + zσ_v) − exp(b − zσ_v) =
+    // 2e^b sinh(zσ_v), is increasing in σ_v, so its p-quantile is
+    // 2e^b sinh(z·s*·Φ⁻¹((1 + p)/2)) (closed form, our own; Φ⁻¹ values from
+    // scipy 1.17.1 norm.ppf). The fit must find s* within 4 Monte Carlo SE: the
+    // relative SE of a half-normal scale from n draws is 1/√(2n) (the delta
+    // method on mean σ², Var(σ²)/E(σ²)² = 2), 0.0079 at n = 8,000.
+    let z = 1.644_853_626_951_472_7_f64;
+    let b = 0.2_f64;
+    let s = 0.15_f64;
+    // norm.ppf((1 + p)/2) for p = 0.1, 0.25, 0.5, 0.75, 0.9 (scipy 1.17.1).
+    let ppf = [
+        (0.1, 0.125_661_346_855_074_1),
+        (0.25, 0.318_639_363_964_375_2),
+        (0.5, 0.674_489_750_196_081_7),
+        (0.75, 1.150_349_380_376_008_4),
+        (0.9, 1.644_853_626_951_472_7),
+    ];
+    let q: Vec<String> = ppf
+        .iter()
+        .map(|(p, x)| format!("\"{p}\" = {}", 2.0 * b.exp() * (z * s * x).sinh()))
+        .collect();
+    let spec = format!(
+        "{SLOPES}[[belief]]\nquantity = \"slope_spread\"\ncontrast = \"x1\"\nquantiles = {{ {} }}\n",
+        q.join(", ")
+    );
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("s.toml"), spec).unwrap();
+    let o = run(&["fit", "s.toml", "-o", "s", "-q"], dir.path());
+    assert!(o.status.success(), "{}", text(&o));
+    let j = fit_json(dir.path(), "s");
+    let v = j["hyperparameters"]["cluster_slope_sd.x1.scale"]
+        .as_f64()
+        .unwrap();
+    let se = s / (2.0_f64 * 8000.0).sqrt();
+    eprintln!("fitted slope sd scale {v} (target {s}, SE {se})");
+    assert!(
+        (v - s).abs() < 4.0 * se,
+        "fitted {v} vs {s} (4 SE {})",
+        4.0 * se
+    );
+    // The exports state the slope: Stan non-centred, brms with its group.
+    let out = dir.path().join("s");
+    let st = text(&run(
+        &["export", "--to", "stan", out.to_str().unwrap()],
+        dir.path(),
+    ));
+    assert!(
+        st.contains("vector[30] v_z_x1;")
+            && st.contains("vector[30] v_x1 = slope_sd_x1 * v_z_x1;")
+            && st.contains("slope_sd_x1 ~ normal(0, "),
+        "{st}"
+    );
+    let br = text(&run(
+        &["export", "--to", "brms", out.to_str().unwrap()],
+        dir.path(),
+    ));
+    assert!(
+        br.contains("class = \"sd\", group = \"cluster\", coef = \"x1\")")
+            && br.contains("(1 + x1 || cluster)"),
+        "{br}"
+    );
+}
+
+#[test]
+fn bad_random_slope_input_is_a_clear_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let belief = "[[belief]]\nquantity = \"icc\"\nquantiles = { \"0.25\" = 0.05, \"0.5\" = 0.1, \"0.75\" = 0.2 }\n";
+    let ok = format!("{SLOPES}{belief}");
+    let cases: Vec<(String, Vec<&str>)> = vec![
+        // A slope on a column that is not in the design.
+        (
+            ok.replace("[prior.cluster_slope_sd.x1]", "[prior.cluster_slope_sd.x11]"),
+            vec!["prior.cluster_slope_sd.x11", "`x11`", "not a column of the design", "did you mean"],
+        ),
+        // Slopes in a template without clusters.
+        (
+            ok.replace("\"logistic-multilevel\"", "\"logistic\"")
+                .replace("clusters = 30\n", "")
+                .replace("quantity = \"icc\"", "quantity = \"event_prob\""),
+            vec!["prior.cluster_slope_sd", "has no clusters, so no random slopes", "logistic-multilevel"],
+        ),
+        // A family whose support is not (0, ∞).
+        (
+            ok.replace(
+                "[prior.cluster_slope_sd.x1]\nfamily = \"half-normal\"\nscale = { fit = [0.005, 2.0] }",
+                "[prior.cluster_slope_sd.x1]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0",
+            ),
+            vec!["prior.cluster_slope_sd.x1.family", "\"normal\"", "support is the real line", "(0, ∞)"],
+        ),
+        // A hyperparameter outside the family's domain.
+        (
+            ok.replace("scale = { fit = [0.005, 2.0] }", "scale = -0.2"),
+            vec!["prior.cluster_slope_sd.x1.scale", "-0.2"],
+        ),
+        // slope_spread on a covariate without a random slope.
+        (
+            format!(
+                "{SLOPES}[[belief]]\nquantity = \"slope_spread\"\ncontrast = \"x2\"\nquantiles = {{ \"0.25\" = 0.1, \"0.5\" = 0.2, \"0.75\" = 0.3 }}\n"
+            ),
+            vec!["belief[1].contrast", "\"x2\" has no random slope", "x1"],
+        ),
+        // Not a table.
+        (
+            ok.replace(
+                "[prior.cluster_slope_sd.x1]\nfamily = \"half-normal\"\nscale = { fit = [0.005, 2.0] }",
+                "[prior.cluster_slope_sd]\nx1 = 0.3",
+            ),
+            vec!["prior.cluster_slope_sd.x1", "must be a table"],
+        ),
+    ];
+    for (k, (text, needles)) in cases.iter().enumerate() {
+        let p = dir.path().join(format!("slope{k}.toml"));
+        std::fs::write(&p, text).unwrap();
+        common::assert_rejected(dir.path(), &p, &format!("slope{k}.toml:"), 3, needles);
+    }
+}

@@ -85,6 +85,15 @@ pub fn render(h: &Header, items: &[Item]) -> Result<String> {
         match it {
             Item::Scalar(s) => {
                 check_ident(&s.parameter, Lang::Brms, RESERVED)?;
+                // Stated by the template's supplied code (e.g. a random-slope sd
+                // with its group and coefficient).
+                if layout
+                    .code_prefix
+                    .is_some_and(|p| s.parameter.starts_with(p))
+                {
+                    names.push(s.parameter.clone());
+                    continue;
+                }
                 let f = from_family(s, "brms", &s.family.forms.brms)?;
                 // A brms class of its own keeps its name; a non-linear parameter
                 // must not take a distributional parameter's.

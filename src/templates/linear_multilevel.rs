@@ -2,11 +2,13 @@
 //! (`[design]` `group` column or `clusters = J`), a prior on σ_u (`[prior.cluster_sd]`)
 //! fitted from beliefs about the intraclass correlation, the spread of
 //! cluster-level means and the marginal and conditional R², and a shrinkage prior on β.
+//! Optional random slopes, uncorrelated with the intercepts: `[prior.cluster_slope_sd.NAME]`
+//! per covariate, fitted from `slope_spread` beliefs.
 //! Machinery, formulas and references: [`super::regression`] and
 //! [`super::regression::multilevel`].
 
 use super::quantity::catalogue;
-use super::regression::multilevel::{q_spread, Q_ICC, Q_R2_COND, Q_R2_FIXED};
+use super::regression::multilevel::{q_slope_spread, q_spread, Q_ICC, Q_R2_COND, Q_R2_FIXED};
 use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
@@ -14,14 +16,15 @@ use crate::error::Result;
 use crate::input::Ctx;
 
 /// The quantity table (the catalogue lists it in this order).
-static QUANTITIES: [RegDef; 7] = [
+static QUANTITIES: [RegDef; 8] = [
     Q_ICC,
     q_spread(
-        "5–95 % range of cluster means at a profile, 2·1.645·σ_u",
+        "5–95 % range of cluster means at a profile, 2·1.645·σ_u (with slopes: the random-part sd at the profile)",
         Support::Positive,
     ),
     Q_R2_FIXED,
     Q_R2_COND,
+    q_slope_spread("5–95 % range over clusters of the mean difference for a contrast with a random slope, 2·1.645·|δ|σ_v"),
     q_mean(Support::Real),
     Q_SIGNAL,
     Q_EFF,
@@ -34,6 +37,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
         ("intercept", "mean response at the design mean in a typical cluster (u = 0)"),
         ("sigma", "residual sd within clusters (inverse-gamma: a prior on the variance σ²)"),
         ("cluster_sd", "sd σ_u of the random intercepts (any family on (0, ∞): half-normal, half-student-t, half-cauchy, exponential, …)"),
+        ("cluster_slope_sd.NAME", "sd σ_v of a random slope of design column NAME, one table per slope (optional; any family on (0, ∞))"),
         ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
         ("NAME", "a design column: a prior of its own for its coefficient, per unit as given (or [prior.LABEL] with covariates = [...])"),
     ],

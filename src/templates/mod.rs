@@ -135,6 +135,10 @@ pub struct BrmsLayout {
     /// Scalar parameters named `<prefix><column>` are single population-level
     /// coefficients: `set_prior(…, class = "b", coef = "<column>")`.
     pub coef_prefix: Option<&'static str>,
+    /// Scalar parameters named `<prefix>…` that the template's supplied brms
+    /// code states itself (random-slope sds, which need their group): the brms
+    /// export writes nothing else for them.
+    pub code_prefix: Option<&'static str>,
 }
 
 /// A parameter that brms knows as a class of its own.
@@ -156,6 +160,7 @@ impl BrmsLayout {
         ],
         classes: &[],
         coef_prefix: None,
+        code_prefix: None,
     };
 
     /// The class of `parameter`, when brms has one for it.

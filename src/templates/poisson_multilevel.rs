@@ -2,12 +2,16 @@
 //! (`[design]` `group` column or `clusters = J`), a prior on σ_u (`[prior.cluster_sd]`)
 //! fitted from beliefs about the intraclass correlation, the median rate ratio, the spread of
 //! cluster-level rates and the marginal and conditional R², and a shrinkage prior on β.
+//! Optional random slopes, uncorrelated with the intercepts: `[prior.cluster_slope_sd.NAME]`
+//! per covariate, fitted from `slope_spread` beliefs.
 //! Machinery, formulas and references: [`super::regression`] and
 //! [`super::regression::multilevel`].
 
 use super::poisson::{Q_RATE, Q_RATE_RATIO};
 use super::quantity::catalogue;
-use super::regression::multilevel::{q_spread, Q_ICC, Q_MRR, Q_R2_COND, Q_R2_FIXED};
+use super::regression::multilevel::{
+    q_slope_spread, q_spread, Q_ICC, Q_MRR, Q_R2_COND, Q_R2_FIXED,
+};
 use super::regression::{self, q_mean, Link, RegDef, Q_EFF, Q_SIGNAL};
 use super::{Model, TemplateInfo};
 use crate::dist::Support;
@@ -15,7 +19,7 @@ use crate::error::Result;
 use crate::input::Ctx;
 
 /// The quantity table (the catalogue lists it in this order).
-static QUANTITIES: [RegDef; 10] = [
+static QUANTITIES: [RegDef; 11] = [
     Q_ICC,
     Q_MRR,
     q_spread(
@@ -24,6 +28,9 @@ static QUANTITIES: [RegDef; 10] = [
     ),
     Q_R2_FIXED,
     Q_R2_COND,
+    q_slope_spread(
+        "5–95 % range over clusters of the rate ratio for a contrast with a random slope",
+    ),
     Q_RATE,
     Q_RATE_RATIO,
     q_mean(Support::Positive),
@@ -37,6 +44,7 @@ pub static INFO: TemplateInfo = TemplateInfo {
     parameters: &[
         ("intercept", "log rate per unit exposure at the design mean in a typical cluster (u = 0)"),
         ("cluster_sd", "sd σ_u of the random intercepts (any family on (0, ∞): half-normal, half-student-t, half-cauchy, exponential, …)"),
+        ("cluster_slope_sd.NAME", "sd σ_v of a random slope of design column NAME, one table per slope (optional; any family on (0, ∞))"),
         ("coefficients", "shrinkage prior: normal | student-t | laplace | horseshoe | regularised-horseshoe | r2d2 | spike-and-slab"),
         ("NAME", "a design column: a prior of its own for its coefficient, per unit as given (or [prior.LABEL] with covariates = [...])"),
     ],

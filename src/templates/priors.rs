@@ -58,8 +58,27 @@ impl PriorSet {
     ) -> Result<usize> {
         let t = ctx.prior_table(table, example)?;
         let path = [key("prior"), key(table)];
+        self.add_from(ctx, &path, table, t, param, allowed, example, extra)
+    }
+
+    /// Read the table `t` at `path` (named `[prior.<label>]` in messages) as the
+    /// prior of parameter `param` (hyperparameters `<label>.<name>` when `label`
+    /// differs from the table name of [`PriorSet::add_keyed`], e.g. a nested
+    /// `[prior.cluster_slope_sd.age]`).
+    #[allow(clippy::too_many_arguments)]
+    pub fn add_from(
+        &mut self,
+        ctx: &Ctx,
+        path: &[Seg],
+        table: &str,
+        t: &toml::Table,
+        param: &str,
+        allowed: &[&str],
+        example: &str,
+        extra: &[&str],
+    ) -> Result<usize> {
         let fam_v = t.get("family").ok_or_else(|| {
-            ctx.err(&path, format!("[prior.{table}] needs `family`"))
+            ctx.err(path, format!("[prior.{table}] needs `family`"))
                 .with_hint(format!("e.g. {example}"))
         })?;
         let mut fp = path.to_vec();
@@ -91,20 +110,20 @@ impl PriorSet {
         let mut keys = vec!["family"];
         keys.extend_from_slice(family.params);
         keys.extend_from_slice(extra);
-        ctx.check_keys(&path, t, &keys)?;
+        ctx.check_keys(path, t, &keys)?;
         let mut idx = Vec::new();
         let mut values = Vec::new();
         for p in family.params {
             let mut pp = path.to_vec();
             pp.push(key(p));
             let v = t.get(*p).ok_or_else(|| {
-                ctx.err(&path, format!("[prior.{table}] ({name}) needs `{p}`"))
+                ctx.err(path, format!("[prior.{table}] ({name}) needs `{p}`"))
                     .with_hint(format!(
                         "{name} takes {}; each is a number or {{ fit = [lower, upper] }}",
                         family.params.join(", ")
                     ))
             })?;
-            values.push((pp, ctx.hyper_value(&path_with(&path, p), v)?));
+            values.push((pp, ctx.hyper_value(&path_with(path, p), v)?));
         }
         // Check that every free hyperparameter's bounds stay inside the family's domain.
         let rep: Vec<f64> = values

@@ -120,9 +120,14 @@ impl Regression {
         let (seed, block) = (plan.seed, plan.block);
         // Priors 0–7 on streams 0–7 as always; later ones (covariate-specific
         // priors) after the three global streams, below the coefficient streams.
-        let mut cols =
-            self.priors
-                .draw_base_on(n, plan, |k| if k < 8 { k as u64 } else { k as u64 + 3 });
+        // Random-slope sds on streams of their own ([`super::multilevel::SLOPE_STREAM`]).
+        let mut cols = self.priors.draw_base_on(n, plan, |k| {
+            match self.slopes.iter().position(|s| s.prior == k) {
+                Some(s) => super::multilevel::SLOPE_STREAM + s as u64,
+                None if k < 8 => k as u64,
+                None => k as u64 + 3,
+            }
+        });
         cols.push(plan.uniforms(coef::GLOBAL_STREAM, n));
         cols.push(plan.uniforms(coef::SLAB_STREAM, n));
         cols.push(plan.uniforms(coef::R2_STREAM, n));

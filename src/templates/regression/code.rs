@@ -85,6 +85,7 @@ pub static BRMS: BrmsLayout = BrmsLayout {
         },
     ],
     coef_prefix: Some("b_"),
+    code_prefix: None,
 };
 
 fn section(code: &mut Code, lang: &str, sec: &str, lines: Vec<String>) {
@@ -176,6 +177,7 @@ pub static BRMS_MULTILEVEL: BrmsLayout = BrmsLayout {
         },
     ],
     coef_prefix: Some("b_"),
+    code_prefix: Some("slope_sd_"),
 };
 
 /// Code for the clusters' random intercepts u_j = σ_u·z_j, z_j ~ N(0, 1)
@@ -229,6 +231,97 @@ pub fn cluster_effects(cl: &crate::design::Clusters) -> crate::templates::PriorS
         family: String::new(),
         params: Vec::new(),
         about: format!("random intercepts of the {j} clusters ({g})"),
+        code: Some(code),
+    }
+}
+
+/// Code for the clusters' random slopes v_kj = σ_{v,k}·z_kj, z_kj ~ N(0, 1)
+/// (non-centred), independent of the intercepts and of each other; σ_{v,k} is
+/// the scalar prior `slope_sd_NAME`, per unit of NAME as given in the design file,
+/// so row i's linear predictor gains v_k[g[i]]·(x_ik − x̄_k) with x̄_k the
+/// design mean (the raw, unstandardised value). brms: the formula term
+/// `(1 + NAME || g)` (uncorrelated intercept and slopes) and each sd as
+/// `set_prior(…, class = "sd", group = "g", coef = "NAME")`; `stmts` holds the
+/// slope sds' fitted statements, whose brms form is written here (the brms
+/// export skips the `slope_sd_` scalars, [`BRMS_MULTILEVEL`]).
+pub fn cluster_slopes(
+    cl: &crate::design::Clusters,
+    slopes: &[super::multilevel::Slope],
+    d: &Design,
+    stmts: &[crate::templates::PriorStatement],
+) -> crate::templates::PriorStatement {
+    let j = cl.count();
+    let g = &cl.name;
+    let mut code = BTreeMap::new();
+    let (mut par, mut tr, mut model, mut py) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+    let names: Vec<&str> = slopes.iter().map(|s| s.name.as_str()).collect();
+    let mut brms = vec![format!(
+        "# random slopes: write the group term as (1 + {} || {g}) (uncorrelated intercept and slopes) in place of (1 | {g}); each slope sd is per unit of its covariate as given in the design file",
+        names.join(" + ")
+    )];
+    let mut brms_ok = true;
+    for sl in slopes {
+        let n = &sl.name;
+        let m = num(d.raw_means[sl.col]);
+        par.push(format!(
+            "vector[{j}] v_z_{n};  // standardised random slopes of {n}, one per {g}"
+        ));
+        tr.push(format!(
+            "vector[{j}] v_{n} = slope_sd_{n} * v_z_{n};  // random slopes of {n} ~ N(0, slope_sd_{n}²) per unit as given; add v_{n}[{g}[i]] * ({n}[i] - {m}) to row i's linear predictor"
+        ));
+        model.push(format!("v_z_{n} ~ std_normal();"));
+        py.push(format!(
+            "v_z_{n} = pm.Normal(\"v_z_{n}\", mu=0, sigma=1, shape={j})  # one per {g}"
+        ));
+        py.push(format!(
+            "v_{n} = pm.Deterministic(\"v_{n}\", slope_sd_{n} * v_z_{n})  # add v_{n}[{g}_idx] * ({n} - {m}) to the linear predictor"
+        ));
+        let st = stmts
+            .iter()
+            .find(|s| s.parameter == format!("slope_sd_{n}"));
+        let form = st.and_then(|st| {
+            let family = crate::dist::family(&st.family)?;
+            let sc = crate::export::Scalar {
+                parameter: st.parameter.clone(),
+                family,
+                params: st.params.iter().map(|p| p.1).collect(),
+                about: String::new(),
+            };
+            crate::export::stan::from_family(&sc, "brms", &family.forms.brms).ok()
+        });
+        match form {
+            // brms's class "sd" has its lower bound 0 built in; a family written
+            // on another scale (a helper variable) has no brms form here.
+            Some(f) if f.derived.is_none() && f.upper.is_none() => brms.push(format!(
+                "set_prior(\"{}\", class = \"sd\", group = \"{g}\", coef = \"{n}\")",
+                f.dist
+            )),
+            _ => brms_ok = false,
+        }
+    }
+    section(&mut code, "stan", "parameters", par);
+    section(&mut code, "stan", "transformed_parameters", tr);
+    section(&mut code, "stan", "model", model);
+    section(&mut code, "pymc", "model", py);
+    if brms_ok {
+        section(&mut code, "brms", "priors", brms);
+    } else {
+        refuse(
+            &mut code,
+            "brms",
+            "a random-slope sd's family has no direct brms form on class \"sd\" (it is written \
+             on another scale or has an upper bound); use the Stan or PyMC export"
+                .to_string(),
+        );
+    }
+    crate::templates::PriorStatement {
+        parameter: "cluster_slopes".into(),
+        family: String::new(),
+        params: Vec::new(),
+        about: format!(
+            "random slopes of {} over the {j} clusters ({g}), independent of the intercepts",
+            names.join(", ")
+        ),
         code: Some(code),
     }
 }

@@ -58,6 +58,8 @@ mod tests;
 mod tests_groups;
 #[cfg(test)]
 mod tests_multilevel;
+#[cfg(test)]
+mod tests_slopes;
 
 use super::{
     BaseDraws, Hyper, Model, PriorSet, PriorStatement, QuantityDef, Request, TemplateInfo,
@@ -87,6 +89,8 @@ pub struct Regression {
     own_cov: Vec<f64>,
     /// The prior index of the random-intercept sd (multilevel templates).
     cluster: Option<usize>,
+    /// Random slopes ([`multilevel::Slope`]; multilevel templates only).
+    pub slopes: Vec<multilevel::Slope>,
     /// The template's quantity table.
     quantities: &'static [QuantityDef<RegQuantity>],
     /// What the beliefs need ([`Model::prepare`]); nothing before it.
@@ -178,6 +182,8 @@ pub(super) fn make(
         None
     };
     let own = own::parse(ctx, &design, &mut priors)?;
+    // After the covariate-specific priors: their base streams do not move.
+    let slopes = multilevel::parse_slopes(ctx, info, &design, multilevel, &mut priors)?;
     let mut coef = coef::parse(ctx, &design, &mut priors.hypers)?;
     if coef.groups.is_some() && !own.is_empty() {
         return Err(ctx
@@ -205,6 +211,7 @@ pub(super) fn make(
         own,
         own_cov,
         cluster,
+        slopes,
         quantities,
         needs: Needs::default(),
         tables: base::TableCache::default(),
@@ -259,6 +266,10 @@ impl Model for Regression {
             }
             "intercept" => "linear predictor at the design mean".to_string(),
             "cluster_sd" => "sd σ_u of the clusters' random intercepts u_j ~ N(0, σ_u²) (linear-predictor scale)".to_string(),
+            other if other.starts_with("slope_sd_") => format!(
+                "sd σ_v of the clusters' random slopes of `{}` (v_j ~ N(0, σ_v²), per unit as given in the design file, independent of u_j)",
+                &other[9..]
+            ),
             other if other.starts_with("b_") => format!(
                 "coefficient of `{}` per unit as given in the design file (not standardised)",
                 &other[2..]
@@ -324,6 +335,9 @@ impl Model for Regression {
         });
         if let Some(cl) = &self.design.clusters {
             v.push(code::cluster_effects(cl));
+            if !self.slopes.is_empty() {
+                v.push(code::cluster_slopes(cl, &self.slopes, &self.design, &v));
+            }
         }
         v
     }

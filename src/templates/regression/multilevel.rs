@@ -27,8 +27,31 @@
 //!
 //! The quantities at a profile (`mean_response`, `event_prob`, `rate`) are those
 //! of a typical cluster (u = 0).
+//!
+//! Random slopes (optional, [`parse_slopes`]): `[prior.cluster_slope_sd.NAME]`
+//! gives design column NAME the coefficient β_k + v_kj in cluster j, v_kj ~
+//! N(0, σ_{v,k}²) independent of u_j and of the other slopes (uncorrelated, as
+//! brms's `(1 + x || g)`), σ_{v,k} per unit of the covariate as given in the
+//! design file. With covariates centred at the design mean the random part at a
+//! row x has variance σ_r²(x) = σ_u² + Σ_k σ_{v,k}²(x_k − x̄_k)², and over the
+//! design rows its mean is σ_r² = σ_u² + Σ_k σ_{v,k}² var(x_k) (1/n variance;
+//! Johnson 2014, Methods Ecol. Evol. 5, 944–946, "Extension of Nakagawa &
+//! Schielzeth's R²GLMM to random slopes models"). Then:
+//! * `r2_fixed` = σ_f²/(σ_f² + σ_r² + σ_d²) and `r2_conditional` =
+//!   (σ_f² + σ_r²)/(σ_f² + σ_r² + σ_d²) (σ_u² replaced by the mean σ_r²);
+//! * `icc`, the median ratio and σ_d² (Poisson λ) are those of the reference
+//!   profile x = x̄, where the slope part vanishes (σ_u alone);
+//! * `cluster_spread` at a profile x uses the sd σ_r(x) there;
+//! * `slope_spread` for `contrast = "NAME:δ"`: the 5–95 % range over clusters of
+//!   the contrast's effect, whose log (or, linear, itself) is δβ_k + δv_kj with sd
+//!   |δ|σ_{v,k}: exp(δβ + z|δ|σ_v) − exp(δβ − z|δ|σ_v) (odds or rate ratio) or
+//!   2z|δ|σ_v (mean difference), z = Φ⁻¹(0.95).
+//!
+//! The slopes need no draws of their own beyond σ_{v,k} (every quantity above
+//! reads only the variances): σ_{v,k} takes base stream [`SLOPE_STREAM`] + k, so
+//! a model without slopes draws exactly as before.
 
-use super::quantity::{RegDef, RegQuantity, AT_PROFILE};
+use super::quantity::{RegDef, RegQuantity, AT_PROFILE, FOR_CONTRAST};
 use super::Link;
 use crate::design::Design;
 use crate::dist::Support;
@@ -41,6 +64,115 @@ use crate::templates::{At, QuantityDef, QuantityInfo, TemplateInfo};
 pub const Z75: f64 = 0.674_489_750_196_081_7;
 /// Φ⁻¹(0.95) for the 5–95 % range of cluster-level values.
 pub const Z95: f64 = 1.644_853_626_951_472_7;
+
+/// Most random slopes in one model (each takes one base stream of its own).
+pub const MAX_SLOPES: usize = 8;
+/// Base streams of the slope sds: SLOPE_STREAM + s for slope s, above the
+/// streams of the covariate-specific priors (at most 3 + 48 + 3 = 54) and of
+/// the group shares (11 … 41), below the coefficient streams (64).
+pub const SLOPE_STREAM: u64 = 56;
+/// The prior table of the slope sds: `[prior.cluster_slope_sd.NAME]`.
+pub const SLOPE_TABLE: &str = "cluster_slope_sd";
+
+/// A covariate whose coefficient varies by cluster: β_kj = β_k + v_kj,
+/// v_kj ~ N(0, σ_{v,k}²), σ_{v,k} per unit of the covariate as given.
+#[derive(Debug, Clone)]
+pub struct Slope {
+    /// Design column.
+    pub col: usize,
+    /// Column name.
+    pub name: String,
+    /// Index of the prior of σ_{v,k} in the model's [`crate::templates::PriorSet`].
+    pub prior: usize,
+    /// sd per unit of the stored design = this × sd per raw unit (the raw sd
+    /// when the design is standardised, else 1).
+    pub to_stored: f64,
+}
+
+const SLOPE_EXAMPLE: &str = "family = \"half-normal\"\n  scale = { fit = [0.02, 1.0] }";
+
+/// Read `[prior.cluster_slope_sd.NAME]` tables (one per covariate NAME with a
+/// random slope): any family on (0, ∞), hyperparameters `cluster_slope_sd.NAME.<param>`,
+/// prior statement `slope_sd_NAME`. Refused in a template without clusters.
+pub fn parse_slopes(
+    ctx: &Ctx,
+    info: &TemplateInfo,
+    design: &Design,
+    multilevel: bool,
+    priors: &mut crate::templates::PriorSet,
+) -> Result<Vec<Slope>> {
+    if !ctx.has_prior(SLOPE_TABLE) {
+        return Ok(Vec::new());
+    }
+    let t = ctx.prior_table(SLOPE_TABLE, SLOPE_EXAMPLE)?;
+    let path = [key("prior"), key(SLOPE_TABLE)];
+    if !multilevel {
+        return Err(ctx
+            .err(
+                &path,
+                format!("template {} has no clusters, so no random slopes", info.name),
+            )
+            .with_hint(format!(
+                "use template \"{}-multilevel\" with clusters in [design], or remove [prior.{SLOPE_TABLE}]",
+                info.name
+            )));
+    }
+    if t.is_empty() {
+        return Err(ctx
+            .err(&path, format!("[prior.{SLOPE_TABLE}] names no covariate"))
+            .with_hint(format!(
+                "one table per covariate with a random slope, e.g.\n  [prior.{SLOPE_TABLE}.age]\n  {SLOPE_EXAMPLE}"
+            )));
+    }
+    if t.len() > MAX_SLOPES {
+        return Err(ctx
+            .err(
+                &path,
+                format!("{} random slopes; at most {MAX_SLOPES}", t.len()),
+            )
+            .with_hint("keep the covariates whose effect is believed to vary by cluster"));
+    }
+    let positive = super::super::priors::families_on(crate::dist::Support::Positive);
+    let mut out = Vec::new();
+    for (name, v) in t {
+        let p = [key("prior"), key(SLOPE_TABLE), key(name)];
+        let col = design.column(name).ok_or_else(|| {
+            ctx.err(
+                &p,
+                format!("random slope on `{name}`, which is not a column of the design"),
+            )
+            .with_hint(
+                match crate::error::nearest(name, design.names.iter().map(String::as_str)) {
+                    Some(n) => format!("did you mean `{n}`? One table [prior.{SLOPE_TABLE}.COLUMN] per slope"),
+                    None => format!(
+                        "name a design column (the CSV header, or x1 … xp): [prior.{SLOPE_TABLE}.COLUMN]"
+                    ),
+                },
+            )
+        })?;
+        let sub = v.as_table().ok_or_else(|| {
+            ctx.err(
+                &p,
+                format!("`{name}` must be a table (the prior of its slope sd)"),
+            )
+            .with_hint(format!("[prior.{SLOPE_TABLE}.{name}]\n  {SLOPE_EXAMPLE}"))
+        })?;
+        let label = format!("{SLOPE_TABLE}.{name}");
+        let k = priors.add_from(ctx, &p, &label, sub, &label, &positive, SLOPE_EXAMPLE, &[])?;
+        priors.priors[k].param = format!("slope_sd_{name}");
+        out.push(Slope {
+            col,
+            name: name.clone(),
+            prior: k,
+            to_stored: if design.standardised {
+                design.raw_sds[col]
+            } else {
+                1.0
+            },
+        });
+    }
+    Ok(out)
+}
 
 /// `[design]` clusters: required by the multilevel templates, refused by the others.
 pub fn check_clusters(
@@ -102,7 +234,7 @@ pub const Q_ICC: RegDef = QuantityDef::new(
     RegQuantity::Icc,
     QuantityInfo::new(
         "icc",
-        "intraclass correlation σ_u²/(σ_u² + σ_d²) (σ_d²: σ², π²/3 latent, or ln(1 + 1/λ))",
+        "intraclass correlation σ_u²/(σ_u² + σ_d²) (σ_d²: σ², π²/3 latent, or ln(1 + 1/λ)); with slopes at the reference profile",
         "",
     ),
     At::Design,
@@ -141,11 +273,22 @@ pub const fn q_spread(about: &'static str, support: Support) -> RegDef {
     )
 }
 
+/// `slope_spread`: the 5–95 % range over clusters of a contrast whose covariate
+/// has a random slope (`contrast = "NAME"` or `"NAME:DELTA"`).
+pub const fn q_slope_spread(about: &'static str) -> RegDef {
+    QuantityDef::new(
+        RegQuantity::SlopeSpread,
+        QuantityInfo::new("slope_spread", about, FOR_CONTRAST),
+        At::Contrast,
+        Support::Positive,
+    )
+}
+
 pub const Q_R2_FIXED: RegDef = QuantityDef::new(
     RegQuantity::R2Fixed,
     QuantityInfo::new(
         "r2_fixed",
-        "marginal R² (Nakagawa & Schielzeth): σ_f²/(σ_f² + σ_u² + σ_d²)",
+        "marginal R² (Nakagawa & Schielzeth): σ_f²/(σ_f² + σ_r² + σ_d²), σ_r² = σ_u² (+ mean slope variance)",
         "",
     ),
     At::Design,
@@ -156,7 +299,7 @@ pub const Q_R2_COND: RegDef = QuantityDef::new(
     RegQuantity::R2Conditional,
     QuantityInfo::new(
         "r2_conditional",
-        "conditional R² (Nakagawa & Schielzeth): (σ_f² + σ_u²)/(σ_f² + σ_u² + σ_d²)",
+        "conditional R² (Nakagawa & Schielzeth): (σ_f² + σ_r²)/(σ_f² + σ_r² + σ_d²)",
         "",
     ),
     At::Design,
@@ -175,6 +318,9 @@ pub fn label(q: RegQuantity, link: Link) -> Option<&'static str> {
         (RegQuantity::ClusterSpread, _) => "5–95 % range of cluster mean",
         (RegQuantity::R2Fixed, _) => "marginal R² (fixed effects)",
         (RegQuantity::R2Conditional, _) => "conditional R² (fixed and cluster effects)",
+        (RegQuantity::SlopeSpread, Link::Logit) => "5–95 % range of cluster odds ratios",
+        (RegQuantity::SlopeSpread, Link::Log) => "5–95 % range of cluster rate ratios",
+        (RegQuantity::SlopeSpread, _) => "5–95 % range of cluster mean differences",
         _ => return None,
     })
 }

@@ -33,7 +33,13 @@ use crate::templates::PriorSet;
 pub const MAX_OWN: usize = 48;
 
 /// The prior tables the regression templates read themselves.
-pub const RESERVED: [&str; 4] = ["intercept", "sigma", "coefficients", "cluster_sd"];
+pub const RESERVED: [&str; 5] = [
+    "intercept",
+    "sigma",
+    "coefficients",
+    "cluster_sd",
+    "cluster_slope_sd",
+];
 
 /// One covariate with a prior of its own.
 #[derive(Debug, Clone)]

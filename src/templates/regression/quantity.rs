@@ -28,6 +28,8 @@ pub enum RegQuantity {
     ClusterSpread,
     R2Fixed,
     R2Conditional,
+    /// The 5–95 % range over clusters of a contrast with a random slope.
+    SlopeSpread,
     /// A group's share φ_g of the explained variance (R2D2 with groups).
     R2Share,
 }

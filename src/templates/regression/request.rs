@@ -117,7 +117,7 @@ impl Regression {
         if raw.contrast.is_some() && def.at != At::Contrast {
             return Err(ctx.err(
                 &sub(path, "contrast"),
-                format!("{quantity} takes no `contrast` (only odds_ratio and rate_ratio do)"),
+                format!("{quantity} takes no `contrast` (only odds_ratio, rate_ratio and slope_spread do)"),
             ));
         }
         let group = self.group_of(ctx, path, def.kind, raw)?;
@@ -132,6 +132,13 @@ impl Regression {
         let mut label = super::multilevel::label(def.kind, self.link)
             .unwrap_or(quantity)
             .to_string();
+        // With random slopes the ICC and the median ratio are those of the
+        // reference profile, where the slope part vanishes ([`super::multilevel`]).
+        if !self.slopes.is_empty()
+            && matches!(def.kind, RegQuantity::Icc | RegQuantity::MedianRatio)
+        {
+            label.push_str(" at the reference profile");
+        }
         let (profiles, names, form) = match def.at {
             At::Profile => {
                 let name = raw
@@ -152,6 +159,26 @@ impl Regression {
                     )
                 })?;
                 let (key, form, l) = self.contrast(ctx, &sub(path, "contrast"), c)?;
+                if def.kind == RegQuantity::SlopeSpread
+                    && !form
+                        .first()
+                        .is_some_and(|(j, _)| self.slopes.iter().any(|s| s.col == *j))
+                {
+                    let with: Vec<&str> = self.slopes.iter().map(|s| s.name.as_str()).collect();
+                    return Err(ctx
+                        .err(
+                            &sub(path, "contrast"),
+                            format!("slope_spread: the covariate of contrast \"{c}\" has no random slope"),
+                        )
+                        .with_hint(if with.is_empty() {
+                            format!(
+                                "add [prior.{}.COLUMN] for a random slope",
+                                super::multilevel::SLOPE_TABLE
+                            )
+                        } else {
+                            format!("covariates with a random slope: {}", with.join(", "))
+                        }));
+                }
                 label.push_str(&format!(" ({l})"));
                 (key, vec![l, "design mean".to_string()], Some(form))
             }

@@ -38,6 +38,9 @@ pub(super) struct Eval<'a> {
     own: Vec<Vec<f64>>,
     /// Random-intercept variances σ_u² (multilevel templates; else empty).
     su2: Vec<f64>,
+    /// Random-slope variances per unit of the stored design, (σ_{v,k}·to_stored)²,
+    /// one vector per slope (in the order of [`Regression::slopes`]).
+    sv2: Vec<Vec<f64>>,
     /// Groups of covariates ([`super::groups`]): the number of groups G (1
     /// without), each draw's shares φ (draws × G) and their square roots, the
     /// groups' multipliers relative to `g`.
@@ -71,6 +74,16 @@ impl Regression {
             Some(c) => par[c].iter().map(|s| s * s).collect(),
             None => Vec::new(),
         };
+        let sv2: Vec<Vec<f64>> = self
+            .slopes
+            .iter()
+            .map(|sl| {
+                par[sl.prior]
+                    .iter()
+                    .map(|s| (s * sl.to_stored).powi(2))
+                    .collect()
+            })
+            .collect();
         let rho: Vec<f64> = (0..n)
             .map(|i| self.ref_var(alpha[i], sigma2.get(i).copied().unwrap_or(0.0)))
             .collect();
@@ -104,6 +117,7 @@ impl Regression {
             prod,
             own,
             su2,
+            sv2,
             ng,
             phi,
             sphi,
@@ -228,6 +242,7 @@ impl Eval<'_> {
             | RegQuantity::R2Fixed
             | RegQuantity::R2Conditional => self.multilevel(q, o)?,
             RegQuantity::ClusterSpread => self.cluster_spread(r, o)?,
+            RegQuantity::SlopeSpread => self.slope_spread(r, o)?,
             RegQuantity::R2Share => {
                 let k = r.detail.get::<RegDetail>()?.group.unwrap_or(usize::MAX);
                 self.share(k, o)?
@@ -369,10 +384,12 @@ impl Eval<'_> {
             *v = match q {
                 RegQuantity::Icc => ratio(su2, d),
                 RegQuantity::MedianRatio => median_ratio(su2.sqrt()),
-                RegQuantity::R2Fixed => ratio(self.q_total(i), su2 + d),
+                // With random slopes the random part is the mean random-effect
+                // variance over the design rows (Johnson 2014).
+                RegQuantity::R2Fixed => ratio(self.q_total(i), self.random_mean(i) + d),
                 _ => {
                     let f = self.q_total(i);
-                    ratio(f + su2, d)
+                    ratio(f + self.random_mean(i), d)
                 }
             };
         }
@@ -389,10 +406,71 @@ impl Eval<'_> {
         }
         let f = self.form(r)?;
         let link = self.model.link;
+        // The profile's centred values (stored units) of the slope columns.
+        let at: Vec<f64> = match &r.detail.get::<RegDetail>()?.form {
+            Some(form) => self
+                .model
+                .slopes
+                .iter()
+                .map(|sl| {
+                    form.iter()
+                        .find(|(j, _)| *j == sl.col)
+                        .map_or(0.0, |(_, a)| *a)
+                })
+                .collect(),
+            None => vec![0.0; self.sv2.len()],
+        };
         for (i, v) in o.iter_mut().enumerate() {
             let eta = self.alpha[i] + self.lin(f, i) + self.own_part(r, i)?;
-            let h = Z95 * self.su2[i].sqrt();
+            let slope: f64 = self.sv2.iter().zip(&at).map(|(s, a)| s[i] * a * a).sum();
+            let h = Z95 * (self.su2[i] + slope).sqrt();
             *v = (response(link, eta + h) - response(link, eta - h)).max(0.0);
+        }
+        Ok(())
+    }
+
+    /// The mean over the design rows of the random-effect variance of draw i,
+    /// σ_u² + Σ_k σ_{v,k}² var(x_k) (Johnson 2014; σ_u² without slopes).
+    fn random_mean(&self, i: usize) -> f64 {
+        let var = &self.model.design.var;
+        self.su2[i]
+            + self
+                .model
+                .slopes
+                .iter()
+                .zip(&self.sv2)
+                .map(|(sl, s)| s[i] * var[sl.col])
+                .sum::<f64>()
+    }
+
+    /// The 5–95 % range over clusters of a contrast's effect when its covariate
+    /// has a random slope ([`super::multilevel`]): δ·(β + v_j) has sd |δ|σ_v,
+    /// so the range is h(c + z|δ|σ_v) − h(c − z|δ|σ_v) with c = δβ and h the
+    /// identity (mean difference) or exp (odds or rate ratio).
+    fn slope_spread(&self, r: &Request, o: &mut [f64]) -> Result<()> {
+        use super::multilevel::Z95;
+        let d = r.detail.get::<RegDetail>()?;
+        let (col, a) = d
+            .form
+            .as_ref()
+            .and_then(|f| f.first().copied())
+            .ok_or_else(|| Error::Numeric("slope_spread without a contrast".into()))?;
+        let k = self
+            .model
+            .slopes
+            .iter()
+            .position(|s| s.col == col)
+            .ok_or_else(|| Error::Numeric("slope_spread on a column without a slope".into()))?;
+        let f = self.form(r)?;
+        let identity = self.model.link == super::Link::Identity;
+        for (i, v) in o.iter_mut().enumerate() {
+            let c = self.lin(f, i) + self.own_part(r, i)?;
+            let h = Z95 * a.abs() * self.sv2[k][i].sqrt();
+            *v = if identity {
+                2.0 * h
+            } else {
+                ((c + h).exp() - (c - h).exp()).max(0.0)
+            };
         }
         Ok(())
     }

@@ -333,6 +333,7 @@ pub static BRMS: crate::templates::BrmsLayout = crate::templates::BrmsLayout {
     ],
     classes: &[],
     coef_prefix: None,
+    code_prefix: None,
 };
 
 /// [`BRMS`] for the two cure templates, pointing to the custom families that
@@ -351,6 +352,7 @@ pub static BRMS_CURE: crate::templates::BrmsLayout = crate::templates::BrmsLayou
     ],
     classes: &[],
     coef_prefix: None,
+    code_prefix: None,
 };
 
 /// The data line of a survival likelihood's description: the documented data
