@@ -351,7 +351,7 @@ distribution = {{ family = "beta", alpha = 6, beta = 14 }}
 fn cure_fraction_starters_fit_sweep_report_and_export() {
     // The mixture-cure and promotion-time starters with [prior.cure_fraction]
     // (beta, both parameters fitted) instead of their cure table: every belief
-    // met, and the sweep, report and exports work on the new prior.
+    // met, and the report, exports and (mixture cure) a sweep work on the new prior.
     let d = tempfile::tempdir().unwrap();
     for (name, table) in [("mixture-cure", "cure_logit"), ("promotion-time-cure", "log_theta")] {
         let starter = SHIPPED.iter().find(|s| s.0 == name).unwrap().1;
@@ -380,17 +380,18 @@ fn cure_fraction_starters_fit_sweep_report_and_export() {
         let stan = stdout(&run(&["export", out.to_str().unwrap(), "--to", "stan"]));
         assert!(stan.contains("real<lower=0, upper=1> cure_fraction;"), "{stan}");
         assert!(stan.contains("cure_fraction ~ beta("), "{stan}");
+        if name != "mixture-cure" {
+            continue;
+        }
         let sweep = d.path().join(format!("{name}-sweep"));
         let r = run(&[
             "-q",
             "sweep",
             spec.to_str().unwrap(),
             "--widths",
-            "0.75,1",
+            "0.75",
             "--beliefs",
             "1",
-            "--draws",
-            "2000",
             "--out",
             sweep.to_str().unwrap(),
         ]);
