@@ -121,19 +121,49 @@ const SLOTS: [(&str, &str, &str, On); 21] = [
     ("linear", "intercept", "intercept", On::Real),
     ("linear", "sigma", "sigma", On::Positive),
     ("linear-multilevel", "sigma", "sigma", On::Positive),
-    ("linear-multilevel", "cluster_sd", "cluster_sd", On::Positive),
-    ("logistic-multilevel", "cluster_sd", "cluster_sd", On::Positive),
+    (
+        "linear-multilevel",
+        "cluster_sd",
+        "cluster_sd",
+        On::Positive,
+    ),
+    (
+        "logistic-multilevel",
+        "cluster_sd",
+        "cluster_sd",
+        On::Positive,
+    ),
     ("logistic-multilevel", "x1", "x1", On::Real),
-    ("poisson-multilevel", "cluster_sd", "cluster_sd", On::Positive),
+    (
+        "poisson-multilevel",
+        "cluster_sd",
+        "cluster_sd",
+        On::Positive,
+    ),
     ("poisson", "intercept", "intercept", On::Real),
     ("mixture-cure", "cure_logit", "cure_logit", On::Real),
     ("mixture-cure", "cure_logit", "cure_fraction", On::Unit),
     ("mixture-cure", "log_scale", "log_scale", On::Real),
     ("mixture-cure", "shape", "shape", On::PositiveOrUniform),
     ("promotion-time-cure", "log_theta", "log_theta", On::Real),
-    ("promotion-time-cure", "log_theta", "cure_fraction", On::Unit),
-    ("promotion-time-cure", "shape", "shape", On::PositiveOrUniform),
-    ("parametric-survival", "shape", "shape", On::PositiveOrUniform),
+    (
+        "promotion-time-cure",
+        "log_theta",
+        "cure_fraction",
+        On::Unit,
+    ),
+    (
+        "promotion-time-cure",
+        "shape",
+        "shape",
+        On::PositiveOrUniform,
+    ),
+    (
+        "parametric-survival",
+        "shape",
+        "shape",
+        On::PositiveOrUniform,
+    ),
     ("parametric-survival", "log_scale", "log_scale", On::Real),
     (
         "parametric-survival",
@@ -142,7 +172,12 @@ const SLOTS: [(&str, &str, &str, On); 21] = [
         On::Real,
     ),
     ("piecewise-hazard", "log_hazard_1", "log_hazard_1", On::Real),
-    ("piecewise-hazard", "hazard_walk_sd", "hazard_walk_sd", On::Positive),
+    (
+        "piecewise-hazard",
+        "hazard_walk_sd",
+        "hazard_walk_sd",
+        On::Positive,
+    ),
     (
         "piecewise-hazard",
         "hazard_effect_arm",
@@ -221,7 +256,12 @@ fn support_rule_over_templates_parameters_and_families() {
         ("mixture-cure", "shape"),
         ("piecewise-hazard", "hazard_walk_sd"),
     ] {
-        for f in ["half-cauchy", "half-student-t", "loglogistic", "half-normal"] {
+        for f in [
+            "half-cauchy",
+            "half-student-t",
+            "loglogistic",
+            "half-normal",
+        ] {
             assert!(has(t, p, f), "{t} {p}: {f} refused");
         }
     }

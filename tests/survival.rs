@@ -263,7 +263,8 @@ fn trigamma(mut x: f64) -> f64 {
         x += 1.0;
     }
     let x2 = 1.0 / (x * x);
-    s + 1.0 / x + x2 / 2.0
+    s + 1.0 / x
+        + x2 / 2.0
         + (1.0 / x) * x2 * (1.0 / 6.0 - x2 * (1.0 / 30.0 - x2 * (1.0 / 42.0 - x2 / 30.0)))
 }
 
@@ -314,7 +315,13 @@ distribution = {{ family = "beta", alpha = 6, beta = 14 }}
         );
         let spec = write(d.path(), &format!("{template}.toml"), &text);
         let out = d.path().join(template);
-        let r = run(&["fit", spec.to_str().unwrap(), "-o", out.to_str().unwrap(), "-q"]);
+        let r = run(&[
+            "fit",
+            spec.to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+            "-q",
+        ]);
         assert!(r.status.success(), "{template}: {}", stderr(&r));
         let v = json(&out.join("fit.json"));
         let (a, b) = (6.0, 14.0);
@@ -327,7 +334,11 @@ distribution = {{ family = "beta", alpha = 6, beta = 14 }}
             let key = format!("cure_fraction.{name}");
             let got = v["hyperparameters"][&key].as_f64().unwrap();
             let se = v["mc_error"][&key].as_f64().unwrap();
-            assert!(se > 0.0 && se <= iid[k], "{template} {key}: mc_error {se} vs iid {}", iid[k]);
+            assert!(
+                se > 0.0 && se <= iid[k],
+                "{template} {key}: mc_error {se} vs iid {}",
+                iid[k]
+            );
             assert!(
                 (got - want).abs() <= 4.0 * se,
                 "{template} {key}: {got} vs {want} (4 SE = {})",
@@ -344,6 +355,35 @@ distribution = {{ family = "beta", alpha = 6, beta = 14 }}
             .find(|p| p["parameter"] == "cure_fraction")
             .expect("cure_fraction in the record");
         assert_eq!(p["family"], "beta");
+        // A batch row with the file as it is refits it to the same numbers.
+        let table = write(d.path(), "table.csv", "id,simulation.seed\nr1,4\n");
+        let bout = d.path().join(format!("{template}-batch"));
+        let r = run(&[
+            "-q",
+            "batch",
+            table.to_str().unwrap(),
+            "--spec",
+            spec.to_str().unwrap(),
+            "--out",
+            bout.to_str().unwrap(),
+        ]);
+        assert!(r.status.success(), "{template} batch: {}", stderr(&r));
+        let res = std::fs::read_to_string(bout.join("results.csv")).unwrap();
+        let head: Vec<&str> = res.lines().next().unwrap().split(',').collect();
+        let row: Vec<&str> = res.lines().nth(1).unwrap().split(',').collect();
+        let col = head
+            .iter()
+            .position(|h| *h == "cure_fraction.alpha")
+            .unwrap();
+        let got: f64 = row[col].parse().unwrap();
+        let fit_alpha = v["hyperparameters"]["cure_fraction.alpha"]
+            .as_f64()
+            .unwrap();
+        // (1e-12: serde_json's float parsing may differ from Rust's in the last bit.)
+        assert!(
+            (got / fit_alpha - 1.0).abs() < 1e-12,
+            "{got} vs {fit_alpha}"
+        );
     }
 }
 
@@ -353,13 +393,22 @@ fn cure_fraction_starters_fit_sweep_report_and_export() {
     // (beta, both parameters fitted) instead of their cure table: every belief
     // met, and the report, exports and (mixture cure) a sweep work on the new prior.
     let d = tempfile::tempdir().unwrap();
-    for (name, table) in [("mixture-cure", "cure_logit"), ("promotion-time-cure", "log_theta")] {
+    for (name, table) in [
+        ("mixture-cure", "cure_logit"),
+        ("promotion-time-cure", "log_theta"),
+    ] {
         let starter = SHIPPED.iter().find(|s| s.0 == name).unwrap().1;
         let text = on_cure_fraction(starter, table).replace("draws = 20000", "draws = 4000");
         assert!(!text.contains(&format!("[prior.{table}]")));
         let spec = write(d.path(), &format!("{name}.toml"), &text);
         let out = d.path().join(name);
-        let r = run(&["fit", spec.to_str().unwrap(), "-o", out.to_str().unwrap(), "-q"]);
+        let r = run(&[
+            "fit",
+            spec.to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+            "-q",
+        ]);
         assert!(r.status.success(), "{name}: {}", stderr(&r));
         let v = json(&out.join("fit.json"));
         let verdict = v["verdict"].as_str().unwrap();
@@ -378,7 +427,10 @@ fn cure_fraction_starters_fit_sweep_report_and_export() {
             assert!(r.status.success(), "{name} {lang}: {}", stderr(&r));
         }
         let stan = stdout(&run(&["export", out.to_str().unwrap(), "--to", "stan"]));
-        assert!(stan.contains("real<lower=0, upper=1> cure_fraction;"), "{stan}");
+        assert!(
+            stan.contains("real<lower=0, upper=1> cure_fraction;"),
+            "{stan}"
+        );
         assert!(stan.contains("cure_fraction ~ beta("), "{stan}");
         if name != "mixture-cure" {
             continue;
@@ -429,7 +481,10 @@ fn bad_cure_fraction_input_names_file_line_key_and_remedy() {
         &spec,
         "uniform.toml:",
         3,
-        &["\"uniform\" is not available", "beta with alpha = 1, beta = 1"],
+        &[
+            "\"uniform\" is not available",
+            "beta with alpha = 1, beta = 1",
+        ],
     );
     // Both scales of the one parameter.
     let text = format!("{base}\n[prior.cure_logit]\nfamily = \"normal\"\nmean = 0.0\nsd = 1.0\n");
@@ -453,7 +508,10 @@ fn bad_cure_fraction_input_names_file_line_key_and_remedy() {
         &spec,
         "both-promo.toml:",
         3,
-        &["[prior.cure_fraction] and [prior.log_theta] both given", "ln(−ln cure_fraction)"],
+        &[
+            "[prior.cure_fraction] and [prior.log_theta] both given",
+            "ln(−ln cure_fraction)",
+        ],
     );
     // No cured fraction to put it on.
     let text = base.replace("# cure = false", "cure = false");
@@ -463,10 +521,17 @@ fn bad_cure_fraction_input_names_file_line_key_and_remedy() {
         &spec,
         "nocure.toml:",
         3,
-        &["[prior.cure_fraction] given but [model] cure = false", "set cure = true"],
+        &[
+            "[prior.cure_fraction] given but [model] cure = false",
+            "set cure = true",
+        ],
     );
     // A fitted bound outside the beta's domain names the value.
-    let text = base.replacen("alpha = { fit = [0.5, 60.0] }", "alpha = { fit = [-1.0, 60.0] }", 1);
+    let text = base.replacen(
+        "alpha = { fit = [0.5, 60.0] }",
+        "alpha = { fit = [-1.0, 60.0] }",
+        1,
+    );
     let spec = write(d.path(), "domain.toml", &text);
     assert_rejected(
         d.path(),

@@ -174,7 +174,10 @@ pub(crate) fn build(
                 )?;
                 (Some(k), true)
             } else {
-                (Some(priors.add(ctx, cure_param, &real, eta_example)?), false)
+                (
+                    Some(priors.add(ctx, cure_param, &real, eta_example)?),
+                    false,
+                )
             }
         }
         Cure::None => {
