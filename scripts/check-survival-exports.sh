@@ -43,7 +43,7 @@ for name in mixture-cure promotion-time-cure; do
   "$PY" - "model-templates/$name.toml" "$OUT/$name-fraction.toml" <<'PYEOF'
 import re, sys
 s = open(sys.argv[1]).read()
-s = re.sub(r"\[prior\.(cure_logit|log_theta)\][^\n]*\n(?:(?!\[)[^\n]+\n)*",
+s = re.sub(r"(?m)^\[prior\.(cure_logit|log_theta)\][^\n]*\n(?:(?!\[)[^\n]+\n)*",
            '[prior.cure_fraction]\nfamily = "beta"\nalpha = { fit = [0.5, 60.0] }\nbeta = { fit = [0.5, 60.0] }\n', s, count=1)
 assert "[prior.cure_fraction]" in s
 open(sys.argv[2], "w").write(s)

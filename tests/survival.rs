@@ -244,7 +244,10 @@ fn bad_gengamma_input_names_file_line_and_key() {
 /// on the cured fraction itself, both parameters fitted.
 fn on_cure_fraction(starter: &str, table: &str) -> String {
     let head = format!("[prior.{table}]");
-    let i = starter.find(&head).expect("starter has the cure table");
+    // The table's header line (not a comment that names it).
+    let i = 1 + starter
+        .find(&format!("\n{head}"))
+        .expect("starter has the cure table");
     let j = i + starter[i..].find("\n\n").unwrap();
     format!(
         "{}[prior.cure_fraction]\nfamily = \"beta\"\nalpha = {{ fit = [0.5, 60.0] }}\nbeta = {{ fit = [0.5, 60.0] }}{}",
@@ -254,11 +257,11 @@ fn on_cure_fraction(starter: &str, table: &str) -> String {
 }
 
 /// ψ₁(x), the trigamma function: the recurrence ψ₁(x) = ψ₁(x + 1) + 1/x² up
-/// to x ≥ 6, then the asymptotic series (Abramowitz & Stegun 6.4.12). Our own
+/// to x ≥ 10, then the asymptotic series (Abramowitz & Stegun 6.4.12). Our own
 /// code.
 fn trigamma(mut x: f64) -> f64 {
     let mut s = 0.0;
-    while x < 6.0 {
+    while x < 10.0 {
         s += 1.0 / (x * x);
         x += 1.0;
     }
@@ -459,7 +462,10 @@ fn bad_cure_fraction_input_names_file_line_key_and_remedy() {
     let starter = SHIPPED[0].1;
     let base = on_cure_fraction(starter, "cure_logit");
     // A family off (0, 1): refused, with its support.
-    let text = base.replacen("family = \"beta\"", "family = \"normal\"", 1);
+    let text = base.replace(
+        "[prior.cure_fraction]\nfamily = \"beta\"",
+        "[prior.cure_fraction]\nfamily = \"normal\"",
+    );
     let spec = write(d.path(), "normal.toml", &text);
     assert_rejected(
         d.path(),
@@ -474,7 +480,10 @@ fn bad_cure_fraction_input_names_file_line_key_and_remedy() {
             "valid: beta, logit-normal",
         ],
     );
-    let text = base.replacen("family = \"beta\"", "family = \"uniform\"", 1);
+    let text = base.replace(
+        "[prior.cure_fraction]\nfamily = \"beta\"",
+        "[prior.cure_fraction]\nfamily = \"uniform\"",
+    );
     let spec = write(d.path(), "uniform.toml", &text);
     assert_rejected(
         d.path(),
