@@ -550,3 +550,46 @@ fn bad_cure_fraction_input_names_file_line_key_and_remedy() {
         &["prior.cure_fraction.alpha", "-1"],
     );
 }
+
+#[test]
+fn logit_normal_cure_fraction_is_the_normal_cure_logit() {
+    // A logit-normal(μ, σ) prior on the cured fraction π is a normal(μ, σ)
+    // prior on logit π (the definition of the logit-normal): the mixture-cure
+    // starter fitted either way draws the same π (logistic of the same
+    // normal draws), so the fitted numbers are the same bit for bit.
+    let d = tempfile::tempdir().unwrap();
+    let starter = SHIPPED[0].1.replace("draws = 20000", "draws = 2000");
+    let i = 1 + starter.find("\n[prior.cure_logit]").unwrap();
+    let j = i + starter[i..].find("\n\n").unwrap();
+    let ln = format!(
+        "{}[prior.cure_fraction]\nfamily = \"logit-normal\"\nmu = {{ fit = [-4.0, 4.0] }}\nsigma = {{ fit = [0.05, 2.5] }}{}",
+        &starter[..i],
+        &starter[j..]
+    );
+    let mut fitted = Vec::new();
+    for (name, text) in [("logit", starter.clone()), ("fraction", ln)] {
+        let spec = write(d.path(), &format!("{name}.toml"), &text);
+        let out = d.path().join(name);
+        let r = run(&[
+            "fit",
+            spec.to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+            "-q",
+        ]);
+        assert!(r.status.success(), "{name}: {}", stderr(&r));
+        let v = json(&out.join("fit.json"));
+        let h = &v["hyperparameters"];
+        let (m, s) = match name {
+            "logit" => ("cure_logit.mean", "cure_logit.sd"),
+            _ => ("cure_fraction.mu", "cure_fraction.sigma"),
+        };
+        fitted.push([
+            h[m].as_f64().unwrap(),
+            h[s].as_f64().unwrap(),
+            h["log_scale.mean"].as_f64().unwrap(),
+            h["shape.meanlog"].as_f64().unwrap(),
+        ]);
+    }
+    assert_eq!(fitted[0], fitted[1]);
+}
