@@ -1,5 +1,6 @@
 //! Benchmarks of the hot path: one objective evaluation of the README example
-//! (mixture-cure, 3 beliefs, 20,000 draws), of the piecewise-hazard starter, and a
+//! (mixture-cure, 3 beliefs, 20,000 draws; also with a beta prior on the cured
+//! fraction instead of cure_logit), of the piecewise-hazard starter, and a
 //! whole fit of each demo scenario.
 //! Run: `cargo bench --bench objective`. Figures: BENCHMARKS.md.
 
@@ -38,6 +39,36 @@ fn objective(c: &mut Criterion) {
         })
     });
     g.finish();
+    // The same starter with a beta prior on the cured fraction itself
+    // ([prior.cure_fraction]): one exact beta quantile per draw and evaluation.
+    let text = EXAMPLE.replace(
+        "[prior.cure_logit]",
+        "[prior.cure_fraction]\nfamily = \"beta\"\nalpha = { fit = [0.5, 60.0] }\nbeta = { fit = [0.5, 60.0] }\n[unused_cure_logit]",
+    );
+    let text = cut_table(&text, "[unused_cure_logit]");
+    let spec = parse(&text, None, &Overrides::default()).expect("cure_fraction example parses");
+    let obj = Objective::fitting(&spec);
+    let eta0 = obj.eta(&obj.full0);
+    let mut g = c.benchmark_group("objective");
+    g.throughput(Throughput::Elements(spec.draws as u64));
+    g.bench_function(
+        "mixture-cure 3 beliefs 20k draws, cure_fraction beta",
+        |b| {
+            b.iter(|| {
+                k += 1;
+                let eta: Vec<f64> = eta0.iter().map(|e| e + 1e-3 * ((k % 7) as f64)).collect();
+                black_box(obj.cost(&eta))
+            })
+        },
+    );
+    g.finish();
+}
+
+/// `text` without the table that starts at `head` (up to the next blank line).
+fn cut_table(text: &str, head: &str) -> String {
+    let i = text.find(head).expect("table present");
+    let j = i + text[i..].find("\n\n").expect("blank line after the table");
+    format!("{}{}", &text[..i], &text[j + 1..])
 }
 
 fn whole_fits(c: &mut Criterion) {

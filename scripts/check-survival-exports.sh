@@ -8,9 +8,10 @@
 #   3. when R with brms is installed (Debian: apt-get install r-cran-brms), run
 #      brms::validate_prior and make_stancode on the brms export of a
 #      mixture-cure and a promotion-time fit with the documented formula and
-#      custom family (docs/brms/cure-families.R); with BRMS_SAMPLE=1 (needs
-#      rstan and Debian's r-cran-bh) also sample the prior in brms and print
-#      the implied S(36).
+#      custom family (docs/brms/cure-families.R), and of the two cure starters
+#      with a beta prior on the cured fraction (cure_formula_*_fraction); with
+#      BRMS_SAMPLE=1 (needs rstan and Debian's r-cran-bh) also sample the prior
+#      in brms and print the implied S(36).
 # Usage: scripts/check-survival-exports.sh [--install]   (--install: create the venv)
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -36,9 +37,22 @@ sed -e 's/latency = "weibull".*/latency = "gengamma"\ngengamma_q = -0.4/' \
     -e 's/mean = { fit = \[-1.5, 1.0\] }/mean = { fit = [-1.0, 1.5] }/' \
     -e 's/quantity = "hazard_ratio".*/quantity = "hazard_ratio"\nhorizon = 12/' \
     model-templates/parametric-survival.toml > "$GG"
+# The two cure starters with a beta prior on the cured fraction itself
+# ([prior.cure_fraction], both parameters fitted) instead of their cure table.
+for name in mixture-cure promotion-time-cure; do
+  "$PY" - "model-templates/$name.toml" "$OUT/$name-fraction.toml" <<'PYEOF'
+import re, sys
+s = open(sys.argv[1]).read()
+s = re.sub(r"(?m)^\[prior\.(cure_logit|log_theta)\][^\n]*\n(?:(?!\[)[^\n]+\n)*",
+           '[prior.cure_fraction]\nfamily = "beta"\nalpha = { fit = [0.5, 60.0] }\nbeta = { fit = [0.5, 60.0] }\n', s, count=1)
+assert "[prior.cure_fraction]" in s
+open(sys.argv[2], "w").write(s)
+PYEOF
+done
 for spec in model-templates/mixture-cure.toml model-templates/promotion-time-cure.toml \
             model-templates/parametric-survival.toml model-templates/piecewise-hazard.toml \
-            demo-data/two-arm-hazard-ratio.toml "$GG"; do
+            demo-data/two-arm-hazard-ratio.toml "$GG" \
+            "$OUT/mixture-cure-fraction.toml" "$OUT/promotion-time-cure-fraction.toml"; do
   name=$(basename "$spec" .toml)
   "$BIN" fit "$spec" --out "$OUT/$name" --quiet
   "$BIN" export "$OUT/$name" --to stan --with-likelihood --out "$OUT/$name/model.stan" --quiet
@@ -50,8 +64,8 @@ for spec in model-templates/mixture-cure.toml model-templates/promotion-time-cur
       "$OUT/$name/model.stan" "$OUT/$name/model.py")
 done
 if command -v Rscript >/dev/null && Rscript -e 'library(brms)' >/dev/null 2>&1; then
-  for name in mixture-cure promotion-time-cure; do
-    kind=mixture; [ "$name" = promotion-time-cure ] && kind=promotion
+  for name in mixture-cure promotion-time-cure mixture-cure-fraction promotion-time-cure-fraction; do
+    kind=mixture; [[ "$name" = promotion-time-cure* ]] && kind=promotion
     echo "== brms: $name with docs/brms/cure-families.R"
     Rscript - "$ROOT/docs/brms/cure-families.R" "$OUT/$name/priors.R" "$kind" "${BRMS_SAMPLE:-0}" <<'REOF'
 suppressMessages(library(brms))
@@ -60,6 +74,11 @@ source(args[1]); source(args[2]); kind <- args[3]
 d <- data.frame(time = c(3, 12.5, 20, 36, 48), event = c(1L, 1L, 0L, 1L, 0L))
 # The documented formula and custom family (docs/survival.md, docs/brms/cure-families.R).
 f <- if (kind == "mixture") cure_formula_mixture else cure_formula_promotion
+if (any(grepl("cureFraction", priors$nlpar))) {
+  # A prior on the cured fraction: the documented formulas with ~ logit(cureFraction)
+  # or ~ log(-log(cureFraction)).
+  f <- if (kind == "mixture") cure_formula_mixture_fraction else cure_formula_promotion_fraction
+}
 fam <- if (kind == "mixture") cure_family_mixture else cure_family_promotion
 v <- validate_prior(priors, f, data = d, family = fam, stanvars = cure_stanvars)
 cat("validate_prior: ok,", nrow(v), "rows; nlpars", paste(unique(v$nlpar[v$nlpar != ""]), collapse = ", "), "\n")
@@ -71,7 +90,13 @@ if (args[4] == "1") {
              sample_prior = "only", chains = 2, iter = 6000, warmup = 1000, seed = 1,
              refresh = 0, silent = 2)
   dr <- as_draws_df(fit)
-  a <- dr[[grep("^b_(cureLogit|logTheta)_Intercept$", names(dr))]]
+  if ("b_cureFraction_Intercept" %in% names(dr)) {
+    p0 <- dr$b_cureFraction_Intercept
+    a <- if (kind == "mixture") qlogis(p0) else log(-log(p0))
+    cat("brms prior cure fraction 10/50/90 %:", format(quantile(p0, c(.1, .5, .9)), digits = 3), "\n")
+  } else {
+    a <- dr[[grep("^b_(cureLogit|logTheta)_Intercept$", names(dr))]]
+  }
   su <- exp(-(36 / exp(dr$b_logScale_Intercept))^dr$b_nlShape_Intercept)
   s <- if (kind == "mixture") plogis(a) + (1 - plogis(a)) * su else exp(-exp(a) * (1 - su))
   cat("brms prior S(36) 10/50/90 %:", format(quantile(s, c(.1, .5, .9)), digits = 3), "\n")

@@ -66,6 +66,12 @@ def surv(template, latency, draws, x, h, q=None, cuts=None):
     su = {"weibull": np.exp(-np.exp(z)), "exponential": np.exp(-np.exp(z)),
           "lognormal": stats.norm.sf(z), "loglogistic": 1 / (1 + np.exp(z)),
           "gengamma": gengamma_sf(z, q) if q is not None else None}[latency]
+    if "cure_fraction" in draws:
+        # A prior on the cured fraction pi itself: cure_logit = logit(pi),
+        # log_theta = log(-log(pi)) (docs/survival.md).
+        pi0 = draws["cure_fraction"]
+        base = np.log(pi0) - np.log1p(-pi0) if template == "mixture-cure" else np.log(-np.log(pi0))
+        draws = {**draws, "cure_logit": base, "log_theta": base}
     if template == "mixture-cure":
         eta = draws["cure_logit"] + sum(draws.get(f"cure_effect_{c}", 0) * v for c, v in x.items())
         pi = 1 / (1 + np.exp(-eta))

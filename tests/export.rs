@@ -915,6 +915,38 @@ fn survival_cases() -> Vec<(&'static str, String)> {
             .replace("\"gengamma\"", "\"gengamma\"\ngengamma_q = 0.8"),
         ),
         (
+            "mixture-weibull-cure-fraction-beta",
+            survival_spec(
+                "mixture-cure",
+                "weibull",
+                &[
+                    "[prior.cure_fraction]\nfamily = \"beta\"\nalpha = 4.0\nbeta = 9.0\n",
+                    LOG_SCALE,
+                    SHAPE,
+                    &eff("cure_effect_arm"),
+                    &eff("hazard_effect_arm"),
+                ]
+                .concat(),
+                SURV_BELIEF,
+            ),
+        ),
+        (
+            "promotion-lognormal-cure-fraction-logitnormal",
+            survival_spec(
+                "promotion-time-cure",
+                "lognormal",
+                &[
+                    "[prior.cure_fraction]\nfamily = \"logit-normal\"\nmu = -0.8\nsigma = 0.5\n",
+                    LOG_SCALE,
+                    SHAPE,
+                    &eff("theta_effect_arm"),
+                    &eff("latency_effect_arm"),
+                ]
+                .concat(),
+                SURV_BELIEF,
+            ),
+        ),
+        (
             "parametric-exponential-ph",
             survival_spec(
                 "parametric-survival",
@@ -966,7 +998,9 @@ fn split_complete(code: &str, comment: &str) -> (String, String) {
         if t.starts_with(&format!("{comment} likelihood:")) {
             in_lik = true;
         }
-        let about = t.starts_with(comment)
+        // Parameterisation comments start the file (a family's note inside a
+        // block, e.g. a logit-normal's, belongs to the prior).
+        let about = line.starts_with(comment)
             && !t.starts_with(&format!("{comment} Prior exported"))
             && !["fit:", "spec sha256", "seed ", "A fitted prior"]
                 .iter()

@@ -103,3 +103,169 @@ fn real_valued_families_are_accepted_as_a_regression_intercept() {
         assert!(o.status.success(), "{}: {}", f.name, common::stderr(&o));
     }
 }
+
+/// Where a parameter takes its values, for the support rule.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum On {
+    Real,
+    Positive,
+    /// (0, ∞) and, by role, uniform (survival `shape`).
+    PositiveOrUniform,
+    Unit,
+}
+
+/// Every (template starter, parameter, where it lives) whose `[prior.*]` table
+/// takes a family; `cure_fraction` replaces the cure table of the two cure
+/// templates.
+const SLOTS: [(&str, &str, &str, On); 21] = [
+    ("linear", "intercept", "intercept", On::Real),
+    ("linear", "sigma", "sigma", On::Positive),
+    ("linear-multilevel", "sigma", "sigma", On::Positive),
+    (
+        "linear-multilevel",
+        "cluster_sd",
+        "cluster_sd",
+        On::Positive,
+    ),
+    (
+        "logistic-multilevel",
+        "cluster_sd",
+        "cluster_sd",
+        On::Positive,
+    ),
+    ("logistic-multilevel", "x1", "x1", On::Real),
+    (
+        "poisson-multilevel",
+        "cluster_sd",
+        "cluster_sd",
+        On::Positive,
+    ),
+    ("poisson", "intercept", "intercept", On::Real),
+    ("mixture-cure", "cure_logit", "cure_logit", On::Real),
+    ("mixture-cure", "cure_logit", "cure_fraction", On::Unit),
+    ("mixture-cure", "log_scale", "log_scale", On::Real),
+    ("mixture-cure", "shape", "shape", On::PositiveOrUniform),
+    ("promotion-time-cure", "log_theta", "log_theta", On::Real),
+    (
+        "promotion-time-cure",
+        "log_theta",
+        "cure_fraction",
+        On::Unit,
+    ),
+    (
+        "promotion-time-cure",
+        "shape",
+        "shape",
+        On::PositiveOrUniform,
+    ),
+    (
+        "parametric-survival",
+        "shape",
+        "shape",
+        On::PositiveOrUniform,
+    ),
+    ("parametric-survival", "log_scale", "log_scale", On::Real),
+    (
+        "parametric-survival",
+        "hazard_effect_arm",
+        "hazard_effect_arm",
+        On::Real,
+    ),
+    ("piecewise-hazard", "log_hazard_1", "log_hazard_1", On::Real),
+    (
+        "piecewise-hazard",
+        "hazard_walk_sd",
+        "hazard_walk_sd",
+        On::Positive,
+    ),
+    (
+        "piecewise-hazard",
+        "hazard_effect_arm",
+        "hazard_effect_arm",
+        On::Real,
+    ),
+];
+
+fn starter(name: &str) -> &'static str {
+    match name {
+        "linear" => include_str!("../model-templates/linear.toml"),
+        "linear-multilevel" => include_str!("../model-templates/linear-multilevel.toml"),
+        "logistic-multilevel" => include_str!("../model-templates/logistic-multilevel.toml"),
+        "poisson-multilevel" => include_str!("../model-templates/poisson-multilevel.toml"),
+        "poisson" => include_str!("../model-templates/poisson.toml"),
+        "mixture-cure" => include_str!("../model-templates/mixture-cure.toml"),
+        "promotion-time-cure" => include_str!("../model-templates/promotion-time-cure.toml"),
+        "parametric-survival" => include_str!("../model-templates/parametric-survival.toml"),
+        "piecewise-hazard" => include_str!("../model-templates/piecewise-hazard.toml"),
+        other => panic!("no starter {other}"),
+    }
+}
+
+/// The support rule over templates × parameters × families (checked through
+/// the library's spec parser): a parameter on ℝ takes every family on the real
+/// line or on an interval its prior sets, one on (0, ∞) every family on (0, ∞)
+/// (half-Cauchy, half-t and log-logistic included), a probability every family
+/// on (0, 1); a refused family's error says why (its support).
+#[test]
+fn support_rule_over_templates_parameters_and_families() {
+    use priorsmith::dist::Support;
+    let mut accepted_on = std::collections::BTreeMap::new();
+    for (template, table, param, on) in SLOTS {
+        let pts: &[(f64, f64)] = match on {
+            On::Real => &[(0.1, -1.0), (0.5, 0.0), (0.9, 1.0)],
+            On::Positive | On::PositiveOrUniform => &[(0.1, 0.5), (0.5, 1.0), (0.9, 2.0)],
+            On::Unit => &[(0.1, 0.15), (0.5, 0.25), (0.9, 0.4)],
+        };
+        for f in FAMILIES.iter().copied() {
+            let want = match on {
+                On::Real => f.real_valued(),
+                On::Positive => f.support == Support::Positive,
+                On::PositiveOrUniform => f.support == Support::Positive || f.name == "uniform",
+                On::Unit => f.support == Support::Unit,
+            };
+            let text = with_prior(starter(template), table, &prior_table(param, f, pts));
+            let got = priorsmith::spec::parse(&text, None, &Default::default());
+            match (&got, want) {
+                (Ok(_), true) => {
+                    accepted_on
+                        .entry((template, param))
+                        .or_insert_with(Vec::new)
+                        .push(f.name);
+                }
+                (Err(e), false) => {
+                    let msg = e.to_string();
+                    assert!(
+                        msg.contains(&format!("family \"{}\" is not available", f.name))
+                            && msg.contains("its support is"),
+                        "{template} {param} {}: refused without the reason: {msg}",
+                        f.name
+                    );
+                }
+                (Ok(_), false) => panic!("{template} {param}: {} accepted", f.name),
+                (Err(e), true) => panic!("{template} {param}: {} refused: {e}", f.name),
+            }
+        }
+    }
+    // The families the issue names, by name (so a change of the rule is seen).
+    let has = |t: &str, p: &str, f: &str| accepted_on[&(t, p)].contains(&f);
+    for (t, p) in [
+        ("linear", "sigma"),
+        ("linear-multilevel", "cluster_sd"),
+        ("logistic-multilevel", "cluster_sd"),
+        ("poisson-multilevel", "cluster_sd"),
+        ("mixture-cure", "shape"),
+        ("piecewise-hazard", "hazard_walk_sd"),
+    ] {
+        for f in [
+            "half-cauchy",
+            "half-student-t",
+            "loglogistic",
+            "half-normal",
+        ] {
+            assert!(has(t, p, f), "{t} {p}: {f} refused");
+        }
+    }
+    for t in ["mixture-cure", "promotion-time-cure"] {
+        assert_eq!(accepted_on[&(t, "cure_fraction")], ["beta", "logit-normal"]);
+    }
+}

@@ -67,3 +67,23 @@ cure_formula_promotion <- bf(
   logTheta ~ 1, logScale ~ 1, nlShape ~ 1,
   nl = TRUE
 )
+
+# With a prior on the cured fraction itself ([prior.cure_fraction]; the brms
+# export bounds cureFraction by lb = 0, ub = 1): the same families, mu written
+# from it, logit(pi) for the mixture cure and log(theta) = log(-log(pi)) for the
+# promotion-time cure. A logit-normal prior comes as cureFractionLogit (normal,
+# unbounded): there, write cureFractionLogit for logit(cureFraction) and
+# log(-log_inv_logit(cureFractionLogit)) for log(-log(cureFraction)), and
+# cureFractionLogit ~ 1 for cureFraction ~ 1.
+cure_formula_mixture_fraction <- bf(
+  time | vint(event) ~ logit(cureFraction),
+  nlf(lscale ~ logScale), nlf(kshape ~ nlShape),
+  cureFraction ~ 1, logScale ~ 1, nlShape ~ 1,
+  nl = TRUE
+)
+cure_formula_promotion_fraction <- bf(
+  time | vint(event) ~ log(-log(cureFraction)),
+  nlf(lscale ~ logScale), nlf(kshape ~ nlShape),
+  cureFraction ~ 1, logScale ~ 1, nlShape ~ 1,
+  nl = TRUE
+)

@@ -101,11 +101,15 @@ impl PriorSet {
                     ),
                     None => String::new(),
                 };
+                let mut hint = choice_hint(name, &choices);
+                if name == "uniform" && choices.contains(&"beta") {
+                    hint.push_str(" (a flat prior on (0, 1) is beta with alpha = 1, beta = 1)");
+                }
                 ctx.err(
                     &fp,
                     format!("family \"{name}\" is not available for {param}{why}"),
                 )
-                .with_hint(choice_hint(name, &choices))
+                .with_hint(hint)
             })?;
         let mut keys = vec!["family"];
         keys.extend_from_slice(family.params);

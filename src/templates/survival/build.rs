@@ -4,6 +4,10 @@
 
 use super::*;
 
+/// The table of a prior on the cured fraction itself (instead of its logit or
+/// of log θ).
+pub(crate) const CURE_FRACTION: &str = "cure_fraction";
+
 /// `[model]` table of a survival template, read into a model. `cure_option`:
 /// whether the template takes `cure = true | false` (the mixture cure, where
 /// `false` is parametric survival kept for older belief files).
@@ -132,39 +136,73 @@ pub(crate) fn build(
         Cure::PromotionTime => ("log_theta", "theta_effect"),
         _ => ("cure_logit", "cure_effect"),
     };
-    let cure = match kind {
-        Cure::Mixture => Some(priors.add(
-            ctx,
-            "cure_logit",
-            &real,
-            "family = \"normal\"\n  mean = { fit = [-4.0, 4.0] }\n  sd = { fit = [0.05, 2.5] }",
-        )?),
-        Cure::PromotionTime => Some(priors.add(
-            ctx,
-            "log_theta",
-            &real,
-            "family = \"normal\"\n  mean = { fit = [-3.0, 3.0] }\n  sd = { fit = [0.05, 2.0] }",
-        )?),
+    let (cure, cure_on_fraction) = match kind {
+        Cure::Mixture | Cure::PromotionTime => {
+            let (eta_example, eta_about) = match kind {
+                Cure::PromotionTime => (
+                    "family = \"normal\"\n  mean = { fit = [-3.0, 3.0] }\n  sd = { fit = [0.05, 2.0] }",
+                    "log_theta = ln(−ln cure_fraction)",
+                ),
+                _ => (
+                    "family = \"normal\"\n  mean = { fit = [-4.0, 4.0] }\n  sd = { fit = [0.05, 2.5] }",
+                    "cure_logit = logit(cure_fraction)",
+                ),
+            };
+            if ctx.has_prior(CURE_FRACTION) {
+                if ctx.has_prior(cure_param) {
+                    // Mark both used so this message is the one reported.
+                    let _ = ctx.prior_table(cure_param, "");
+                    let _ = ctx.prior_table(CURE_FRACTION, "");
+                    return Err(ctx
+                        .err(
+                            &[key("prior"), key(CURE_FRACTION)],
+                            format!(
+                                "[prior.{CURE_FRACTION}] and [prior.{cure_param}] both given: \
+                                 they are two scales of one parameter ({eta_about})"
+                            ),
+                        )
+                        .with_hint(format!(
+                            "give one: [prior.{CURE_FRACTION}] (a family on (0, 1), e.g. beta) \
+                             or [prior.{cure_param}] (a family on the real line)"
+                        )));
+                }
+                let k = priors.add(
+                    ctx,
+                    CURE_FRACTION,
+                    &crate::templates::priors::families_on(crate::dist::Support::Unit),
+                    "family = \"beta\"\n  alpha = { fit = [0.5, 60.0] }\n  beta = { fit = [0.5, 60.0] }",
+                )?;
+                (Some(k), true)
+            } else {
+                (
+                    Some(priors.add(ctx, cure_param, &real, eta_example)?),
+                    false,
+                )
+            }
+        }
         Cure::None => {
-            if ctx.has_prior("cure_logit") {
+            for table in ["cure_logit", CURE_FRACTION] {
+                if !ctx.has_prior(table) {
+                    continue;
+                }
                 // Mark it used so the message below is the precise one.
-                let _ = ctx.prior_table("cure_logit", "");
+                let _ = ctx.prior_table(table, "");
                 let (msg, hint) = if info.name == "mixture-cure" {
                     (
-                        "[prior.cure_logit] given but [model] cure = false",
+                        format!("[prior.{table}] given but [model] cure = false"),
                         "remove the table, or set cure = true",
                     )
                 } else {
                     (
-                        "[prior.cure_logit] given but parametric survival has no cured fraction",
+                        format!(
+                            "[prior.{table}] given but parametric survival has no cured fraction"
+                        ),
                         "remove the table, or use template = \"mixture-cure\"",
                     )
                 };
-                return Err(ctx
-                    .err(&[key("prior"), key("cure_logit")], msg)
-                    .with_hint(hint));
+                return Err(ctx.err(&[key("prior"), key(table)], msg).with_hint(hint));
             }
-            None
+            (None, false)
         }
     };
     let log_scale = priors.add(
@@ -188,7 +226,12 @@ pub(crate) fn build(
         Some(priors.add(
             ctx,
             "shape",
-            &crate::dist::names_where(|f| f.suits(crate::dist::Role::LatencyShape)),
+            // The support rule (every family on (0, ∞): half-Cauchy, half-t and
+            // log-logistic too), and the families offered by role (uniform).
+            &crate::dist::names_where(|f| {
+                f.support == crate::dist::Support::Positive
+                    || f.suits(crate::dist::Role::LatencyShape)
+            }),
             "family = \"lognormal\"\n  meanlog = { fit = [-1.0, 1.0] }\n  sdlog = 0.25",
         )?)
     };
@@ -265,6 +308,7 @@ pub(crate) fn build(
         covariates,
         priors,
         cure,
+        cure_on_fraction,
         log_scale,
         shape,
         cure_effects,

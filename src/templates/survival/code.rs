@@ -58,14 +58,23 @@ impl Survival {
         s
     }
 
-    /// η (cure logit or ln θ) per patient.
+    /// η (cure logit or ln θ) per patient; `pymc` picks the PyMC syntax for a
+    /// prior on the cured fraction π (η = logit π, or ln θ = ln(−ln π)).
     fn cure_expr(
         &self,
         x: impl Fn(&str) -> String,
         prior: &dyn Fn(usize) -> String,
+        pymc: bool,
     ) -> Option<String> {
         let c = self.cure?;
-        let mut s = prior(c);
+        let p = prior(c);
+        let mut s = match (self.cure_on_fraction, self.cure_kind, pymc) {
+            (false, _, _) => p,
+            (true, Cure::PromotionTime, false) => format!("log(-log({p}))"),
+            (true, Cure::PromotionTime, true) => format!("pt.log(-pt.log({p}))"),
+            (true, _, false) => format!("logit({p})"),
+            (true, _, true) => format!("pt.log({p}) - pt.log1p(-{p})"),
+        };
         for (cv, e) in self.covariates.iter().zip(&self.cure_effects) {
             if let Some(i) = e {
                 s.push_str(&format!(" + {} * {}", prior(*i), x(cv)));
@@ -119,7 +128,7 @@ impl Survival {
             data_about(unit, &self.covariates),
         ];
         let name = |i: usize| self.priors.priors[i].param.clone();
-        if let Some(eta) = self.cure_expr(|c| c.to_string(), &name) {
+        if let Some(eta) = self.cure_expr(|c| c.to_string(), &name, false) {
             v.insert(2, format!("eta = {eta}"));
         }
         v
@@ -186,7 +195,7 @@ impl Survival {
             Cure::Mixture => {
                 model.push(format!(
                     "  real eta = {};",
-                    self.cure_expr(x, &name).unwrap_or_default()
+                    self.cure_expr(x, &name, false).unwrap_or_default()
                 ));
                 model.push("  if (event[n] == 1) {".into());
                 model.push(format!(
@@ -201,7 +210,7 @@ impl Survival {
             Cure::PromotionTime => {
                 model.push(format!(
                     "  real eta = {};",
-                    self.cure_expr(x, &name).unwrap_or_default()
+                    self.cure_expr(x, &name, false).unwrap_or_default()
                 ));
                 model.push("  // ln S = -theta F = theta * expm1(ln S_u)".into());
                 model.push(format!(
@@ -275,7 +284,7 @@ impl Survival {
             Cure::Mixture => {
                 m.push(format!(
                     "eta = {}",
-                    self.cure_expr(x, &name).unwrap_or_default()
+                    self.cure_expr(x, &name, true).unwrap_or_default()
                 ));
                 m.push("log_cure, log_uncured = -pt.log1pexp(-eta), -pt.log1pexp(eta)".into());
                 m.push("loglik = pt.switch(pt.eq(event, 1), log_uncured + log_dens, pt.logaddexp(log_cure, log_uncured + log_surv))".into());
@@ -283,7 +292,7 @@ impl Survival {
             Cure::PromotionTime => {
                 m.push(format!(
                     "eta = {}",
-                    self.cure_expr(x, &name).unwrap_or_default()
+                    self.cure_expr(x, &name, true).unwrap_or_default()
                 ));
                 m.push(
                     "loglik = pt.exp(eta) * pt.expm1(log_surv) + event * (eta + log_dens)".into(),
@@ -347,6 +356,9 @@ pub static BRMS_CURE: crate::templates::BrmsLayout = crate::templates::BrmsLayou
         "   nlf(lscale ~ logScale), nlf(kshape ~ nlShape), cureLogit ~ 1, logScale ~ 1,",
         "   nlShape ~ 1, nl = TRUE) (logTheta for the promotion-time cure). For other latencies",
         "write your own, or use `export --to stan --with-likelihood` for the complete model.",
+        "A prior on cure_fraction (the cured fraction, bounded by lb = 0, ub = 1) enters that",
+        "formula as ~ logit(cureFraction) (mixture) or ~ log(-log(cureFraction)) (promotion",
+        "time) with cureFraction ~ 1: cure_formula_mixture_fraction, cure_formula_promotion_fraction.",
         "Parameters named like a brms distributional parameter get the prefix nl (shape → nlShape).",
         "Pass `prior = priors` to brm().",
     ],

@@ -3,7 +3,9 @@
 //! the others have latency survival S_u. Population survival
 //! S(t) = π + (1 − π)·S_u(t), with π = logistic(cure_logit + x'β_cure) and the
 //! latency of [`super::latency`] (scale λ = exp(log_scale + x'β_latency −
-//! x'β_hazard/k), shape k).
+//! x'β_hazard/k), shape k). The prior may instead be on the cured fraction
+//! at the reference profile (`[prior.cure_fraction]`, a family on (0, 1)):
+//! cure_logit = logit of it.
 //!
 //! Quantities: the cure fraction; survival and event probability at a horizon;
 //! the population median (+∞, "never reached", when π ≥ ½); the median of the
@@ -28,6 +30,10 @@ pub static INFO: TemplateInfo = TemplateInfo {
         (
             "cure_logit",
             "logit of the cured fraction at the reference profile",
+        ),
+        (
+            "cure_fraction",
+            "instead of cure_logit: the cured fraction itself at the reference profile (a family on (0, 1), e.g. beta)",
         ),
         (
             "log_scale",

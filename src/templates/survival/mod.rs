@@ -16,6 +16,13 @@
 //!   cure fraction exp(−θ);
 //! * parametric survival: S(t) = S_u(t).
 //!
+//! The cure prior may instead be given on the cured fraction π at the
+//! reference profile itself (`[prior.cure_fraction]`, any family on (0, 1) by
+//! the support rule, e.g. beta or logit-normal): the mixture cure then uses
+//! logit π, the promotion-time cure θ = −ln π, and cure covariate effects stay
+//! on the logit and log θ scales. Where no cure effect moves it (the reference
+//! profile) the drawn π is the model's cured fraction as drawn.
+//!
 //! Covariate effects on the time scale: `latency_effect_<c>` is an
 //! accelerated-failure-time effect (log time ratio: ln λ moves by +β), for every
 //! latency; `hazard_effect_<c>` is a proportional-hazards effect (log hazard
@@ -201,8 +208,12 @@ pub struct Survival {
     pub time_unit: String,
     pub covariates: Vec<String>,
     priors: PriorSet,
-    /// cure_logit (mixture) or log_theta (promotion time).
+    /// cure_logit (mixture) or log_theta (promotion time), or with
+    /// `cure_on_fraction` the cured fraction π at the reference profile.
     cure: Option<usize>,
+    /// Whether the cure prior is on π itself (`[prior.cure_fraction]`): the
+    /// model then uses logit π (mixture) or θ = −ln π (promotion time).
+    cure_on_fraction: bool,
     log_scale: usize,
     shape: Option<usize>,
     cure_effects: Vec<Option<usize>>,
@@ -224,6 +235,37 @@ impl Survival {
     fn at(&self, p: &[Vec<f64>], i: usize, x: &[f64]) -> (f64, f64, f64) {
         let k = self.shape.map_or(1.0, |s| p[s][i]);
         let c = match self.cure {
+            Some(c) if self.cure_on_fraction => {
+                let pi = p[c][i];
+                let moved = self
+                    .cure_effects
+                    .iter()
+                    .zip(x)
+                    .any(|(e, xj)| e.is_some() && *xj != 0.0);
+                if !moved {
+                    // At the reference profile (and wherever no cure effect
+                    // applies) the drawn fraction is used as drawn: θ = −ln π,
+                    // or π itself.
+                    match self.cure_kind {
+                        Cure::PromotionTime => -pi.ln(),
+                        _ => pi,
+                    }
+                } else {
+                    let mut eta = match self.cure_kind {
+                        Cure::PromotionTime => (-pi.ln()).ln(),
+                        _ => crate::numerics::logit(pi),
+                    };
+                    for (j, e) in self.cure_effects.iter().enumerate() {
+                        if let Some(e) = e {
+                            eta += x[j] * p[*e][i];
+                        }
+                    }
+                    match self.cure_kind {
+                        Cure::PromotionTime => eta.exp(),
+                        _ => logistic(eta),
+                    }
+                }
+            }
             Some(c) => {
                 let mut eta = p[c][i];
                 for (j, e) in self.cure_effects.iter().enumerate() {
@@ -538,6 +580,12 @@ impl Model for Survival {
         self.priors.statements(h, |p| match p {
             "cure_logit" => "logit of the cured fraction".to_string(),
             "log_theta" => "log promotion-time rate θ (cured fraction exp(−θ))".to_string(),
+            "cure_fraction" => match self.cure_kind {
+                Cure::PromotionTime => {
+                    "cured fraction at the reference profile (theta = -log of it)".to_string()
+                }
+                _ => "cured fraction at the reference profile (used as its logit)".to_string(),
+            },
             "log_scale" => format!("log latency scale ({unit})"),
             "shape" => "latency shape".to_string(),
             other => match other.strip_prefix("hazard_effect_") {

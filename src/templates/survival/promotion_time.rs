@@ -4,7 +4,9 @@
 //! S(t) = exp(−θ·F(t)), with θ = exp(log_theta + x'β_theta) the mean number of
 //! clonogenic cells and F = 1 − S_u the promotion-time distribution, any latency
 //! of [`super::latency`] (scale λ = exp(log_scale + x'β_latency −
-//! x'β_hazard/k), shape k). The cured fraction is S(∞) = exp(−θ).
+//! x'β_hazard/k), shape k). The cured fraction is S(∞) = exp(−θ); the prior
+//! may instead be on it at the reference profile (`[prior.cure_fraction]`, a
+//! family on (0, 1)), with log_theta = ln(−ln π).
 //!
 //! The population hazard is θ·f(t): a covariate on θ alone is a proportional-
 //! hazards effect, so `hazard_ratio` between profiles that differ only in θ is
@@ -26,6 +28,10 @@ pub static INFO: TemplateInfo = TemplateInfo {
         (
             "log_theta",
             "log of θ at the reference profile (cured fraction exp(−θ))",
+        ),
+        (
+            "cure_fraction",
+            "instead of log_theta: the cured fraction exp(−θ) itself at the reference profile (a family on (0, 1), e.g. beta)",
         ),
         (
             "log_scale",

@@ -291,6 +291,7 @@ fn fixed(cure_kind: Cure, latency: Latency) -> Survival {
         covariates: Vec::new(),
         priors: PriorSet::default(),
         cure: None,
+        cure_on_fraction: false,
         log_scale: 0,
         shape: None,
         cure_effects: Vec::new(),
@@ -391,5 +392,129 @@ fn promotion_time_medians() {
         let s = m.surv_pop(theta, ls, k, mu.ln());
         let cure = (-theta).exp();
         assert!(((s - cure) / (1.0 - cure) - 0.5).abs() < 1e-12, "{theta}");
+    }
+}
+
+/// A cure template with `[prior.cure_fraction]` of `family` (fixed
+/// parameters `params`), a cure effect of arm and beliefs on the cured fraction
+/// at both profiles and on survival at 24 months in the control arm.
+fn on_fraction(template: &str, effect: &str, family: &str, params: &str) -> String {
+    format!(
+        r#"
+title = "test"
+[model]
+template = "{template}"
+covariates = ["arm"]
+[simulation]
+draws = 4000
+seed = 9
+[profile.control]
+arm = 0
+[profile.treated]
+arm = 1
+[prior.cure_fraction]
+family = "{family}"
+{params}
+[prior.log_scale]
+family = "normal"
+mean = 2.5
+sd = 0.3
+[prior.shape]
+family = "lognormal"
+meanlog = 0.2
+sdlog = 0.2
+[prior.{effect}_arm]
+family = "normal"
+mean = 0.4
+sd = 0.3
+[[belief]]
+quantity = "cure_fraction"
+profile = "control"
+quantiles = {{ "0.1" = 0.2, "0.5" = 0.35, "0.9" = 0.55 }}
+[[belief]]
+quantity = "cure_fraction"
+profile = "treated"
+quantiles = {{ "0.1" = 0.2, "0.5" = 0.35, "0.9" = 0.55 }}
+[[belief]]
+quantity = "survival_prob"
+horizon = 24
+profile = "control"
+quantiles = {{ "0.1" = 0.3, "0.5" = 0.45, "0.9" = 0.6 }}
+"#
+    )
+}
+
+#[test]
+fn cure_fraction_prior_draw_is_the_models_cured_fraction() {
+    // At the reference profile the model's cured fraction is the prior's draw
+    // (mixture: exactly; promotion time: exp(−(−ln π)), one rounding); at the
+    // treated profile the cure effect β acts on the logit (odds π/(1 − π)
+    // multiplied by e^β; Farewell 1982) or on ln θ (cured fraction
+    // exp(−θe^β) = π^(e^β); Chen, Ibrahim & Sinha 1999, §2), recomputed here
+    // from the base columns; survival at 24 months from the model formulas.
+    for (family, params) in [
+        ("beta", "alpha = 4.0\nbeta = 9.0"),
+        ("logit-normal", "mu = -0.8\nsigma = 0.6"),
+    ] {
+        for (template, effect) in [
+            ("mixture-cure", "cure_effect"),
+            ("promotion-time-cure", "theta_effect"),
+        ] {
+            let (_, out, cols) = draws(&on_fraction(template, effect, family, params));
+            let prior = crate::dist::build(
+                family,
+                &params
+                    .lines()
+                    .map(|l| l.split('=').nth(1).unwrap().trim().parse().unwrap())
+                    .collect::<Vec<f64>>(),
+            )
+            .unwrap()
+            .unwrap();
+            let promo = template == "promotion-time-cure";
+            for i in 0..out[0].len() {
+                let pi = prior.from_base(cols[0][i]);
+                assert!(pi > 0.0 && pi < 1.0);
+                if promo {
+                    assert!((out[0][i] - pi).abs() < 1e-12 * pi.max(1e-3), "{i}");
+                } else {
+                    assert_eq!(out[0][i], pi, "{template} {family} draw {i}");
+                }
+                let b = 0.4 + 0.3 * cols[3][i];
+                let treated = out[1][i];
+                if promo {
+                    let want = pi.powf(b.exp());
+                    assert!((treated - want).abs() < 1e-12, "{i}: {treated} vs {want}");
+                } else {
+                    let odds = treated / (1.0 - treated);
+                    let want = pi / (1.0 - pi) * b.exp();
+                    assert!((odds / want - 1.0).abs() < 1e-12, "{i}: {odds} vs {want}");
+                }
+                let lam = (2.5 + 0.3 * cols[1][i]).exp();
+                let k = (0.2 + 0.2 * cols[2][i]).exp();
+                let su = (-(24.0 / lam).powf(k)).exp();
+                let s = if promo {
+                    pi.powf(1.0 - su) // exp(−θF) with θ = −ln π
+                } else {
+                    pi + (1.0 - pi) * su
+                };
+                assert!((out[2][i] - s).abs() < 1e-12, "{i}: {} vs {s}", out[2][i]);
+            }
+        }
+    }
+}
+
+#[test]
+fn logit_round_trip_of_a_drawn_cure_fraction() {
+    // The mixture cure at a profile its cure effect moves goes through
+    // logit π: logistic(logit(π)) returns π to 1e-12 over the draws of a
+    // beta(4, 9) and of beta(0.5, 0.5) (mass near 0 and 1).
+    use crate::numerics::{logistic, logit};
+    for (a, b) in [(4.0, 9.0), (0.5, 0.5)] {
+        let d = crate::dist::build("beta", &[a, b]).unwrap().unwrap();
+        let u = crate::rng::Plan::fit(7, crate::rng::Points::Independent).uniforms(0, 4000);
+        for x in u {
+            let pi = d.from_base(x);
+            assert!((logistic(logit(pi)) - pi).abs() < 1e-12, "{pi}");
+        }
     }
 }
