@@ -148,8 +148,11 @@ pub struct CoefPrior {
     /// column; empty when none did): their shared scale is 0, and R2D2's
     /// Dirichlet splits the explained variance over the other columns only.
     pub skip: Vec<bool>,
-    /// R2D2 with groups of covariates ([`super::groups`]).
+    /// R2D2 with groups of covariates ([`super::groups`]); with independent
+    /// priors per group, the same column grouping (no weights).
     pub groups: Option<super::groups::Grouping>,
+    /// Independent priors per group of covariates ([`super::indep`]).
+    pub indep: Option<Box<super::indep::Indep>>,
 }
 
 fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
@@ -158,18 +161,44 @@ fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
     p
 }
 
-/// Read `[prior.coefficients]`, pushing its hyperparameters onto `hypers`.
-pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
+/// Read `[prior.coefficients]`, pushing its hyperparameters onto `hypers`:
+/// one shared family, or independent priors per group of covariates
+/// ([`super::indep`]) when the table holds group tables and no `family`.
+/// `own`: the columns with priors of their own ([`super::own`]).
+pub fn parse(
+    ctx: &Ctx,
+    design: &Design,
+    hypers: &mut Vec<Hyper>,
+    own: &[usize],
+) -> Result<CoefPrior> {
     let t = ctx.prior_table("coefficients", EXAMPLE)?;
     let path = [key("prior"), key("coefficients")];
+    if let Some(c) = super::indep::parse(ctx, &path, t, design, hypers, own)? {
+        return Ok(c);
+    }
     let fam = t.get("family").ok_or_else(|| {
         ctx.err(&path, "[prior.coefficients] needs `family`")
             .with_hint(format!("e.g.\n  {EXAMPLE}"))
     })?;
-    let fname = ctx.string(&sub(&path, "family"), fam)?;
+    parse_family(ctx, &path, t, "coefficients", Some(design), hypers, fam)
+}
+
+/// One coefficient family from table `t` at `path` (its `family` value `fam`),
+/// hyperparameters named `{prefix}.<param>`; `design` is given where R2D2 may
+/// take `groups` (the shared prior, not a group's own).
+pub(super) fn parse_family(
+    ctx: &Ctx,
+    path: &[Seg],
+    t: &toml::Table,
+    prefix: &str,
+    design: Option<&Design>,
+    hypers: &mut Vec<Hyper>,
+    fam: &toml::Value,
+) -> Result<CoefPrior> {
+    let fname = ctx.string(&sub(path, "family"), fam)?;
     let kind = Kind::parse(fname).ok_or_else(|| {
         ctx.err(
-            &sub(&path, "family"),
+            &sub(path, "family"),
             format!("unknown coefficient prior \"{fname}\""),
         )
         .with_hint(crate::error::choice_hint(fname, &FAMILIES))
@@ -180,19 +209,22 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
     if hs {
         allowed.push("global");
     }
-    if kind == Kind::R2d2 {
+    if kind == Kind::R2d2 && design.is_some() {
         allowed.push("groups");
     }
-    ctx.check_keys(&path, t, &allowed)?;
+    if design.is_none() {
+        allowed.push("covariates");
+    }
+    ctx.check_keys(path, t, &allowed)?;
     let global_fixed =
         match t.get("global") {
             None => false,
-            Some(v) => match ctx.string(&sub(&path, "global"), v)? {
+            Some(v) => match ctx.string(&sub(path, "global"), v)? {
                 "half-cauchy" => false,
                 "fixed" => true,
                 other => return Err(ctx
                     .err(
-                        &sub(&path, "global"),
+                        &sub(path, "global"),
                         format!("unknown global prior \"{other}\""),
                     )
                     .with_hint(
@@ -205,9 +237,9 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
     let mut shape = 0.0;
     let mut inclusion_free = false;
     for (p, dom) in kind.params() {
-        let pp = sub(&path, p);
+        let pp = sub(path, p);
         let v = t.get(*p).ok_or_else(|| {
-            ctx.err(&path, format!("[prior.coefficients] ({fname}) needs `{p}`"))
+            ctx.err(path, format!("[prior.{prefix}] ({fname}) needs `{p}`"))
                 .with_hint(format!("e.g.\n  {}", kind.example()))
         })?;
         let hv = ctx.hyper_value(&pp, v)?;
@@ -249,11 +281,11 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
         }
         idx.push(hypers.len());
         names.push(*p);
-        hypers.push(Hyper::new(format!("coefficients.{p}"), hv));
+        hypers.push(Hyper::new(format!("{prefix}.{p}"), hv));
     }
-    let groups = match t.get("groups") {
-        Some(v) => Some(super::groups::parse(ctx, &path, v, design, hypers)?),
-        None => None,
+    let groups = match (t.get("groups"), design) {
+        (Some(v), Some(design)) => Some(super::groups::parse(ctx, path, v, design, hypers)?),
+        _ => None,
     };
     let cached = match kind {
         Kind::RegHorseshoe => false,
@@ -269,6 +301,7 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
         cached,
         skip: Vec::new(),
         groups,
+        indep: None,
     })
 }
 
@@ -343,7 +376,10 @@ impl SobolCols {
         let z = (0..cols.len())
             .map(|k| plan.normals(COEF_SOBOL_STREAM + k as u64, n))
             .collect();
-        let u = if prior.local_from_uniform(0.5).is_some() || prior.r2d2_half() {
+        let u = if prior.local_from_uniform(0.5).is_some()
+            || prior.r2d2_half()
+            || prior.indep.is_some()
+        {
             (0..cols.len())
                 .map(|k| plan.uniforms(COEF_SOBOL_STREAM + (SOBOL_COLUMNS + k) as u64, n))
                 .collect()

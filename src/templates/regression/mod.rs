@@ -43,6 +43,8 @@ mod base;
 pub mod code;
 pub mod coef;
 pub mod groups;
+pub mod indep;
+mod indep_code;
 mod link;
 pub mod multilevel;
 pub mod own;
@@ -56,6 +58,8 @@ pub mod table;
 mod tests;
 #[cfg(test)]
 mod tests_groups;
+#[cfg(test)]
+mod tests_indep;
 #[cfg(test)]
 mod tests_multilevel;
 
@@ -178,8 +182,9 @@ pub(super) fn make(
         None
     };
     let own = own::parse(ctx, &design, &mut priors)?;
-    let mut coef = coef::parse(ctx, &design, &mut priors.hypers)?;
-    if coef.groups.is_some() && !own.is_empty() {
+    let own_cols: Vec<usize> = own.iter().map(|o| o.col).collect();
+    let mut coef = coef::parse(ctx, &design, &mut priors.hypers, &own_cols)?;
+    if coef.groups.is_some() && coef.indep.is_none() && !own.is_empty() {
         return Err(ctx
             .err(
                 &[key("prior"), key("coefficients"), key("groups")],
@@ -279,6 +284,13 @@ impl Model for Regression {
             }
         }
         let c = &self.coef;
+        if let Some(st) = indep_code::statement(self, h) {
+            v.push(st);
+            if let Some(cl) = &self.design.clusters {
+                v.push(code::cluster_effects(cl));
+            }
+            return v;
+        }
         let mut about = format!(
             "each of the {} coefficients (per unit of the {} design){}",
             self.design.cols() - self.own.len(),
@@ -336,6 +348,15 @@ impl Model for Regression {
         let k = self.priors.priors.len() as f64;
         let c = &self.coef;
         let x = |j: usize| h[c.idx[j]];
+        if let Some(ind) = &c.indep {
+            // One term per group: the log of each group's scale hyperparameter.
+            let mut s = self.priors.spread(h) * k;
+            for g in &ind.priors {
+                let sd = coef_sd(g, h);
+                s += if sd > 0.0 && sd.is_finite() { sd.ln() } else { 0.0 };
+            }
+            return s / (k + ind.count() as f64);
+        }
         let sd = match c.kind {
             Kind::Normal | Kind::StudentT => x(c.idx.len() - 1),
             Kind::Laplace => std::f64::consts::SQRT_2 * x(0),
@@ -352,5 +373,20 @@ impl Model for Regression {
             0.0
         };
         (self.priors.spread(h) * k + cs) / (k + 1.0)
+    }
+}
+
+/// A scale summary of one coefficient family at `h` (for [`Model::spread`]).
+fn coef_sd(c: &CoefPrior, h: &[f64]) -> f64 {
+    let x = |j: usize| h[c.idx[j]];
+    match c.kind {
+        Kind::Normal | Kind::StudentT => x(c.idx.len() - 1),
+        Kind::Laplace => std::f64::consts::SQRT_2 * x(0),
+        Kind::Horseshoe | Kind::RegHorseshoe => x(0),
+        Kind::R2d2 => {
+            let (a, b) = (x(0), x(1));
+            (a * b / ((a + b).powi(2) * (a + b + 1.0))).sqrt()
+        }
+        Kind::SpikeSlab => x(1) * x(0).sqrt(),
     }
 }
