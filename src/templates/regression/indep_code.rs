@@ -84,8 +84,9 @@ pub(super) fn statement(m: &Regression, h: &[f64]) -> Option<PriorStatement> {
         one.skip = (0..p).map(|j| !gr.cols[a].contains(&j)).collect();
         let cols: Vec<&str> = gr.cols[a].iter().map(|j| d.names[*j].as_str()).collect();
         let about = format!(
-            "group {name}: {} coefficients per unit of the {unit} design ({})",
+            "group {name}: {} coefficient{} per unit of the {unit} design ({})",
             cols.len(),
+            if cols.len() == 1 { "" } else { "s" },
             cols.join(", ")
         );
         let gc = coefficients_about(&one, h, d, m.link, m.exposure, Some(&about));
