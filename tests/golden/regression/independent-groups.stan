@@ -9,12 +9,12 @@ parameters {
   vector[1] beta_lab_z;
   real<lower=0, upper=1> beta_lab_r2;  // R²
   simplex[1] beta_lab_phi;  // variance shares
-  vector[1] beta_omics;  // group omics: 1 coefficients per unit of the centred design (x4)
+  vector[1] beta_omics;  // group omics: 1 coefficient per unit of the centred design (x4)
 }
 transformed parameters {
   vector[2] beta_clinical = beta_clinical_z .* sqrt(beta_clinical_c2 * square(beta_clinical_lambda) ./ (beta_clinical_c2 + square(beta_clinical_tau) * square(beta_clinical_lambda))) * beta_clinical_tau;  // group clinical: 2 coefficients per unit of the centred design (x1, x3)
   // reference residual variance square(sigma); the last factor is 1 / design sd of each column
-  vector[1] beta_lab = beta_lab_z .* sqrt(square(sigma) * beta_lab_r2 / (1 - beta_lab_r2) * beta_lab_phi) .* [0.473347]';  // group lab: 1 coefficients per unit of the centred design (x2)
+  vector[1] beta_lab = beta_lab_z .* sqrt(square(sigma) * beta_lab_r2 / (1 - beta_lab_r2) * beta_lab_phi) .* [0.473347]';  // group lab: 1 coefficient per unit of the centred design (x2)
   vector[4] beta;  // 4 coefficients per unit of the centred design priorsmith fitted on, design order
   beta[1:1] = beta_clinical[1:1];  // group clinical
   beta[2:2] = beta_lab[1:1];  // group lab
