@@ -1151,7 +1151,13 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
     // simulated against priorsmith's draws, pinned by golden files
     // (PRIORSMITH_BLESS=1 rewrites them), fitted numbers equal to fit.json's.
     let spec_text = spec(HN_SIGMA, INDEP, false);
-    round_trip("independent groups", &spec_text, false, &["stan", "pymc"], 13);
+    round_trip(
+        "independent groups",
+        &spec_text,
+        false,
+        &["stan", "pymc"],
+        13,
+    );
     let (dir, _) = fit(&spec_text);
     let json: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(dir.path().join("out/fit.json")).unwrap())
@@ -1168,11 +1174,17 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
         };
         let get = |n: &str| prog.vars.iter().find(|v| v.name == n).unwrap().clone();
         let tau = get("beta_clinical_tau");
-        assert!(close(tau.args[1], hyper("coefficients.clinical.global_scale")), "{lang}");
+        assert!(
+            close(tau.args[1], hyper("coefficients.clinical.global_scale")),
+            "{lang}"
+        );
         assert_eq!(get("beta_clinical_lambda").size, 2, "{lang}");
         let om = get("beta_omics");
         assert_eq!(om.size, 1, "{lang}");
-        assert!(close(om.args[1], hyper("coefficients.omics.scale")), "{lang}");
+        assert!(
+            close(om.args[1], hyper("coefficients.omics.scale")),
+            "{lang}"
+        );
         let r2 = get("beta_lab_r2");
         assert_eq!(r2.args, vec![2.0, 3.0], "{lang}");
         let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -1182,10 +1194,18 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
             std::fs::write(&golden, body(&code)).unwrap();
         }
         let want = std::fs::read_to_string(&golden).unwrap_or_default();
-        assert_eq!(body(&code), want, "{lang}: differs from {}", golden.display());
+        assert_eq!(
+            body(&code),
+            want,
+            "{lang}: differs from {}",
+            golden.display()
+        );
     }
     let e = export(dir.path(), "brms").unwrap_err();
-    assert!(e.contains("invalid context") && e.contains("group `clinical`"), "{e}");
+    assert!(
+        e.contains("invalid context") && e.contains("group `clinical`"),
+        "{e}"
+    );
     // A slip: x1 taken from the omics block instead of its own group's.
     let (dir, ours) = fit(&spec_text);
     let code = export(dir.path(), "stan").unwrap();

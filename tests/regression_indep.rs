@@ -97,8 +97,14 @@ fn a_fit_recovers_each_groups_hyperparameter() {
     // 2.7 SE). s: 4 SEs plus 0.1 % of s for the belief itself, which is the
     // exact law only at its nine quantiles and interpolated between them
     // (observed 0.00024 = 0.06 %, about 10 SEs: the interpolation, not noise).
-    let (se_s, se_a) = (se("coefficients.clinical.scale"), se("coefficients.omics.a"));
-    assert!((s - 0.4).abs() <= 4.0 * se_s + 0.001 * 0.4, "clinical scale {s} (SE {se_s})");
+    let (se_s, se_a) = (
+        se("coefficients.clinical.scale"),
+        se("coefficients.omics.a"),
+    );
+    assert!(
+        (s - 0.4).abs() <= 4.0 * se_s + 0.001 * 0.4,
+        "clinical scale {s} (SE {se_s})"
+    );
     assert!((a - 3.0).abs() <= 4.0 * se_a, "omics a {a} (SE {se_a})");
 }
 
@@ -136,11 +142,18 @@ fn bad_groups_through_the_binary_name_file_line_key_and_value() {
     // No "rest" and columns left over.
     rejected(
         ("covariates = \"rest\"", "covariates = [\"x5\"]"),
-        &["key `prior.coefficients`", "\"x6\" is in no group", "covariates = \"rest\""],
+        &[
+            "key `prior.coefficients`",
+            "\"x6\" is in no group",
+            "covariates = \"rest\"",
+        ],
     );
     // A family that is not a shrinkage prior.
     rejected(
-        ("family = \"normal\"\nscale = { fit", "family = \"gamma\"\nscale = { fit"),
+        (
+            "family = \"normal\"\nscale = { fit",
+            "family = \"gamma\"\nscale = { fit",
+        ),
         &[
             "key `prior.coefficients.clinical.family`",
             "family \"gamma\" is not a shrinkage prior",
@@ -153,7 +166,10 @@ fn bad_groups_through_the_binary_name_file_line_key_and_value() {
             "[prior.coefficients.clinical]",
             "[prior.coefficients]\nfamily = \"normal\"\nscale = 1.0\n[prior.coefficients.clinical]",
         ),
-        &["has a `family` of its own and a group table", "choose one form"],
+        &[
+            "has a `family` of its own and a group table",
+            "choose one form",
+        ],
     );
     // The joint form's `groups` without its family.
     rejected(
@@ -166,7 +182,10 @@ fn bad_groups_through_the_binary_name_file_line_key_and_value() {
     // A joint-form key in an independent group.
     rejected(
         ("b = 8.0", "b = 8.0\nweight = 2.0"),
-        &["key `prior.coefficients.omics.weight`", "belongs to the joint R2D2"],
+        &[
+            "key `prior.coefficients.omics.weight`",
+            "belongs to the joint R2D2",
+        ],
     );
 }
 

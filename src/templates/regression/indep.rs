@@ -138,7 +138,10 @@ pub fn parse(
             || !name.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
         {
             return Err(ctx
-                .err(&np, format!("group name \"{name}\" is not usable in exported code"))
+                .err(
+                    &np,
+                    format!("group name \"{name}\" is not usable in exported code"),
+                )
                 .with_hint("letters, digits and _, starting with a letter"));
         }
         if gt.contains_key("weight") {
@@ -161,7 +164,10 @@ pub fn parse(
                 if let Some(r) = rest {
                     return Err(ctx.err(
                         &cp,
-                        format!("only one group may take the \"rest\" (group `{}` does)", names[r]),
+                        format!(
+                            "only one group may take the \"rest\" (group `{}` does)",
+                            names[r]
+                        ),
                     ));
                 }
                 rest = Some(g);
@@ -227,10 +233,10 @@ pub fn parse(
         )?);
         names.push(name.clone());
     }
-    for j in 0..p {
-        if of[j] == none && !own.contains(&j) {
+    for (j, o) in of.iter_mut().enumerate() {
+        if *o == none && !own.contains(&j) {
             match rest {
-                Some(r) => of[j] = r,
+                Some(r) => *o = r,
                 None => {
                     return Err(ctx
                         .err(

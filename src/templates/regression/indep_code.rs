@@ -165,7 +165,10 @@ pub(super) fn statement(m: &Regression, h: &[f64]) -> Option<PriorStatement> {
         ));
     }
     for (lang, why) in refused {
-        code.insert(lang, BTreeMap::from([("unsupported".to_string(), vec![why])]));
+        code.insert(
+            lang,
+            BTreeMap::from([("unsupported".to_string(), vec![why])]),
+        );
     }
     let brms = brms_lines(m, h);
     code.insert(

@@ -285,10 +285,13 @@ impl Model for Regression {
         }
         let c = &self.coef;
         if let Some(st) = indep_code::statement(self, h) {
-            v.push(st);
+            // The random intercepts first: Stan wants every declaration of a
+            // block before its statements, and the groups end with the
+            // assignments that assemble `beta`.
             if let Some(cl) = &self.design.clusters {
                 v.push(code::cluster_effects(cl));
             }
+            v.push(st);
             return v;
         }
         let mut about = format!(
@@ -353,7 +356,11 @@ impl Model for Regression {
             let mut s = self.priors.spread(h) * k;
             for g in &ind.priors {
                 let sd = coef_sd(g, h);
-                s += if sd > 0.0 && sd.is_finite() { sd.ln() } else { 0.0 };
+                s += if sd > 0.0 && sd.is_finite() {
+                    sd.ln()
+                } else {
+                    0.0
+                };
             }
             return s / (k + ind.count() as f64);
         }

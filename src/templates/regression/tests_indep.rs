@@ -153,8 +153,14 @@ fn per_group_r2_split_and_design_quantities_match_the_definitions() {
         let tot: f64 = v.iter().sum();
         // Beta quantiles are tabulated in the simulator (|Δ logit| ≤ 1e-7).
         for g in 0..3 {
-            assert!(rel(out[g][i], v[g] / (v[g] + s2), 1e-6), "draw {i} r2_marginal {g}");
-            assert!(rel(out[3 + g][i], v[g] / tot, 1e-6), "draw {i} r2_share {g}");
+            assert!(
+                rel(out[g][i], v[g] / (v[g] + s2), 1e-6),
+                "draw {i} r2_marginal {g}"
+            );
+            assert!(
+                rel(out[3 + g][i], v[g] / tot, 1e-6),
+                "draw {i} r2_share {g}"
+            );
         }
         let b9 = par[2][i] * own.to_stored;
         let vt = tot + d.var[8] * b9 * b9;
@@ -170,7 +176,11 @@ fn per_group_r2_split_and_design_quantities_match_the_definitions() {
             .map(|j| coef::shrink_term(nr as f64 * d.var[j] * omega[j] * omega[j] / s2))
             .sum();
         // n s_j²w_j² is stored as f32 (relative error 6e-8 per term).
-        assert!(rel(out[9][i], eff, 1e-5), "draw {i} effective_nonzero {} vs {eff}", out[9][i]);
+        assert!(
+            rel(out[9][i], eff, 1e-5),
+            "draw {i} effective_nonzero {} vs {eff}",
+            out[9][i]
+        );
     }
 }
 
@@ -208,9 +218,15 @@ fn closed_forms_fixed_normal_groups_and_a_group_r2d2() {
     for i in 0..n {
         let s2 = par[1][i] * par[1][i];
         for g in 0..3 {
-            assert!((out[3 + g][i] - v[g] / tot).abs() < 1e-12, "share {g} draw {i}");
+            assert!(
+                (out[3 + g][i] - v[g] / tot).abs() < 1e-12,
+                "share {g} draw {i}"
+            );
             let want = v[g] / (v[g] + s2);
-            assert!((out[g][i] - want).abs() < 1e-12 * want.max(1e-3), "r2_marginal {g} draw {i}");
+            assert!(
+                (out[g][i] - want).abs() < 1e-12 * want.max(1e-3),
+                "r2_marginal {g} draw {i}"
+            );
         }
     }
     // (2) A group under an R2D2 of its own: V_c = σ²W_c exactly (its Dirichlet
@@ -221,7 +237,11 @@ fn closed_forms_fixed_normal_groups_and_a_group_r2d2() {
     for (a, b, pass) in [(2.0, 5.0, true), (2.0, 4.0, false)] {
         let law = crate::dist::beta::Beta::new(a, b).unwrap();
         let (dd, floor) = cvm_vs(Arc::new(law), out[2].clone());
-        assert_eq!(dd < CVM_999_OVER_MEAN * floor, pass, "Beta({a}, {b}): CvM {dd} vs floor {floor}");
+        assert_eq!(
+            dd < CVM_999_OVER_MEAN * floor,
+            pass,
+            "Beta({a}, {b}): CvM {dd} vs floor {floor}"
+        );
     }
 }
 
@@ -251,7 +271,10 @@ fn recomputed_route_equals_cached_route() {
     let (a, b) = (draws(&sc, &h0(&sc), 500), draws(&sf, &hf, 500));
     for (k, (x, y)) in a.iter().zip(&b).enumerate() {
         for (u, w) in x.iter().zip(y) {
-            assert!((u - w).abs() <= 1e-6 * u.abs().max(1e-9), "belief {k}: {u} vs {w}");
+            assert!(
+                (u - w).abs() <= 1e-6 * u.abs().max(1e-9),
+                "belief {k}: {u} vs {w}"
+            );
         }
     }
 }
@@ -276,7 +299,10 @@ fn bad_independent_groups_are_named() {
             "\"x9\" has a prior of its own",
         ),
         (
-            INDEP.replace("family = \"normal\"\nscale = 0.3", "family = \"gamma\"\nscale = 0.3"),
+            INDEP.replace(
+                "family = \"normal\"\nscale = 0.3",
+                "family = \"gamma\"\nscale = 0.3",
+            ),
             "family \"gamma\" is not a shrinkage prior",
         ),
         (
