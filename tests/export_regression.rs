@@ -791,11 +791,12 @@ fn simulate(prog: &Program, standardise: bool, seed: u64) -> [Vec<f64>; 3] {
         // class-level prior still names every coefficient, x1's overridden.
         // Independent priors per group in brms: one coefficient-level prior per
         // column and no class-level vector.
-        if !env.contains_key("beta") && env.contains_key("b_x2") {
+        let assembled = !env.contains_key("beta") && env.contains_key("b_x2");
+        if assembled {
             let b: Vec<f64> = (1..=P).map(|j| env[&format!("b_x{j}")][0]).collect();
             env.insert("beta".into(), b);
         }
-        let full: Vec<f64> = match env.get("b_x1").filter(|_| env["beta"].len() < P) {
+        let full: Vec<f64> = match env.get("b_x1").filter(|_| !assembled) {
             Some(b1) => {
                 let shared = &env["beta"];
                 let rest = if shared.len() == P {

@@ -362,7 +362,9 @@ impl Eval<'_> {
                 if tot > 0.0 {
                     ph[k] * vv[k] / tot
                 } else {
-                    f64::NAN
+                    // No group has signal (spike-and-slab groups with every
+                    // coefficient out): no split to speak of; an equal one.
+                    1.0 / m as f64
                 }
             } else {
                 self.phi[i * m + k]
