@@ -48,6 +48,7 @@ mod indep_code;
 mod link;
 pub mod multilevel;
 pub mod own;
+mod products;
 mod profile;
 pub mod quantity;
 mod reach;
