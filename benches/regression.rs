@@ -12,11 +12,15 @@
 //!   columns), the weight of one group varied: cached per-group products; the
 //!   two Beta quantiles per draw (R² and the group share) come from a checked
 //!   table per evaluation (`dist::beta::QuantileTable`): 5.61 ms before it.
+//! * `eval/indep-groups/5000`: independent priors per group (x1–x20 normal, the
+//!   rest a horseshoe with its own half-Cauchy global scale), the normal's scale
+//!   varied: cached per-group products rescaled by per-draw group multipliers.
 //! * `fit/...`: a whole fit (set-up, global stage, local searches, fresh judgement);
 //!   `fit/r2d2-groups/5000` the grouped R2D2 fit at 4,000 draws (slow: run alone);
 //!   `fit/r2d2-groups-precision/5000` the same prior in the default draws mode
 //!   (precision mode, no `draws` given), with beliefs on R2D2's own total R²
-//!   (`r2_marginal`, exactly Beta(a, b)) and on one group's share.
+//!   (`r2_marginal`, exactly Beta(a, b)) and on one group's share;
+//!   `fit/indep-groups/5000` the independent groups' fit at 4,000 draws.
 //!
 //! Run a subset: `cargo bench --bench regression -- eval` (keep runs under a minute).
 
@@ -106,6 +110,33 @@ group = "clinical"
 distribution = { family = "beta", alpha = 6, beta = 4 }
 "#;
 
+/// Independent priors per group: x1–x20 ("clinical") under a normal with its
+/// scale fitted, the other p − 20 columns under a horseshoe with its own
+/// half-Cauchy global scale fitted (both cached: per-group products once per set
+/// of base draws, an evaluation O(draws·G²)).
+fn indep(_p: usize) -> String {
+    let cols: Vec<String> = (1..=20).map(|j| format!("\"x{j}\"")).collect();
+    format!(
+        "[prior.coefficients.clinical]\ncovariates = [{}]\nfamily = \"normal\"\nscale = {{ fit = [0.01, 3.0] }}\n\
+         [prior.coefficients.omics]\ncovariates = \"rest\"\nfamily = \"horseshoe\"\nglobal_scale = {{ fit = [0.00001, 0.1] }}",
+        cols.join(", ")
+    )
+}
+
+const INDEP_BELIEFS: &str = r#"
+[[belief]]
+quantity = "r2"
+distribution = { family = "beta", alpha = 3, beta = 9 }
+[[belief]]
+quantity = "r2_marginal"
+group = "clinical"
+distribution = { family = "beta", alpha = 2, beta = 6 }
+[[belief]]
+quantity = "r2_share"
+group = "omics"
+distribution = { family = "beta", alpha = 3, beta = 4 }
+"#;
+
 const HS: &str =
     "family = \"horseshoe\"\nglobal = \"fixed\"\nglobal_scale = { fit = [0.00001, 0.1] }";
 const RHS: &str = "family = \"regularised-horseshoe\"\nglobal = \"fixed\"\nglobal_scale = { fit = [0.00001, 0.1] }\nslab_scale = { fit = [0.1, 5.0] }\nslab_df = 4";
@@ -162,6 +193,28 @@ fn bench(c: &mut Criterion) {
             })
         });
     }
+    // Independent priors per group, p = 5,000 (normal x1–x20, horseshoe on the rest).
+    {
+        let s = spec_beliefs(5000, &indep(5000), INDEP_BELIEFS);
+        let mut obj = None;
+        let mut h: Vec<f64> = s.hypers().iter().map(Hyper::default_value).collect();
+        let mut k = 0u32;
+        g.bench_function("indep-groups/5000", |b| {
+            let obj = obj.get_or_insert_with(|| {
+                Objective::new(
+                    &s,
+                    4000,
+                    &priorsmith::rng::Plan::fit(1, s.points),
+                    Kind::CramerVonMises,
+                )
+            });
+            b.iter(|| {
+                k += 1;
+                h[3] = 0.1 * (1.0 + 0.01 * (k % 50) as f64);
+                obj.total(&h).expect("objective")
+            })
+        });
+    }
     g.finish();
     let mut g = c.benchmark_group("fit");
     g.sample_size(10).measurement_time(Duration::from_secs(10));
@@ -185,6 +238,11 @@ fn bench(c: &mut Criterion) {
     // determined hyperparameter's Monte Carlo error is within its target.
     let s = spec_text(5000, &grouped(5000), GROUPED_MARGINAL_BELIEFS, "");
     g.bench_function("r2d2-groups-precision/5000", |b| {
+        b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
+    });
+    // Independent priors per group, p = 5,000, a whole fit at 4,000 draws.
+    let s = spec_beliefs(5000, &indep(5000), INDEP_BELIEFS);
+    g.bench_function("indep-groups/5000", |b| {
         b.iter(|| priorsmith::fit::fit(&s, None).expect("fit"))
     });
     g.finish();

@@ -131,8 +131,11 @@ impl Regression {
         cols.push(plan.uniforms(coef::GLOBAL_STREAM, n));
         cols.push(plan.uniforms(coef::SLAB_STREAM, n));
         cols.push(plan.uniforms(coef::R2_STREAM, n));
+        // Independent priors per group: three uniforms per group ([`super::indep`]).
         // Groups of covariates: G − 1 stick-breaking uniforms ([`super::groups`]).
-        if let Some(g) = &self.coef.groups {
+        if let Some(ind) = &self.coef.indep {
+            ind.streams(plan, n, &mut cols);
+        } else if let Some(g) = &self.coef.groups {
             for k in 0..g.count() - 1 {
                 cols.push(plan.uniforms(super::groups::SHARE_STREAM + k as u64, n));
             }
@@ -160,6 +163,42 @@ impl Regression {
             .flatten()
             .filter(|(_, a)| *a != 0.0)
             .map(|(j, _)| *j);
+        if let (Some(ind), Some(gr)) = (&c.indep, &c.groups) {
+            let sob = coef::SobolCols::draw(c, p, named, n, plan);
+            if c.cached {
+                let fill = |i: usize, w: &mut [f64], z: &mut [f64]| {
+                    ind.base_draw(c, d, seed, block, i, z, w, &sob);
+                    for (j, x) in w.iter_mut().enumerate() {
+                        *x = ind.cached_w(gr.of[j], &h0, *x);
+                    }
+                };
+                let eff = if needs.eff { Eff::Store } else { Eff::None };
+                ex.cached = Some(coef::products_grouped(
+                    d,
+                    n,
+                    &needs.forms,
+                    false,
+                    needs.q,
+                    eff,
+                    true,
+                    &fill,
+                    Some(gr),
+                ));
+            } else {
+                use rayon::prelude::*;
+                ex.z = vec![0.0; n * p];
+                ex.loc = vec![0.0; n * p];
+                ex.z.par_chunks_mut(p)
+                    .zip(ex.loc.par_chunks_mut(p))
+                    .enumerate()
+                    .for_each(|(i, (z, l))| ind.base_draw(c, d, seed, block, i, z, l, &sob));
+            }
+            return BaseDraws {
+                n,
+                cols,
+                extra: Some(Box::new(ex)),
+            };
+        }
         if let Some(prod) = self.unit_signal(n) {
             // Nothing but Σ_j s_j²w_j² per group is read, and that is 1 for every
             // draw: no coefficient variate needs drawing.
@@ -295,6 +334,10 @@ impl Regression {
         if let Some(g) = &self.coef.groups {
             let g = g.count() as u64;
             per_draw += 8 * ((g - 1) + (g * g - 1) + (g - 1) * (1 + forms));
+            if self.coef.indep.is_some() {
+                // three uniforms per group, the multipliers and their squares
+                per_draw += 8 * (3 * g + 2 * g);
+            }
         }
         // One simulation: parameter columns, ρ, global scales, outputs and sort buffers.
         let sim = 8 * (k + 8 + 3 * forms.max(1));

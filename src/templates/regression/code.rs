@@ -328,6 +328,18 @@ pub fn cluster_slopes(
 
 /// Code for the coefficient vector at hyperparameters `h`.
 pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: f64) -> Code {
+    coefficients_about(c, h, d, link, exposure, None)
+}
+
+/// [`coefficients`], with the comment naming the vector given (`about`).
+pub(super) fn coefficients_about(
+    c: &CoefPrior,
+    h: &[f64],
+    d: &Design,
+    link: Link,
+    exposure: f64,
+    about_given: Option<&str>,
+) -> Code {
     // Columns with covariate-specific priors are not in the shared vector.
     let shared: Vec<usize> = (0..d.cols())
         .filter(|j| !c.skip.get(*j).copied().unwrap_or(false))
@@ -354,9 +366,12 @@ pub fn coefficients(c: &CoefPrior, h: &[f64], d: &Design, link: Link, exposure: 
     } else {
         ""
     };
-    let about = format!(
-        "{p} coefficients per unit of the {unit} design priorsmith fitted on (in design order{cols}{without})"
-    );
+    let about = match about_given {
+        Some(a) => a.to_string(),
+        None => format!(
+            "{p} coefficients per unit of the {unit} design priorsmith fitted on (in design order{cols}{without})"
+        ),
+    };
     let mut code = BTreeMap::new();
     if let Some(gr) = &c.groups {
         grouped_r2d2(&mut code, c, gr, h, d, link, exposure, &about);

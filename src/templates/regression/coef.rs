@@ -29,7 +29,7 @@
 //! When ω = g·w with w free of the hyperparameters, Xβ = g·X(w∘z): the design
 //! products are computed once per fit (q = ‖X_c(w∘z)‖²/n and friends) and only
 //! rescaled afterwards. Otherwise each evaluation forms the coefficient draws in
-//! blocks of draws and multiplies them with the design (nalgebra matrix products),
+//! blocks of draws and multiplies them with the design ([`super::products`]),
 //! in parallel with rayon where the caller is not already a pool worker. Blocks
 //! are independent, so results do not depend on the thread count.
 
@@ -38,8 +38,6 @@ use crate::error::Result;
 use crate::input::{key, Ctx, Seg};
 use crate::rng;
 use crate::templates::{Hyper, HyperValue};
-use nalgebra::DMatrix;
-use rayon::prelude::*;
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Kind {
@@ -148,8 +146,11 @@ pub struct CoefPrior {
     /// column; empty when none did): their shared scale is 0, and R2D2's
     /// Dirichlet splits the explained variance over the other columns only.
     pub skip: Vec<bool>,
-    /// R2D2 with groups of covariates ([`super::groups`]).
+    /// R2D2 with groups of covariates ([`super::groups`]); with independent
+    /// priors per group, the same column grouping (no weights).
     pub groups: Option<super::groups::Grouping>,
+    /// Independent priors per group of covariates ([`super::indep`]).
+    pub indep: Option<Box<super::indep::Indep>>,
 }
 
 fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
@@ -158,18 +159,44 @@ fn sub(path: &[Seg], k: &str) -> Vec<Seg> {
     p
 }
 
-/// Read `[prior.coefficients]`, pushing its hyperparameters onto `hypers`.
-pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<CoefPrior> {
+/// Read `[prior.coefficients]`, pushing its hyperparameters onto `hypers`:
+/// one shared family, or independent priors per group of covariates
+/// ([`super::indep`]) when the table holds group tables and no `family`.
+/// `own`: the columns with priors of their own ([`super::own`]).
+pub fn parse(
+    ctx: &Ctx,
+    design: &Design,
+    hypers: &mut Vec<Hyper>,
+    own: &[usize],
+) -> Result<CoefPrior> {
     let t = ctx.prior_table("coefficients", EXAMPLE)?;
     let path = [key("prior"), key("coefficients")];
+    if let Some(c) = super::indep::parse(ctx, &path, t, design, hypers, own)? {
+        return Ok(c);
+    }
     let fam = t.get("family").ok_or_else(|| {
         ctx.err(&path, "[prior.coefficients] needs `family`")
             .with_hint(format!("e.g.\n  {EXAMPLE}"))
     })?;
-    let fname = ctx.string(&sub(&path, "family"), fam)?;
+    parse_family(ctx, &path, t, "coefficients", Some(design), hypers, fam)
+}
+
+/// One coefficient family from table `t` at `path` (its `family` value `fam`),
+/// hyperparameters named `{prefix}.<param>`; `design` is given where R2D2 may
+/// take `groups` (the shared prior, not a group's own).
+pub(super) fn parse_family(
+    ctx: &Ctx,
+    path: &[Seg],
+    t: &toml::Table,
+    prefix: &str,
+    design: Option<&Design>,
+    hypers: &mut Vec<Hyper>,
+    fam: &toml::Value,
+) -> Result<CoefPrior> {
+    let fname = ctx.string(&sub(path, "family"), fam)?;
     let kind = Kind::parse(fname).ok_or_else(|| {
         ctx.err(
-            &sub(&path, "family"),
+            &sub(path, "family"),
             format!("unknown coefficient prior \"{fname}\""),
         )
         .with_hint(crate::error::choice_hint(fname, &FAMILIES))
@@ -180,19 +207,22 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
     if hs {
         allowed.push("global");
     }
-    if kind == Kind::R2d2 {
+    if kind == Kind::R2d2 && design.is_some() {
         allowed.push("groups");
     }
-    ctx.check_keys(&path, t, &allowed)?;
+    if design.is_none() {
+        allowed.push("covariates");
+    }
+    ctx.check_keys(path, t, &allowed)?;
     let global_fixed =
         match t.get("global") {
             None => false,
-            Some(v) => match ctx.string(&sub(&path, "global"), v)? {
+            Some(v) => match ctx.string(&sub(path, "global"), v)? {
                 "half-cauchy" => false,
                 "fixed" => true,
                 other => return Err(ctx
                     .err(
-                        &sub(&path, "global"),
+                        &sub(path, "global"),
                         format!("unknown global prior \"{other}\""),
                     )
                     .with_hint(
@@ -205,9 +235,9 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
     let mut shape = 0.0;
     let mut inclusion_free = false;
     for (p, dom) in kind.params() {
-        let pp = sub(&path, p);
+        let pp = sub(path, p);
         let v = t.get(*p).ok_or_else(|| {
-            ctx.err(&path, format!("[prior.coefficients] ({fname}) needs `{p}`"))
+            ctx.err(path, format!("[prior.{prefix}] ({fname}) needs `{p}`"))
                 .with_hint(format!("e.g.\n  {}", kind.example()))
         })?;
         let hv = ctx.hyper_value(&pp, v)?;
@@ -249,11 +279,11 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
         }
         idx.push(hypers.len());
         names.push(*p);
-        hypers.push(Hyper::new(format!("coefficients.{p}"), hv));
+        hypers.push(Hyper::new(format!("{prefix}.{p}"), hv));
     }
-    let groups = match t.get("groups") {
-        Some(v) => Some(super::groups::parse(ctx, &path, v, design, hypers)?),
-        None => None,
+    let groups = match (t.get("groups"), design) {
+        (Some(v), Some(design)) => Some(super::groups::parse(ctx, path, v, design, hypers)?),
+        _ => None,
     };
     let cached = match kind {
         Kind::RegHorseshoe => false,
@@ -269,6 +299,7 @@ pub fn parse(ctx: &Ctx, design: &Design, hypers: &mut Vec<Hyper>) -> Result<Coef
         cached,
         skip: Vec::new(),
         groups,
+        indep: None,
     })
 }
 
@@ -343,7 +374,10 @@ impl SobolCols {
         let z = (0..cols.len())
             .map(|k| plan.normals(COEF_SOBOL_STREAM + k as u64, n))
             .collect();
-        let u = if prior.local_from_uniform(0.5).is_some() || prior.r2d2_half() {
+        let u = if prior.local_from_uniform(0.5).is_some()
+            || prior.r2d2_half()
+            || prior.indep.is_some()
+        {
             (0..cols.len())
                 .map(|k| plan.uniforms(COEF_SOBOL_STREAM + (SOBOL_COLUMNS + k) as u64, n))
                 .collect()
@@ -549,242 +583,4 @@ impl CoefPrior {
     }
 }
 
-/// Per-draw design products of a block of coefficient draws (unit global).
-#[derive(Default)]
-pub struct Products {
-    /// ‖X_c β‖²/n: the design variance of the linear predictor.
-    pub q: Vec<f64>,
-    /// Σ_j s_j² ω_j²: its expectation over z (the marginal signal variance).
-    pub v: Vec<f64>,
-    /// X_c β, rows × draws (draw i at i·rows), when asked for.
-    pub rows: Vec<f64>,
-    /// a_kᵀβ for each registered linear form k.
-    pub forms: Vec<Vec<f64>>,
-    /// Cached mode: n s_j² w_j² (draws × p, f32). Direct mode: m_eff per draw.
-    pub eff_store: Vec<f32>,
-    pub eff: Vec<f64>,
-}
-
-/// How effective_nonzero is served.
-#[derive(Clone, Copy)]
-pub enum Eff<'a> {
-    None,
-    /// Store n s_j² w_j² for later rescaling.
-    Store,
-    /// Compute m_eff = Σ_j x/(1 + x), x = n s_j² ω_j² / ρ_i, with 1/ρ per draw.
-    Direct(&'a [f64]),
-}
-
-/// Draws per block: large enough that packing the design for the matrix product
-/// (matrixmultiply packs its left operand on every call) is amortised.
-const BLOCK: usize = 256;
-
-/// Fills draw i's scales and normals.
-pub type Fill<'a> = dyn Fn(usize, &mut [f64], &mut [f64]) + Sync + 'a;
-
-/// Compute [`Products`] for draws 0..n, where `fill(i, w, z)` writes draw i's
-/// scales ω (or w) and normals z. The design product X_cβ (the costly part,
-/// rows × p per draw) is formed only when `want_q` or `want_rows`. Parallel over
-/// blocks when `parallel`.
-#[allow(clippy::too_many_arguments)]
-pub fn products(
-    d: &Design,
-    n: usize,
-    forms: &[Vec<(usize, f64)>],
-    want_rows: bool,
-    want_q: bool,
-    eff: Eff,
-    parallel: bool,
-    fill: &Fill,
-) -> Products {
-    products_grouped(d, n, forms, want_rows, want_q, eff, parallel, fill, None)
-}
-
-/// [`products`], with groups of columns ([`super::groups`]): then v and each
-/// form hold G values per draw (draw i at i·G, one per group, unit group
-/// multiplier), q holds the G × G cross products (X_g u_g)ᵀ(X_h u_h)/n per draw
-/// (draw i at i·G²), and the rows are not formed.
-#[allow(clippy::too_many_arguments)]
-pub fn products_grouped(
-    d: &Design,
-    n: usize,
-    forms: &[Vec<(usize, f64)>],
-    want_rows: bool,
-    want_q: bool,
-    eff: Eff,
-    parallel: bool,
-    fill: &Fill,
-    grp: Option<&super::groups::Grouping>,
-) -> Products {
-    let p = d.cols();
-    let nr = d.rows();
-    let nblocks = n.div_ceil(BLOCK);
-    if let Some(gr) = grp {
-        let gn = gr.count();
-        let one = |b: usize| -> Products {
-            let i0 = b * BLOCK;
-            let nb = BLOCK.min(n - i0);
-            let mut bm: Vec<DMatrix<f64>> = gr
-                .cols
-                .iter()
-                .map(|c| DMatrix::zeros(c.len(), nb))
-                .collect();
-            let mut w = vec![0.0; p];
-            let mut z = vec![0.0; p];
-            let mut out = Products {
-                q: vec![0.0; nb * gn * gn],
-                v: vec![0.0; nb * gn],
-                forms: vec![vec![0.0; nb * gn]; forms.len()],
-                ..Default::default()
-            };
-            if matches!(eff, Eff::Store) {
-                out.eff_store = vec![0.0; nb * p];
-            }
-            for k in 0..nb {
-                fill(i0 + k, &mut w, &mut z);
-                for j in 0..p {
-                    out.v[k * gn + gr.of[j]] += d.var[j] * w[j] * w[j];
-                    z[j] *= w[j];
-                }
-                for (g, c) in gr.cols.iter().enumerate() {
-                    let mut col = bm[g].column_mut(k);
-                    for (r, j) in c.iter().enumerate() {
-                        col[r] = z[*j];
-                    }
-                }
-                for (f, o) in forms.iter().zip(out.forms.iter_mut()) {
-                    for (j, a) in f {
-                        o[k * gn + gr.of[*j]] += a * z[*j];
-                    }
-                }
-                if matches!(eff, Eff::Store) {
-                    let e = &mut out.eff_store[k * p..(k + 1) * p];
-                    for j in 0..p {
-                        e[j] = (nr as f64 * d.var[j] * w[j] * w[j]) as f32;
-                    }
-                }
-            }
-            if want_q {
-                let m: Vec<DMatrix<f64>> = gr.x.iter().zip(&bm).map(|(x, b)| x * b).collect();
-                for k in 0..nb {
-                    for a in 0..gn {
-                        for c in a..gn {
-                            let x = m[a].column(k).dot(&m[c].column(k)) / nr as f64;
-                            out.q[k * gn * gn + a * gn + c] = x;
-                            out.q[k * gn * gn + c * gn + a] = x;
-                        }
-                    }
-                }
-            }
-            out
-        };
-        let parts: Vec<Products> = if parallel && nblocks > 1 {
-            (0..nblocks).into_par_iter().map(one).collect()
-        } else {
-            (0..nblocks).map(one).collect()
-        };
-        let mut all = Products {
-            forms: vec![Vec::with_capacity(n * gn); forms.len()],
-            ..Default::default()
-        };
-        for b in parts {
-            all.q.extend(b.q);
-            all.v.extend(b.v);
-            for (a, f) in all.forms.iter_mut().zip(b.forms) {
-                a.extend(f);
-            }
-            all.eff_store.extend(b.eff_store);
-        }
-        return all;
-    }
-    let one = |b: usize| -> Products {
-        let i0 = b * BLOCK;
-        let nb = BLOCK.min(n - i0);
-        let mut bm = DMatrix::<f64>::zeros(p, nb);
-        let mut w = vec![0.0; p];
-        let mut out = Products {
-            q: vec![0.0; nb],
-            v: vec![0.0; nb],
-            forms: vec![vec![0.0; nb]; forms.len()],
-            ..Default::default()
-        };
-        if matches!(eff, Eff::Store) {
-            out.eff_store = vec![0.0; nb * p];
-        }
-        if matches!(eff, Eff::Direct(_)) {
-            out.eff = vec![0.0; nb];
-        }
-        for k in 0..nb {
-            let i = i0 + k;
-            let mut col = bm.column_mut(k);
-            let z = col.as_mut_slice();
-            fill(i, &mut w, z);
-            let mut v = 0.0;
-            for j in 0..p {
-                v += d.var[j] * w[j] * w[j];
-                z[j] *= w[j];
-            }
-            out.v[k] = v;
-            for (f, o) in forms.iter().zip(out.forms.iter_mut()) {
-                o[k] = f.iter().map(|(j, a)| a * z[*j]).sum();
-            }
-            match eff {
-                Eff::None => {}
-                Eff::Store => {
-                    let e = &mut out.eff_store[k * p..(k + 1) * p];
-                    for j in 0..p {
-                        e[j] = (nr as f64 * d.var[j] * w[j] * w[j]) as f32;
-                    }
-                }
-                Eff::Direct(irho) => {
-                    out.eff[k] = (0..p)
-                        .map(|j| shrink_term(nr as f64 * d.var[j] * w[j] * w[j] * irho[i]))
-                        .sum();
-                }
-            }
-        }
-        if want_q || want_rows {
-            let m = &d.xc * &bm;
-            for k in 0..nb {
-                let c = m.column(k);
-                out.q[k] = c.iter().map(|x| x * x).sum::<f64>() / nr as f64;
-            }
-            if want_rows {
-                out.rows = m.as_slice().to_vec();
-            }
-        }
-        out
-    };
-    let parts: Vec<Products> = if parallel && nblocks > 1 {
-        (0..nblocks).into_par_iter().map(one).collect()
-    } else {
-        (0..nblocks).map(one).collect()
-    };
-    let mut all = Products {
-        forms: vec![Vec::with_capacity(n); forms.len()],
-        ..Default::default()
-    };
-    for b in parts {
-        all.q.extend(b.q);
-        all.v.extend(b.v);
-        all.rows.extend(b.rows);
-        for (a, f) in all.forms.iter_mut().zip(b.forms) {
-            a.extend(f);
-        }
-        all.eff_store.extend(b.eff_store);
-        all.eff.extend(b.eff);
-    }
-    all
-}
-
-/// 1 − κ = x/(1 + x) for x = n s² ω²/σ², safe at x = 0 and x = ∞.
-#[inline]
-pub fn shrink_term(x: f64) -> f64 {
-    if x.is_nan() || x <= 0.0 {
-        0.0
-    } else if x.is_infinite() {
-        1.0
-    } else {
-        x / (1.0 + x)
-    }
-}
+pub use super::products::{products, products_grouped, shrink_term, Eff, Fill, Products};

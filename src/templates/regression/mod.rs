@@ -43,9 +43,12 @@ mod base;
 pub mod code;
 pub mod coef;
 pub mod groups;
+pub mod indep;
+mod indep_code;
 mod link;
 pub mod multilevel;
 pub mod own;
+mod products;
 mod profile;
 pub mod quantity;
 mod reach;
@@ -56,6 +59,8 @@ pub mod table;
 mod tests;
 #[cfg(test)]
 mod tests_groups;
+#[cfg(test)]
+mod tests_indep;
 #[cfg(test)]
 mod tests_multilevel;
 #[cfg(test)]
@@ -184,8 +189,9 @@ pub(super) fn make(
     let own = own::parse(ctx, &design, &mut priors)?;
     // After the covariate-specific priors: their base streams do not move.
     let slopes = multilevel::parse_slopes(ctx, info, &design, multilevel, &mut priors)?;
-    let mut coef = coef::parse(ctx, &design, &mut priors.hypers)?;
-    if coef.groups.is_some() && !own.is_empty() {
+    let own_cols: Vec<usize> = own.iter().map(|o| o.col).collect();
+    let mut coef = coef::parse(ctx, &design, &mut priors.hypers, &own_cols)?;
+    if coef.groups.is_some() && coef.indep.is_none() && !own.is_empty() {
         return Err(ctx
             .err(
                 &[key("prior"), key("coefficients"), key("groups")],
@@ -290,6 +296,16 @@ impl Model for Regression {
             }
         }
         let c = &self.coef;
+        if let Some(st) = indep_code::statement(self, h) {
+            // The random intercepts first: Stan wants every declaration of a
+            // block before its statements, and the groups end with the
+            // assignments that assemble `beta`.
+            if let Some(cl) = &self.design.clusters {
+                v.push(code::cluster_effects(cl));
+            }
+            v.push(st);
+            return v;
+        }
         let mut about = format!(
             "each of the {} coefficients (per unit of the {} design){}",
             self.design.cols() - self.own.len(),
@@ -350,6 +366,19 @@ impl Model for Regression {
         let k = self.priors.priors.len() as f64;
         let c = &self.coef;
         let x = |j: usize| h[c.idx[j]];
+        if let Some(ind) = &c.indep {
+            // One term per group: the log of each group's scale hyperparameter.
+            let mut s = self.priors.spread(h) * k;
+            for g in &ind.priors {
+                let sd = coef_sd(g, h);
+                s += if sd > 0.0 && sd.is_finite() {
+                    sd.ln()
+                } else {
+                    0.0
+                };
+            }
+            return s / (k + ind.count() as f64);
+        }
         let sd = match c.kind {
             Kind::Normal | Kind::StudentT => x(c.idx.len() - 1),
             Kind::Laplace => std::f64::consts::SQRT_2 * x(0),
@@ -366,5 +395,20 @@ impl Model for Regression {
             0.0
         };
         (self.priors.spread(h) * k + cs) / (k + 1.0)
+    }
+}
+
+/// A scale summary of one coefficient family at `h` (for [`Model::spread`]).
+fn coef_sd(c: &CoefPrior, h: &[f64]) -> f64 {
+    let x = |j: usize| h[c.idx[j]];
+    match c.kind {
+        Kind::Normal | Kind::StudentT => x(c.idx.len() - 1),
+        Kind::Laplace => std::f64::consts::SQRT_2 * x(0),
+        Kind::Horseshoe | Kind::RegHorseshoe => x(0),
+        Kind::R2d2 => {
+            let (a, b) = (x(0), x(1));
+            (a * b / ((a + b).powi(2) * (a + b + 1.0))).sqrt()
+        }
+        Kind::SpikeSlab => x(1) * x(0).sqrt(),
     }
 }

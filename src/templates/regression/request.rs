@@ -215,19 +215,24 @@ impl Regression {
         raw: &RawBelief,
     ) -> Result<Option<usize>> {
         let gp = sub(path, "group");
-        if kind != RegQuantity::R2Share {
+        if kind != RegQuantity::R2Share && kind != RegQuantity::R2Marginal {
             return match &raw.group {
-                Some(_) => Err(ctx.err(&gp, "only r2_share takes `group`")),
+                Some(_) => Err(ctx.err(&gp, "only r2_share and r2_marginal take `group`")),
                 None => Ok(None),
             };
         }
+        if kind == RegQuantity::R2Marginal && raw.group.is_none() {
+            return Ok(None);
+        }
         let Some(gr) = &self.coef.groups else {
+            let what = if kind == RegQuantity::R2Share {
+                "r2_share needs groups of covariates"
+            } else {
+                "r2_marginal takes `group` only with groups of covariates"
+            };
             return Err(ctx
-                .err(
-                    &sub(path, "quantity"),
-                    "r2_share needs groups of covariates",
-                )
-                .with_hint("family = \"r2d2\" with [prior.coefficients.groups.NAME] tables"));
+                .err(&sub(path, "quantity"), what)
+                .with_hint("[prior.coefficients.NAME] tables (independent priors per group), or family = \"r2d2\" with [prior.coefficients.groups.NAME] tables (one joint prior)"));
         };
         let name = raw.group.as_deref().ok_or_else(|| {
             ctx.err(path, "r2_share needs `group`")

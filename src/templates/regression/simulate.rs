@@ -88,6 +88,48 @@ impl Regression {
             .map(|i| self.ref_var(alpha[i], sigma2.get(i).copied().unwrap_or(0.0)))
             .collect();
         let c = &self.coef;
+        if let (Some(ind), Some(gr)) = (&c.indep, &c.groups) {
+            // Independent priors per group ([`super::indep`]): unit global, the
+            // group multipliers in place of the joint prior's √φ_g.
+            let m = ind.count();
+            let u = &base.cols[k + 3..k + 3 + 3 * m];
+            let (prod, sphi) = if c.cached {
+                let prod = ex
+                    .cached
+                    .as_ref()
+                    .ok_or_else(|| Error::Numeric("cached design products missing".into()))?;
+                (Prod::Cached(prod), ind.multipliers(h, u, &rho)?)
+            } else {
+                let pr = super::indep::recompute(
+                    ind,
+                    gr,
+                    &self.design,
+                    h,
+                    u,
+                    &rho,
+                    &ex.z,
+                    &ex.loc,
+                    &self.needs,
+                )?;
+                (Prod::Fresh(pr), vec![1.0; n * m])
+            };
+            let phi = sphi.iter().map(|x| x * x).collect();
+            return Ok(Eval {
+                model: self,
+                n,
+                alpha,
+                sigma2,
+                rho,
+                g: vec![1.0; n],
+                prod,
+                own,
+                su2,
+                sv2,
+                ng: m,
+                phi,
+                sphi,
+            });
+        }
         let wr2 = c.r2d2_w(h, ru)?;
         let (g, prod) = if c.cached {
             let g = (0..n)
@@ -228,7 +270,10 @@ impl Eval<'_> {
         let q = r.detail.get::<RegDetail>()?.quantity;
         match q {
             RegQuantity::R2 => self.r2(r, o)?,
-            RegQuantity::R2Marginal => self.r2_marginal(o),
+            RegQuantity::R2Marginal => match r.detail.get::<RegDetail>()?.group {
+                Some(k) => self.r2_marginal_group(k, o)?,
+                None => self.r2_marginal(o),
+            },
             RegQuantity::R2Latent => self.r2_latent(o),
             RegQuantity::EffectiveNonzero => self.effective_nonzero(o)?,
             RegQuantity::MeanResponse | RegQuantity::EventProb | RegQuantity::Rate => {
@@ -265,7 +310,12 @@ impl Eval<'_> {
         for a in 0..k {
             let ba = self.own[a][i];
             if let Some(c) = prod.forms.get(cross + a) {
-                q += 2.0 * g * ba * c[i];
+                if self.ng == 1 {
+                    q += 2.0 * g * ba * c[i];
+                } else {
+                    // groups: G values of the cross form per draw
+                    q += 2.0 * ba * self.lin(c, i);
+                }
             }
             for b in 0..k {
                 q += ba * self.own[b][i] * self.model.own_cov[a * k + b];
@@ -309,15 +359,47 @@ impl Eval<'_> {
                 .sum::<f64>()
     }
 
-    /// The share of the explained variance of group `k`, per draw.
+    /// The share of the explained variance of group `k`, per draw: φ_k under
+    /// the joint R2D2, V_k/Σ_h V_h with independent priors per group (the same
+    /// quantity: under the joint prior V_k = ρWφ_k).
     fn share(&self, k: usize, o: &mut [f64]) -> Result<()> {
         if self.phi.len() != self.n * self.ng || k >= self.ng {
             return Err(Error::Numeric(
                 "r2_share asked without coefficient groups".into(),
             ));
         }
+        let m = self.ng;
+        let indep = self.model.coef.indep.is_some();
         for (i, v) in o.iter_mut().enumerate() {
-            *v = self.phi[i * self.ng + k];
+            *v = if indep {
+                let vv = &self.prod().v[i * m..(i + 1) * m];
+                let ph = &self.phi[i * m..(i + 1) * m];
+                let tot: f64 = (0..m).map(|a| ph[a] * vv[a]).sum();
+                if tot > 0.0 {
+                    ph[k] * vv[k] / tot
+                } else {
+                    // No group has signal (spike-and-slab groups with every
+                    // coefficient out): no split to speak of; an equal one.
+                    1.0 / m as f64
+                }
+            } else {
+                self.phi[i * m + k]
+            };
+        }
+        Ok(())
+    }
+
+    /// Group `k`'s own marginal R², V_k/(V_k + ρ), V_k = Σ_{j∈k} s_j²ω_j².
+    fn r2_marginal_group(&self, k: usize, o: &mut [f64]) -> Result<()> {
+        let m = self.ng;
+        if self.phi.len() != self.n * m || k >= m {
+            return Err(Error::Numeric(
+                "r2_marginal of a group asked without coefficient groups".into(),
+            ));
+        }
+        for (i, v) in o.iter_mut().enumerate() {
+            let vk = self.g[i] * self.g[i] * self.phi[i * m + k] * self.prod().v[i * m + k];
+            *v = ratio(vk, self.rho[i]);
         }
         Ok(())
     }
@@ -568,7 +650,7 @@ impl Eval<'_> {
 
     fn effective_nonzero(&self, o: &mut [f64]) -> Result<()> {
         let (g, prod) = (&self.g, self.prod());
-        if !self.model.coef.cached {
+        if !self.model.coef.cached && self.model.coef.indep.is_none() {
             o.copy_from_slice(&prod.eff);
             return Ok(());
         }
@@ -644,7 +726,7 @@ impl Eval<'_> {
         let g = &self.g;
         for (i, v) in o.iter_mut().enumerate() {
             *v = if self.ng > 1 {
-                self.q_shared(i).sqrt()
+                self.q_total(i).sqrt()
             } else if self.own.is_empty() {
                 g[i].abs() * self.prod().q[i].sqrt()
             } else {

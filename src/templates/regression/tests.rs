@@ -316,6 +316,7 @@ fn logistic_event_prob_is_logistic_of_linear_predictor() {
         cached: true,
         skip: Vec::new(),
         groups: None,
+        indep: None,
     };
     let des = crate::design::Design::from_rows(
         "t".into(),

@@ -200,7 +200,7 @@ fn bad_groups_are_named() {
         ),
         (
             GROUPED.replace("quantity = \"r2\"\n", "quantity = \"r2\"\ngroup = \"a\"\n"),
-            "only r2_share takes `group`",
+            "only r2_share and r2_marginal take `group`",
         ),
     ];
     for (text, want) in cases {
