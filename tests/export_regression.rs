@@ -1221,6 +1221,7 @@ fn random_slopes_round_trip_in_every_language_and_match_golden_files() {
             "{lang}: differs from {}",
             golden.display()
         );
+    }
 }
 
 #[test]
@@ -1335,6 +1336,7 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
             "{lang}: differs from {}",
             golden.display()
         );
+    }
     let e = export(dir.path(), "brms").unwrap_err();
     assert!(
         e.contains("invalid context") && e.contains("group `clinical`"),
