@@ -471,8 +471,11 @@ fn cure_fraction_prior_draw_is_the_models_cured_fraction() {
             .unwrap()
             .unwrap();
             let promo = template == "promotion-time-cure";
-            for i in 0..out[0].len() {
-                let pi = prior.from_base(cols[0][i]);
+            // The prior's draws as a column is drawn (a beta through its
+            // checked quantile table).
+            let mut pis = vec![0.0; out[0].len()];
+            prior.fill_from_base(&cols[0], &mut pis);
+            for (i, &pi) in pis.iter().enumerate() {
                 assert!(pi > 0.0 && pi < 1.0);
                 if promo {
                     assert!((out[0][i] - pi).abs() < 1e-12 * pi.max(1e-3), "{i}");
