@@ -40,7 +40,8 @@ fn objective(c: &mut Criterion) {
     });
     g.finish();
     // The same starter with a beta prior on the cured fraction itself
-    // ([prior.cure_fraction]): one exact beta quantile per draw and evaluation.
+    // ([prior.cure_fraction]): the beta quantiles of a whole column through a
+    // checked table per evaluation (`dist::beta::logit_quantiles`).
     let text = EXAMPLE.replace(
         "[prior.cure_logit]",
         "[prior.cure_fraction]\nfamily = \"beta\"\nalpha = { fit = [0.5, 60.0] }\nbeta = { fit = [0.5, 60.0] }\n[unused_cure_logit]",
