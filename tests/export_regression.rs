@@ -1353,6 +1353,34 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
 }
 
 #[test]
+fn random_slopes_with_independent_groups_round_trip_in_every_language() {
+    // The two features together: a random slope of x2 and the random
+    // intercepts beside independent normal / student-t groups of coefficients;
+    // every export must state the slopes as well as the groups (brms natively:
+    // per-coefficient priors and the (1 + x2 || cluster) term).
+    let coef = "[prior.coefficients.clinical]\ncovariates = [\"x1\", \"x3\"]\nfamily = \"normal\"\nscale = { fit = [0.01, 3.0] }\n[prior.coefficients.omics]\ncovariates = \"rest\"\nfamily = \"student-t\"\ndf = 4\nscale = 0.3\n[prior.cluster_sd]\nfamily = \"half-normal\"\nscale = 0.5\n[prior.cluster_slope_sd.x2]\nfamily = \"half-normal\"\nscale = 0.25";
+    let text = spec(HN_SIGMA, coef, true)
+        .replace("template = \"linear\"", "template = \"linear-multilevel\"")
+        .replace("standardise = true", "standardise = true\nclusters = 8")
+        .replace("quantity = \"r2\"", "quantity = \"r2_conditional\"");
+    round_trip(
+        "random slopes with independent groups",
+        &text,
+        true,
+        &["stan", "pymc", "brms"],
+        16,
+    );
+    let (dir, _) = fit(&text);
+    for lang in ["stan", "pymc"] {
+        let code = export(dir.path(), lang).unwrap();
+        assert!(
+            code.contains("v_z_x2") && code.contains("beta_clinical"),
+            "{lang}: {code}"
+        );
+    }
+}
+
+#[test]
 fn independent_normal_and_student_t_groups_round_trip_in_brms() {
     // brms states a prior per coefficient natively (`coef = "x1"`; brms 2.18.0
     // accepts normal and student_t there, checked with make_stancode).

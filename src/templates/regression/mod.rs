@@ -302,6 +302,9 @@ impl Model for Regression {
             // assignments that assemble `beta`.
             if let Some(cl) = &self.design.clusters {
                 v.push(code::cluster_effects(cl));
+                if !self.slopes.is_empty() {
+                    v.push(code::cluster_slopes(cl, &self.slopes, &self.design, &v));
+                }
             }
             v.push(st);
             return v;
