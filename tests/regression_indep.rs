@@ -135,7 +135,7 @@ fn bad_groups_through_the_binary_name_file_line_key_and_value() {
         ("\"x3\", \"x4\"]", "\"x3\", \"x44\"]"),
         &[
             "key `prior.coefficients.clinical.covariates`",
-            "\"x44\" is not a design column",
+            "`x44` is not a column of the design",
             "did you mean",
         ],
     );

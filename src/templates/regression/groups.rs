@@ -116,15 +116,7 @@ pub fn parse(
             toml::Value::Array(a) if !a.is_empty() => {
                 for x in a {
                     let c = ctx.string(&cp, x)?;
-                    let j = design.column(c).ok_or_else(|| {
-                        let mut e = ctx.err(&cp, format!("\"{c}\" is not a design column"));
-                        if let Some(n) =
-                            crate::error::nearest(c, design.names.iter().map(String::as_str))
-                        {
-                            e = e.with_hint(format!("did you mean \"{n}\"?"));
-                        }
-                        e
-                    })?;
+                    let j = super::own::column(ctx, design, &cp, c)?;
                     if of[j] != none {
                         return Err(ctx.err(
                             &cp,

@@ -159,7 +159,13 @@ pub fn parse(ctx: &Ctx, design: &Design, priors: &mut PriorSet) -> Result<Vec<Ow
     Ok(own)
 }
 
-fn column(ctx: &Ctx, design: &Design, path: &[crate::input::Seg], c: &str) -> Result<usize> {
+/// The index of design column `c`, or an error at `path` with the nearest name.
+pub(super) fn column(
+    ctx: &Ctx,
+    design: &Design,
+    path: &[crate::input::Seg],
+    c: &str,
+) -> Result<usize> {
     design.column(c).ok_or_else(|| {
         ctx.err(path, format!("`{c}` is not a column of the design"))
             .with_hint(

@@ -188,7 +188,7 @@ fn bad_groups_are_named() {
         ),
         (
             GROUPED.replace("[\"x6\", \"x7\", \"x8\"]", "[\"x6\", \"xx7\"]"),
-            "\"xx7\" is not a design column",
+            "`xx7` is not a column of the design",
         ),
         (
             GROUPED.replace("weight = 0.5", "weight = -1.0"),

@@ -292,7 +292,7 @@ fn bad_independent_groups_are_named() {
         ),
         (
             INDEP.replace("[\"x6\", \"x7\", \"x8\"]", "[\"x6\", \"xx7\"]"),
-            "\"xx7\" is not a design column",
+            "`xx7` is not a column of the design",
         ),
         (
             INDEP.replace("[\"x6\", \"x7\", \"x8\"]", "[\"x6\", \"x9\"]"),
