@@ -117,6 +117,26 @@ impl Design {
         self.names.iter().position(|n| n == name)
     }
 
+    /// The factor column j was divided by when stored: its raw sd when the
+    /// design is standardised, else 1. A coefficient per raw unit times this is
+    /// the coefficient per stored unit.
+    pub fn stored_scale(&self, j: usize) -> f64 {
+        if self.standardised {
+            self.raw_sds[j]
+        } else {
+            1.0
+        }
+    }
+
+    /// How the columns are stored, for labels: "standardised" or "centred".
+    pub fn stored_as(&self) -> &'static str {
+        if self.standardised {
+            "standardised"
+        } else {
+            "centred"
+        }
+    }
+
     /// Build from a row-major table of raw values.
     pub fn from_rows(
         source: String,

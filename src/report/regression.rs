@@ -169,12 +169,7 @@ pub fn regression_picture(dir: &Path, rec: &Record) -> Result<Option<RegressionP
             for &r in &row_ids {
                 let mut t = toml::Table::new();
                 for (j, name) in design.names.iter().enumerate() {
-                    let sd = if design.standardised {
-                        design.raw_sds[j]
-                    } else {
-                        1.0
-                    };
-                    let v = design.xc[(r, j)] * sd + design.raw_means[j];
+                    let v = design.xc[(r, j)] * design.stored_scale(j) + design.raw_means[j];
                     t.insert(name.clone(), toml::Value::Float(v));
                 }
                 // A name no user profile can clash with (the file's names are kept).

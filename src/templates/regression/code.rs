@@ -347,11 +347,7 @@ pub(super) fn coefficients_about(
     let own = shared.len() < d.cols();
     let p = shared.len();
     let x = |j: usize| h[c.idx[j]];
-    let unit = if d.standardised {
-        "standardised"
-    } else {
-        "centred"
-    };
+    let unit = d.stored_as();
     let cols = match p {
         0 => String::new(),
         1 => format!(", column {}", d.names[shared[0]]),

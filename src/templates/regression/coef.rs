@@ -388,6 +388,27 @@ impl SobolCols {
     }
 }
 
+/// The regularised horseshoe's scale ω = c·τλ/√(c² + τ²λ²) of one column, from
+/// the slab scale `cs` and τλ = `tl` (Piironen & Vehtari 2017, EJS 11);
+/// the square-root form is safe below 1e150, beyond it ω = c.
+pub fn reg_horseshoe_scale(cs: f64, tl: f64) -> f64 {
+    if tl < 1e150 {
+        cs * tl / (cs * cs + tl * tl).sqrt()
+    } else {
+        cs
+    }
+}
+
+/// Spike-and-slab's scale of one column: the slab `s` when its uniform `l` is
+/// below the inclusion probability `pi`, else 0.
+pub fn spike_slab_scale(l: f64, pi: f64, s: f64) -> f64 {
+    if l < pi {
+        s
+    } else {
+        0.0
+    }
+}
+
 /// A Gamma(shape, 1) variate by Marsaglia & Tsang (2000, ACM TOMS 26(3)), with the
 /// boost G(a) = G(a + 1)·U^{1/a} for a < 1; normals by probit of our uniforms.
 pub fn gamma_variate(shape: f64, r: &mut rand::rngs::ChaCha8Rng) -> f64 {

@@ -417,22 +417,8 @@ impl Indep {
             let pr = &self.priors[a];
             let t = mult[i * m + a];
             *w = match pr.kind {
-                Kind::RegHorseshoe => {
-                    let cs = slabs[a][i];
-                    let tl = t * l;
-                    if tl < 1e150 {
-                        cs * tl / (cs * cs + tl * tl).sqrt()
-                    } else {
-                        cs
-                    }
-                }
-                Kind::SpikeSlab => {
-                    if *l < h[pr.idx[0]] {
-                        h[pr.idx[1]]
-                    } else {
-                        0.0
-                    }
-                }
+                Kind::RegHorseshoe => coef::reg_horseshoe_scale(slabs[a][i], t * l),
+                Kind::SpikeSlab => coef::spike_slab_scale(*l, h[pr.idx[0]], h[pr.idx[1]]),
                 _ => t * pr.cached_w(h, *l),
             };
         }

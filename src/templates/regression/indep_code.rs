@@ -57,11 +57,7 @@ pub(super) fn statement(m: &Regression, h: &[f64]) -> Option<PriorStatement> {
     let (ind, gr) = (c.indep.as_ref()?, c.groups.as_ref()?);
     let d = &m.design;
     let p = d.cols();
-    let unit = if d.standardised {
-        "standardised"
-    } else {
-        "centred"
-    };
+    let unit = d.stored_as();
     let mut params = Vec::new();
     let mut legend = Vec::new();
     for (a, pr) in ind.priors.iter().enumerate() {
@@ -197,7 +193,7 @@ fn brms_lines(m: &Regression, h: &[f64]) -> Result<Vec<String>, String> {
     let d = &m.design;
     let mut out = vec![format!(
         "# class \"b\", one prior per coefficient of the {} design priorsmith fitted on (its groups: {})",
-        if d.standardised { "standardised" } else { "centred" },
+        d.stored_as(),
         gr.names.join(", ")
     )];
     for (a, pr) in ind.priors.iter().enumerate() {

@@ -312,11 +312,7 @@ impl Model for Regression {
         let mut about = format!(
             "each of the {} coefficients (per unit of the {} design){}",
             self.design.cols() - self.own.len(),
-            if self.design.standardised {
-                "standardised"
-            } else {
-                "centred"
-            },
+            self.design.stored_as(),
             if self.own.is_empty() {
                 String::new()
             } else {
@@ -367,44 +363,23 @@ impl Model for Regression {
 
     fn spread(&self, h: &[f64]) -> f64 {
         let k = self.priors.priors.len() as f64;
-        let c = &self.coef;
-        let x = |j: usize| h[c.idx[j]];
-        if let Some(ind) = &c.indep {
-            // One term per group: the log of each group's scale hyperparameter.
-            let mut s = self.priors.spread(h) * k;
-            for g in &ind.priors {
-                let sd = coef_sd(g, h);
-                s += if sd > 0.0 && sd.is_finite() {
-                    sd.ln()
-                } else {
-                    0.0
-                };
-            }
-            return s / (k + ind.count() as f64);
-        }
-        let sd = match c.kind {
-            Kind::Normal | Kind::StudentT => x(c.idx.len() - 1),
-            Kind::Laplace => std::f64::consts::SQRT_2 * x(0),
-            Kind::Horseshoe | Kind::RegHorseshoe => x(0),
-            Kind::R2d2 => {
-                let (a, b) = (x(0), x(1));
-                (a * b / ((a + b).powi(2) * (a + b + 1.0))).sqrt()
-            }
-            Kind::SpikeSlab => x(1) * x(0).sqrt(),
+        // One term per coefficient prior: the shared one, or each group's.
+        let coef: Vec<&CoefPrior> = match &self.coef.indep {
+            Some(ind) => ind.priors.iter().collect(),
+            None => vec![&self.coef],
         };
-        let cs = if sd > 0.0 && sd.is_finite() {
-            sd.ln()
-        } else {
-            0.0
-        };
-        (self.priors.spread(h) * k + cs) / (k + 1.0)
+        let s = coef
+            .iter()
+            .fold(self.priors.spread(h) * k, |s, c| s + ln_coef_sd(c, h));
+        s / (k + coef.len() as f64)
     }
 }
 
-/// A scale summary of one coefficient family at `h` (for [`Model::spread`]).
-fn coef_sd(c: &CoefPrior, h: &[f64]) -> f64 {
+/// ln of a scale summary of one coefficient family at `h` (0 where it is not
+/// positive and finite), for [`Model::spread`].
+fn ln_coef_sd(c: &CoefPrior, h: &[f64]) -> f64 {
     let x = |j: usize| h[c.idx[j]];
-    match c.kind {
+    let sd = match c.kind {
         Kind::Normal | Kind::StudentT => x(c.idx.len() - 1),
         Kind::Laplace => std::f64::consts::SQRT_2 * x(0),
         Kind::Horseshoe | Kind::RegHorseshoe => x(0),
@@ -413,5 +388,10 @@ fn coef_sd(c: &CoefPrior, h: &[f64]) -> f64 {
             (a * b / ((a + b).powi(2) * (a + b + 1.0))).sqrt()
         }
         Kind::SpikeSlab => x(1) * x(0).sqrt(),
+    };
+    if sd > 0.0 && sd.is_finite() {
+        sd.ln()
+    } else {
+        0.0
     }
 }

@@ -164,11 +164,7 @@ pub fn parse_slopes(
             col,
             name: name.clone(),
             prior: k,
-            to_stored: if design.standardised {
-                design.raw_sds[col]
-            } else {
-                1.0
-            },
+            to_stored: design.stored_scale(col),
         });
     }
     Ok(out)

@@ -128,15 +128,10 @@ pub fn parse(ctx: &Ctx, design: &Design, priors: &mut PriorSet) -> Result<Vec<Ow
             } else {
                 priors.share(first, &param)
             };
-            let to_stored = if design.standardised {
-                design.raw_sds[*j]
-            } else {
-                1.0
-            };
             own.push(Own {
                 col: *j,
                 prior: idx,
-                to_stored,
+                to_stored: design.stored_scale(*j),
             });
         }
         if own.len() > MAX_OWN {

@@ -15,11 +15,7 @@ pub(super) type Keyed = (Vec<Vec<f64>>, Form, String);
 
 impl Regression {
     fn unit(&self, j: usize) -> f64 {
-        if self.design.standardised {
-            1.0 / self.design.raw_sds[j]
-        } else {
-            1.0
-        }
+        1.0 / self.design.stored_scale(j)
     }
 
     /// A named profile: raw covariate values (design means where not given) and

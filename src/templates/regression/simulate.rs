@@ -197,19 +197,13 @@ impl Regression {
                 Kind::RegHorseshoe => {
                     let (t, cs) = (tau[i], slabs[i]);
                     for (w, l) in w.iter_mut().zip(loc) {
-                        // ω = c·τλ/√(c² + τ²λ²); the sqrt form is safe below 1e150.
-                        let tl = t * l;
-                        *w = if tl < 1e150 {
-                            cs * tl / (cs * cs + tl * tl).sqrt()
-                        } else {
-                            cs
-                        };
+                        *w = coef::reg_horseshoe_scale(cs, t * l);
                     }
                 }
                 _ => {
                     let (pi, s) = (h[c.idx[0]], h[c.idx[1]]);
                     for (w, l) in w.iter_mut().zip(loc) {
-                        *w = if *l < pi { s } else { 0.0 };
+                        *w = coef::spike_slab_scale(*l, pi, s);
                     }
                 }
             }
