@@ -386,7 +386,8 @@ fn a_slope_spread_belief_recovers_the_slope_sd_scale() {
     let z = 1.644_853_626_951_472_7_f64;
     let b = 0.2_f64;
     let s = 0.15_f64;
-    // norm.ppf((1 + p)/2) for p = 0.1, 0.25, 0.5, 0.75, 0.9 (scipy 1.17.1).
+    // norm.ppf((1 + p)/2) for p = 0.1, 0.25, 0.5, 0.75, 0.9 (scipy 1.17.1; rerun
+    // there on 2026-12-03, equal to every printed digit).
     let ppf = [
         (0.1, 0.125_661_346_855_074_1),
         (0.25, 0.318_639_363_964_375_2),
