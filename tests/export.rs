@@ -1030,7 +1030,6 @@ fn survival_exports_with_likelihood_match_golden_files_and_keep_the_prior() {
     // the formulas in templates/survival/code.rs); the prior part of a complete
     // export is the prior-only export line for line, which round-trips through
     // our parsers (`compare`).
-    let bless = std::env::var_os("PRIORSMITH_BLESS").is_some();
     for (name, spec) in survival_cases() {
         let (_d, out) = fit_spec(&spec);
         let json = std::fs::read_to_string(out.join("fit.json")).unwrap();
@@ -1039,18 +1038,10 @@ fn survival_exports_with_likelihood_match_golden_files_and_keep_the_prior() {
             let complete = ok(&["export", dir, "--to", lang, "--with-likelihood"]);
             let prior = export(&out, lang);
             let (prior_part, lik) = split_complete(&complete, comment);
-            let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
-                .join("tests/golden/survival")
-                .join(format!("{name}.{ext}"));
-            if bless {
-                std::fs::write(&golden, &lik).unwrap();
-            }
-            let want = std::fs::read_to_string(&golden).unwrap_or_default();
-            assert_eq!(
-                lik,
-                want,
-                "{name} {lang}: likelihood differs from {}",
-                golden.display()
+            common::assert_golden(
+                &lik,
+                &format!("survival/{name}.{ext}"),
+                &format!("{name} {lang}: likelihood"),
             );
             let parsed = match lang {
                 "stan" => {

@@ -1119,7 +1119,6 @@ fn grouped_r2d2_round_trips_in_stan_and_pymc_matches_golden_files_and_brms_refus
         hyper("coefficients.omics.weight"),
     ];
     let close = |x: f64, y: f64| (x - y).abs() <= 1e-5 * y.abs();
-    let bless = std::env::var_os("PRIORSMITH_BLESS").is_some();
     for (lang, ext) in [("stan", "stan"), ("pymc", "py")] {
         let code = export(dir.path(), lang).unwrap();
         let prog = if lang == "stan" {
@@ -1145,19 +1144,10 @@ fn grouped_r2d2_round_trips_in_stan_and_pymc_matches_golden_files_and_brms_refus
             prog.vars.iter().all(|v| !v.name.starts_with("beta_psi_g2")),
             "{lang}: a one-column group has no split"
         );
-        let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("tests/golden/regression")
-            .join(format!("grouped-r2d2.{ext}"));
-        if bless {
-            std::fs::create_dir_all(golden.parent().unwrap()).unwrap();
-            std::fs::write(&golden, body(&code)).unwrap();
-        }
-        let want = std::fs::read_to_string(&golden).unwrap_or_default();
-        assert_eq!(
-            body(&code),
-            want,
-            "{lang}: differs from {}",
-            golden.display()
+        common::assert_golden(
+            &body(&code),
+            &format!("regression/grouped-r2d2.{ext}"),
+            &format!("{lang}:"),
         );
     }
     let e = export(dir.path(), "brms").unwrap_err();
@@ -1205,21 +1195,12 @@ fn random_slopes_round_trip_in_every_language_and_match_golden_files() {
     let text = slopes_spec();
     round_trip("random slopes", &text, true, &["stan", "pymc", "brms"], 12);
     let (dir, _) = fit(&text);
-    let bless = std::env::var_os("PRIORSMITH_BLESS").is_some();
     for (lang, ext) in [("stan", "stan"), ("pymc", "py"), ("brms", "R")] {
         let code = export(dir.path(), lang).unwrap();
-        let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("tests/golden/regression")
-            .join(format!("multilevel-slopes.{ext}"));
-        if bless {
-            std::fs::write(&golden, body(&code)).unwrap();
-        }
-        let want = std::fs::read_to_string(&golden).unwrap_or_default();
-        assert_eq!(
-            body(&code),
-            want,
-            "{lang}: differs from {}",
-            golden.display()
+        common::assert_golden(
+            &body(&code),
+            &format!("regression/multilevel-slopes.{ext}"),
+            &format!("{lang}:"),
         );
     }
 }
@@ -1300,7 +1281,6 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
             .unwrap();
     let hyper = |k: &str| json["hyperparameters"][k].as_f64().unwrap();
     let close = |x: f64, y: f64| (x - y).abs() <= 1e-5 * y.abs();
-    let bless = std::env::var_os("PRIORSMITH_BLESS").is_some();
     for (lang, ext) in [("stan", "stan"), ("pymc", "py")] {
         let code = export(dir.path(), lang).unwrap();
         let prog = if lang == "stan" {
@@ -1323,18 +1303,10 @@ fn independent_groups_round_trip_in_stan_and_pymc_match_golden_files_and_brms_re
         );
         let r2 = get("beta_lab_r2");
         assert_eq!(r2.args, vec![2.0, 3.0], "{lang}");
-        let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("tests/golden/regression")
-            .join(format!("independent-groups.{ext}"));
-        if bless {
-            std::fs::write(&golden, body(&code)).unwrap();
-        }
-        let want = std::fs::read_to_string(&golden).unwrap_or_default();
-        assert_eq!(
-            body(&code),
-            want,
-            "{lang}: differs from {}",
-            golden.display()
+        common::assert_golden(
+            &body(&code),
+            &format!("regression/independent-groups.{ext}"),
+            &format!("{lang}:"),
         );
     }
     let e = export(dir.path(), "brms").unwrap_err();

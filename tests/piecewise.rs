@@ -227,7 +227,6 @@ fn exports_match_golden_files_and_brms_is_refused_with_the_mapping() {
     );
     let v = json(&out.join("fit.json"));
     let dir = out.to_str().unwrap();
-    let bless = std::env::var_os("PRIORSMITH_BLESS").is_some();
     for (lang, ext) in [("stan", "stan"), ("pymc", "py")] {
         for (with, suffix) in [(true, ""), (false, "-prior")] {
             let mut args = vec!["export", dir, "--to", lang];
@@ -239,14 +238,11 @@ fn exports_match_golden_files_and_brms_is_refused_with_the_mapping() {
             let code = stdout(&r);
             scalar_priors_match(&code, lang, &v);
             let got = structure(&code);
-            let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
-                .join("tests/golden/survival")
-                .join(format!("piecewise-hazard{suffix}.{ext}"));
-            if bless {
-                std::fs::write(&golden, &got).unwrap();
-            }
-            let want = std::fs::read_to_string(&golden).unwrap_or_default();
-            assert_eq!(got, want, "{lang}: differs from {}", golden.display());
+            assert_golden(
+                &got,
+                &format!("survival/piecewise-hazard{suffix}.{ext}"),
+                &format!("{lang}:"),
+            );
         }
     }
     for args in [

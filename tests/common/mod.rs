@@ -58,3 +58,18 @@ pub fn assert_rejected(dir: &Path, spec: &Path, file_named: &str, code: i32, nee
         );
     }
 }
+
+/// Compare `got` with the golden file `tests/golden/REL` (written by our own
+/// exporter and reviewed by hand; `PRIORSMITH_BLESS=1` rewrites it first); a
+/// difference fails with "`what` differs from PATH".
+pub fn assert_golden(got: &str, rel: &str, what: &str) {
+    let golden = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/golden")
+        .join(rel);
+    if std::env::var_os("PRIORSMITH_BLESS").is_some() {
+        std::fs::create_dir_all(golden.parent().unwrap()).unwrap();
+        std::fs::write(&golden, got).unwrap();
+    }
+    let want = std::fs::read_to_string(&golden).unwrap_or_default();
+    assert_eq!(got, want, "{what} differs from {}", golden.display());
+}
