@@ -27,6 +27,25 @@ pub(super) fn draws(s: &Spec, h: &[f64], n: usize) -> Vec<Vec<f64>> {
     out
 }
 
+/// The regression of `text` as its concrete type (not prepared for requests),
+/// built as template `info` with `link` and quantity table `quantities`.
+pub(super) fn concrete_as(
+    text: &str,
+    info: &'static TemplateInfo,
+    link: Link,
+    quantities: &'static [RegDef],
+) -> Regression {
+    let raw: crate::input::raw::RawSpec = toml::from_str(text).unwrap();
+    let map = crate::input::SourceMap::new(text);
+    let ctx = crate::input::Ctx::new(None, &map, &raw);
+    make(&ctx, info, link, quantities, false).unwrap()
+}
+
+/// The linear regression of `text` as its concrete type.
+pub(super) fn linear(text: &str) -> Regression {
+    concrete_as(text, &crate::templates::linear::INFO, Link::Identity, &[])
+}
+
 pub(super) fn h0(s: &Spec) -> Vec<f64> {
     s.hypers().iter().map(Hyper::default_value).collect()
 }

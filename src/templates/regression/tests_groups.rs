@@ -138,17 +138,7 @@ fn grouped_design_variance_matches_explicit_coefficients() {
     let n = 300;
     let out = draws(&s, &h0(&s), n);
     let plan = rng::Plan::fit(s.seed, rng::Points::Independent);
-    let raw: crate::input::raw::RawSpec = toml::from_str(GROUPED).unwrap();
-    let map = crate::input::SourceMap::new(GROUPED);
-    let ctx = crate::input::Ctx::new(None, &map, &raw);
-    let m = make(
-        &ctx,
-        &crate::templates::linear::INFO,
-        Link::Identity,
-        &[],
-        false,
-    )
-    .unwrap();
+    let m = super::tests::linear(GROUPED);
     let d = &m.design;
     let gr = m.coef.groups.as_ref().unwrap();
     let (p, nr) = (d.cols(), d.rows());
@@ -243,17 +233,7 @@ fn half_concentration_route_keeps_the_dirichlet_law() {
     // (columns, column checked, its group's size).
     for (cols, checks) in [(30, [(0, 5), (9, 22)]), (100, [(0, 5), (80, 92)])] {
         let text = GROUPED.replace("columns = 30", &format!("columns = {cols}"));
-        let raw: crate::input::raw::RawSpec = toml::from_str(&text).unwrap();
-        let map = crate::input::SourceMap::new(&text);
-        let ctx = crate::input::Ctx::new(None, &map, &raw);
-        let m = make(
-            &ctx,
-            &crate::templates::linear::INFO,
-            Link::Identity,
-            &[],
-            false,
-        )
-        .unwrap();
+        let m = super::tests::linear(&text);
         let d = &m.design;
         let p = d.cols();
         let plan = rng::Plan::fit(5, rng::Points::Independent);

@@ -85,20 +85,6 @@ quantity = "effective_nonzero"
 distribution = { family = "lognormal", meanlog = 1, sdlog = 1 }
 "#;
 
-fn model(text: &str) -> Regression {
-    let raw: crate::input::raw::RawSpec = toml::from_str(text).unwrap();
-    let map = crate::input::SourceMap::new(text);
-    let ctx = crate::input::Ctx::new(None, &map, &raw);
-    make(
-        &ctx,
-        &crate::templates::linear::INFO,
-        Link::Identity,
-        &[],
-        false,
-    )
-    .unwrap()
-}
-
 #[test]
 fn per_group_r2_split_and_design_quantities_match_the_definitions() {
     // Per draw, from the same base variates: ω_j = 0.3 (group a), 0.2·λ_j
@@ -114,7 +100,7 @@ fn per_group_r2_split_and_design_quantities_match_the_definitions() {
     let n = 300;
     let h = h0(&s);
     let out = draws(&s, &h, n);
-    let m = model(INDEP);
+    let m = super::tests::linear(INDEP);
     let plan = rng::Plan::fit(s.seed, rng::Points::Independent);
     let base = m.draw(n, &plan);
     let k = m.priors.priors.len();
@@ -202,7 +188,7 @@ fn closed_forms_fixed_normal_groups_and_a_group_r2d2() {
     let n = 2000;
     let h = h0(&s);
     let out = draws(&s, &h, n);
-    let m = model(&text);
+    let m = super::tests::linear(&text);
     let d = &m.design;
     let gr = m.coef.groups.as_ref().unwrap();
     let sc = [0.3, 0.7, 0.05];
@@ -260,7 +246,7 @@ fn recomputed_route_equals_cached_route() {
         "family = \"spike-and-slab\"\ninclusion = { fit = [0.5, 1.0] }\nslab_scale = 0.7",
     );
     let (sc, sf) = (spec(&cached), spec(&fresh));
-    assert!(model(&cached).coef.cached && !model(&fresh).coef.cached);
+    assert!(super::tests::linear(&cached).coef.cached && !super::tests::linear(&fresh).coef.cached);
     let mut hf = h0(&sf);
     let i = sf
         .hypers()

@@ -163,17 +163,12 @@ fn cluster_risk_spread_matches_an_independent_numpy_simulation() {
 /// The logistic regression of `text` as its concrete type, prepared for the
 /// requests of `s` (the same text, validated).
 fn concrete(text: &str, s: &crate::spec::Spec) -> Regression {
-    let raw: crate::input::raw::RawSpec = toml::from_str(text).unwrap();
-    let map = crate::input::SourceMap::new(text);
-    let ctx = crate::input::Ctx::new(None, &map, &raw);
-    let mut m = make(
-        &ctx,
+    let mut m = super::tests::concrete_as(
+        text,
         &crate::templates::logistic::INFO,
         Link::Logit,
         crate::templates::logistic::QUANTITIES_FOR_TESTS,
-        false,
-    )
-    .unwrap();
+    );
     let reqs: Vec<&Request> = s.beliefs.iter().map(|b| &b.request).collect();
     m.prepare(&reqs).unwrap();
     m
